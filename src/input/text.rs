@@ -1,0 +1,1 @@
+//! Shared text-file helpers for the readers (BOM, CRLF, CSV headers).

@@ -1,0 +1,16 @@
+//! postassay: a bench that tells a search engineer which text-analysis chain
+//! to give a field of short multilingual posts.
+//!
+//! Data flow (each module depends only on the ones before it):
+//! `input` → `analysis` → `index` → `search` → `eval` → `stats` → `report`,
+//! with `bench` orchestrating a whole run and the binary's `cli` on top.
+#![deny(missing_docs)]
+
+pub mod error;
+pub mod ids;
+pub mod input;
+
+pub use error::{Error, ErrorKind, Result};
+pub mod analysis;
+pub mod eval;
+pub mod stats;

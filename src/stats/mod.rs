@@ -1,0 +1,1 @@
+//! Paired significance tests, multiple-comparison adjustment and bootstrap intervals.
