@@ -17,4 +17,4 @@ pub use corpus::{read_corpus, Post};
 pub use judgments::{read_judgments, Judgments};
 pub use lang_code::LangCode;
 pub use queries::{read_queries, Query};
-pub use runs::{read_run, write_run, RankedDoc, Run};
+pub use runs::{format_shortest, read_run, write_run, RankedDoc, Run};

@@ -1,11 +1,27 @@
-//! Ranked runs: `query_id,doc_id,rank,score` CSV, read from files given to
-//! `score` and written by `run` for every chain.
+//! Ranked runs: CSV with columns `query_id,doc_id,rank,score`, read from the
+//! files given to `score` (input stage) and written by `run` for every chain
+//! (`runs/NAME.csv`), so a written run reads back to the same value.
+//!
+//! Reading: `rank` is any integer (`i64`, negative allowed: only the order
+//! matters), `score` a finite number (Rust's `f64` syntax, so `1e-3` is
+//! accepted and `NaN`/`inf` rejected). The order of a query's posts is rank
+//! ascending, equal ranks broken by `doc_id` in byte order; the score plays no
+//! part in it. A post listed twice for one query is an error naming both
+//! lines. A header-only file is a valid, empty run.
+//!
+//! Writing: queries in byte order of their ids, ranks 1..n in list order,
+//! scores in the shortest form that parses back to the same `f64` (see
+//! [`format_shortest`]).
 
-use std::collections::BTreeMap;
+use std::collections::{BTreeMap, HashMap};
 use std::path::Path;
 
-use crate::error::Result;
+use crate::error::{Error, Problems, Result};
 use crate::ids::{PostId, QueryId};
+use crate::input::text::{check_id, in_column, quoted, CsvTable};
+
+/// The run layout's header, in this order when written.
+const HEADER: [&str; 4] = ["query_id", "doc_id", "rank", "score"];
 
 /// One retrieved post with its engine score (informational only).
 #[derive(Debug, Clone, PartialEq)]
@@ -25,14 +41,302 @@ pub struct Run {
     pub by_query: BTreeMap<QueryId, Vec<RankedDoc>>,
 }
 
-/// Read and validate a run file.
-pub fn read_run(path: &Path) -> Result<Run> {
-    let _ = path;
-    Err(crate::error::Error::usage("read_run: not yet written"))
+/// One row as read, kept until the file is sorted.
+struct Entry {
+    rank: i64,
+    doc: PostId,
+    score: f64,
 }
 
-/// Write a run in the run layout (ranks 1..n in list order).
+/// Read and validate a run file, listing every bad line.
+pub fn read_run(path: &Path) -> Result<Run> {
+    let mut table = CsvTable::open(path, &HEADER.join(","))?;
+    let ([q_col, d_col, r_col, s_col], []) = table.columns(HEADER, [])?;
+    let mut problems = Problems::new(path);
+    let mut first_line: HashMap<(QueryId, PostId), u64> = HashMap::new();
+    let mut entries: BTreeMap<QueryId, Vec<Entry>> = BTreeMap::new();
+    while let Some(row) = table.next_row(&mut problems)? {
+        let query = check_id(row.get(q_col))
+            .map_err(|msg| problems.push(row.line, in_column("query_id", &msg)))
+            .ok();
+        let doc = check_id(row.get(d_col))
+            .map_err(|msg| problems.push(row.line, in_column("doc_id", &msg)))
+            .ok();
+        let rank = parse_rank(row.get(r_col))
+            .map_err(|msg| problems.push(row.line, in_column("rank", &msg)))
+            .ok();
+        let score = parse_score(row.get(s_col))
+            .map_err(|msg| problems.push(row.line, in_column("score", &msg)))
+            .ok();
+        let (Some(query), Some(doc)) = (query, doc) else { continue };
+        let key = (QueryId::from(query), PostId::from(doc));
+        if let Some(first) = first_line.get(&key) {
+            problems.push(
+                row.line,
+                format!("query {query:?}: doc {doc:?} is listed twice (first at line {first})"),
+            );
+            continue;
+        }
+        first_line.insert(key.clone(), row.line);
+        if let (Some(rank), Some(score)) = (rank, score) {
+            entries.entry(key.0).or_default().push(Entry { rank, doc: key.1, score });
+        }
+    }
+    let mut run = Run::default();
+    for (query, mut list) in entries {
+        list.sort_by(|a, b| a.rank.cmp(&b.rank).then_with(|| a.doc.cmp(&b.doc)));
+        let docs = list.into_iter().map(|e| RankedDoc { doc: e.doc, score: e.score }).collect();
+        run.by_query.insert(query, docs);
+    }
+    problems.finish(run)
+}
+
+/// A rank: an integer (surrounding whitespace ignored).
+fn parse_rank(raw: &str) -> std::result::Result<i64, String> {
+    raw.trim()
+        .parse::<i64>()
+        .map_err(|_| format!("expected an integer rank, found {}", quoted(raw)))
+}
+
+/// A score: a finite number (surrounding whitespace ignored).
+fn parse_score(raw: &str) -> std::result::Result<f64, String> {
+    match raw.trim().parse::<f64>() {
+        Ok(x) if x.is_finite() => Ok(x),
+        _ => Err(format!("expected a finite number, found {}", quoted(raw))),
+    }
+}
+
+/// Write a run in the run layout (ranks 1..n in list order). A non-finite
+/// score is refused (the layout requires finite numbers, and the file must
+/// read back); I/O errors name the output as `<run output>` since the writer
+/// has no path.
 pub fn write_run<W: std::io::Write>(run: &Run, out: W) -> Result<()> {
-    let _ = (run, out);
-    Ok(())
+    let output = Path::new("<run output>");
+    let wrap = |e: csv::Error| {
+        let text = e.to_string();
+        match e.into_kind() {
+            csv::ErrorKind::Io(io) => Error::io(output, io),
+            _ => Error::usage(format!("cannot write run: {text}")),
+        }
+    };
+    let mut writer = csv::Writer::from_writer(out);
+    writer.write_record(HEADER).map_err(wrap)?;
+    for (query, docs) in &run.by_query {
+        for (rank, doc) in (1u64..).zip(docs) {
+            if !doc.score.is_finite() {
+                return Err(Error::usage(format!(
+                    "cannot write run: query {:?} doc {:?} has the non-finite score {}",
+                    query.as_str(),
+                    doc.doc.as_str(),
+                    doc.score
+                )));
+            }
+            let record =
+                [query.as_str(), doc.doc.as_str(), &rank.to_string(), &format_shortest(doc.score)];
+            writer.write_record(record).map_err(wrap)?;
+        }
+    }
+    writer.flush().map_err(|e| Error::io(output, e))
+}
+
+/// The shortest decimal text that parses back to the same `f64`: Rust's
+/// `Display` (`3.0` → `"3"`, `0.25` → `"0.25"`) unless scientific notation
+/// (`LowerExp`) is shorter (`1e-7` rather than `"0.0000001"`, `1e21` rather
+/// than 22 digits); both print the shortest round-tripping digits. Integral
+/// values therefore print without `.0`. Non-finite values print as Rust
+/// does (`NaN`, `inf`).
+///
+/// ```
+/// use postassay::input::format_shortest;
+/// assert_eq!(format_shortest(3.0), "3");
+/// assert_eq!(format_shortest(0.1), "0.1");
+/// assert_eq!(format_shortest(1e-7), "1e-7");
+/// ```
+pub fn format_shortest(x: f64) -> String {
+    let plain = x.to_string();
+    let exp = format!("{x:e}");
+    if exp.len() < plain.len() {
+        exp
+    } else {
+        plain
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::input::text::testutil::temp_file;
+
+    fn error_of(content: &[u8]) -> String {
+        let (_dir, path) = temp_file("run.csv", content);
+        read_run(&path).expect_err("should be rejected").to_string()
+    }
+
+    fn docs(run: &Run, q: &str) -> Vec<(String, f64)> {
+        run.by_query
+            .get(&QueryId::from(q))
+            .map(|v| v.iter().map(|d| (d.doc.to_string(), d.score)).collect())
+            .unwrap_or_default()
+    }
+
+    #[test]
+    fn orders_by_rank_then_doc_id_bytes_whatever_the_file_order() {
+        // "B" (0x42) sorts before "a" (0x61) in byte order; "é" (0xC3 0xA9) after "z".
+        let (_dir, path) = temp_file(
+            "run.csv",
+            b"score,rank,doc_id,query_id,extra\n\
+              1.5,2,z,q1,x\n2.5,1,d9,q1,x\n0.5,2,\xC3\xA9,q1,x\n1.5,2,B,q1,x\n9,-3,a,q1,x\n\
+              7,1,x,q0,x\n",
+        );
+        let run = read_run(&path).expect("valid");
+        let q1 = docs(&run, "q1");
+        let expected = [("a", 9.0), ("d9", 2.5), ("B", 1.5), ("z", 1.5), ("é", 0.5)]
+            .map(|(d, s)| (d.to_string(), s));
+        assert_eq!(q1, expected);
+        let queries: Vec<&str> = run.by_query.keys().map(QueryId::as_str).collect();
+        assert_eq!(queries, ["q0", "q1"]);
+    }
+
+    #[test]
+    fn header_only_run_is_valid_and_empty() {
+        let (_dir, path) = temp_file("run.csv", b"\xEF\xBB\xBFquery_id,doc_id,rank,score\r\n");
+        assert_eq!(read_run(&path).expect("valid"), Run::default());
+    }
+
+    #[test]
+    fn bad_rank_and_score_values_are_each_reported() {
+        let msg = error_of(
+            b"query_id,doc_id,rank,score\nq,a,1.5,1\nq,b,x,1\nq,c,3,NaN\nq,d,4,inf\nq,e,5,high\nq,f,6,\n",
+        );
+        for expected in [
+            r#"run.csv:2: column "rank": expected an integer rank, found "1.5""#,
+            r#"run.csv:3: column "rank": expected an integer rank, found "x""#,
+            r#"run.csv:4: column "score": expected a finite number, found "NaN""#,
+            r#"run.csv:5: column "score": expected a finite number, found "inf""#,
+            r#"run.csv:6: column "score": expected a finite number, found "high""#,
+            r#"run.csv:7: column "score": expected a finite number, found """#,
+        ] {
+            assert!(msg.contains(expected), "missing {expected:?} in {msg}");
+        }
+        assert_eq!(msg.lines().count(), 6, "{msg}");
+    }
+
+    #[test]
+    fn duplicate_doc_for_a_query_names_both_lines() {
+        let msg = error_of(b"query_id,doc_id,rank,score\nq1,d1,1,3\nq2,d1,1,3\n\nq1,d1,2,2\n");
+        assert_eq!(msg.lines().count(), 1, "{msg}");
+        assert!(
+            msg.contains(r#"run.csv:5: query "q1": doc "d1" is listed twice (first at line 2)"#),
+            "{msg}"
+        );
+    }
+
+    #[test]
+    fn missing_score_column_lists_the_header_found() {
+        let msg = error_of(b"query_id,doc_id,rank\nq1,d1,1\n");
+        assert!(msg.contains(r#"run.csv:1: missing column "score": expected a header with columns "query_id", "doc_id", "rank", "score", found "query_id,doc_id,rank""#), "{msg}");
+    }
+
+    #[test]
+    fn written_run_reads_back_identically() {
+        let mut run = Run::default();
+        let scores = [12.375, 3.0, 0.1, 1e-7, -0.0, 2.0f64.sqrt()];
+        let ranked = ["p,1", "p\"2", "p3", "π", "p 5", "p6"]
+            .iter()
+            .zip(scores)
+            .map(|(d, s)| RankedDoc { doc: PostId::from(*d), score: s })
+            .collect();
+        run.by_query.insert(QueryId::from("q,2"), ranked);
+        run.by_query.insert(QueryId::from("q1"), vec![]);
+        let mut out = Vec::new();
+        write_run(&run, &mut out).expect("written");
+        let text = String::from_utf8(out).expect("utf-8");
+        let (_dir, path) = temp_file("run.csv", text.as_bytes());
+        let back = read_run(&path).expect("reads back");
+        // A query with an empty list writes no row, so it reads back absent.
+        run.by_query.remove(&QueryId::from("q1"));
+        assert_eq!(back.by_query.len(), 1);
+        let q: Vec<(String, u64)> = back
+            .by_query
+            .values()
+            .flatten()
+            .map(|d| (d.doc.to_string(), d.score.to_bits()))
+            .collect();
+        let expected: Vec<(String, u64)> = run
+            .by_query
+            .values()
+            .flatten()
+            .map(|d| (d.doc.to_string(), d.score.to_bits()))
+            .collect();
+        assert_eq!(q, expected);
+        assert!(
+            text.starts_with("query_id,doc_id,rank,score\n\"q,2\",\"p,1\",1,12.375\n"),
+            "{text}"
+        );
+        assert!(text.contains("\"q,2\",p3,3,0.1\n\"q,2\",π,4,1e-7\n"), "{text}");
+        assert!(text.contains(",2,3\n"), "3.0 is written as 3: {text}");
+    }
+
+    #[test]
+    fn written_ranks_restart_per_query_in_byte_order() {
+        let mut run = Run::default();
+        for q in ["b", "a", "B"] {
+            let list = ["x", "y"]
+                .iter()
+                .map(|d| RankedDoc { doc: PostId::from(*d), score: 1.0 })
+                .collect();
+            run.by_query.insert(QueryId::from(q), list);
+        }
+        let mut out = Vec::new();
+        write_run(&run, &mut out).expect("written");
+        let text = String::from_utf8(out).expect("utf-8");
+        let expected =
+            "query_id,doc_id,rank,score\nB,x,1,1\nB,y,2,1\na,x,1,1\na,y,2,1\nb,x,1,1\nb,y,2,1\n";
+        assert_eq!(text, expected);
+    }
+
+    #[test]
+    fn non_finite_score_is_not_written() {
+        let mut run = Run::default();
+        run.by_query.insert(
+            QueryId::from("q"),
+            vec![RankedDoc { doc: PostId::from("d"), score: f64::NAN }],
+        );
+        let err = write_run(&run, Vec::new()).expect_err("NaN refused");
+        assert!(
+            err.to_string().contains(r#"query "q" doc "d" has the non-finite score NaN"#),
+            "{err}"
+        );
+    }
+
+    #[test]
+    fn format_shortest_picks_the_shorter_round_tripping_form() {
+        let cases = [
+            (3.0, "3"),
+            (0.1, "0.1"),
+            (12.375, "12.375"),
+            (1e-7, "1e-7"),
+            (1.5e300, "1.5e300"),
+            (123456.0, "123456"),
+            (-0.0, "-0"),
+            (0.30000000000000004, "0.30000000000000004"),
+        ];
+        for (x, text) in cases {
+            assert_eq!(format_shortest(x), text);
+            assert_eq!(format_shortest(x).parse::<f64>().map(f64::to_bits), Ok(x.to_bits()));
+        }
+    }
+
+    #[test]
+    fn problems_beyond_the_cap_are_counted_not_listed() {
+        let mut content = String::from("query_id,doc_id,rank,score\n");
+        for i in 0..25 {
+            content.push_str(&format!("q,d{i},first,1\n"));
+        }
+        let msg = error_of(content.as_bytes());
+        let lines: Vec<&str> = msg.lines().collect();
+        assert_eq!(lines.len(), crate::error::MAX_LISTED_PROBLEMS + 1, "{msg}");
+        assert!(lines.first().is_some_and(|l| l.contains("run.csv:2: column \"rank\"")), "{msg}");
+        assert!(lines.last().is_some_and(|l| l.ends_with("… and 5 more problems")), "{msg}");
+    }
 }

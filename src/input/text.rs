@@ -1,1 +1,524 @@
-//! Shared text-file helpers for the readers (BOM, CRLF, CSV headers).
+//! Shared text-file helpers for the input readers (first stage of the data
+//! flow): opening a file with its leading UTF-8 BOM skipped, reading physical
+//! lines with CRLF or LF ends, a CSV reader that locates columns by header
+//! name and reports physical line numbers, and the value checks (ids,
+//! language codes, quoting of found values) every reader shares.
+//!
+//! Files are streamed: lines and CSV records are read one at a time, so a
+//! corpus never has to fit in memory twice.
+//!
+//! Line numbers are physical and 1-based (formats.md); a CSV record whose
+//! quoted field spans lines is reported at the line where the record starts.
+//! `csv::Position::line` of a record is not that line when blank lines come
+//! before the record: csv 1.4 stamps a record with the position right after
+//! the previous one, before the blank lines it then skips (measured: in
+//! `"a,b\n\n\nx,y\n"` it puts `x,y` on line 2, not 4). So the start line is
+//! derived from the reader's position *after* the record, which counts every
+//! `\n` consumed, minus the newlines inside the record's fields, minus one
+//! when the terminator just consumed was `\n` ([`LineIndex`] remembers where
+//! the `\n` bytes are to tell).
+
+use std::collections::VecDeque;
+use std::fs::File;
+use std::io::{BufRead, BufReader, Read};
+use std::path::{Path, PathBuf};
+use std::str::Utf8Error;
+
+use crate::error::{Error, Problems, Result};
+use crate::input::LangCode;
+
+/// The UTF-8 byte order mark, accepted (and skipped) at the start of a file.
+const BOM: &[u8] = b"\xEF\xBB\xBF";
+
+/// Longest stretch of a found value quoted in a message; longer values are
+/// cut with `…` so a bad post does not flood the terminal.
+const MAX_QUOTED_CHARS: usize = 60;
+
+/// Open `path` for buffered reading, with a leading UTF-8 BOM already skipped.
+pub(super) fn open(path: &Path) -> Result<BufReader<File>> {
+    let file = File::open(path).map_err(|e| Error::io(path, e))?;
+    let mut reader = BufReader::new(file);
+    // fill_buf returns at least the first bytes of a non-empty file; the
+    // buffer (8 KiB) is always larger than the 3-byte mark.
+    let starts_with_bom = reader.fill_buf().map_err(|e| Error::io(path, e))?.starts_with(BOM);
+    if starts_with_bom {
+        reader.consume(BOM.len());
+    }
+    Ok(reader)
+}
+
+/// One physical line: its 1-based number and its text without the line end,
+/// or the UTF-8 error when the line is not valid UTF-8.
+pub(super) struct Line<'a> {
+    /// Physical 1-based line number.
+    pub number: u64,
+    /// The line without `\n` / `\r\n`.
+    pub text: std::result::Result<&'a str, Utf8Error>,
+}
+
+/// Reads a file line by line (LF or CRLF ends), reusing one buffer.
+pub(super) struct Lines {
+    path: PathBuf,
+    reader: BufReader<File>,
+    buf: Vec<u8>,
+    number: u64,
+}
+
+impl Lines {
+    /// Open `path` (BOM skipped) for reading lines.
+    pub fn open(path: &Path) -> Result<Lines> {
+        Ok(Lines { path: path.to_path_buf(), reader: open(path)?, buf: Vec::new(), number: 0 })
+    }
+
+    /// The next line, or `None` at the end of the file.
+    pub fn next_line(&mut self) -> Result<Option<Line<'_>>> {
+        self.buf.clear();
+        let n =
+            self.reader.read_until(b'\n', &mut self.buf).map_err(|e| Error::io(&self.path, e))?;
+        if n == 0 {
+            return Ok(None);
+        }
+        self.number += 1;
+        let mut bytes: &[u8] = &self.buf;
+        if let Some(rest) = bytes.strip_suffix(b"\n") {
+            bytes = rest;
+        }
+        if let Some(rest) = bytes.strip_suffix(b"\r") {
+            bytes = rest;
+        }
+        Ok(Some(Line { number: self.number, text: std::str::from_utf8(bytes) }))
+    }
+}
+
+/// The first line of `path` that holds something other than whitespace, as
+/// an owned string with its number; `None` when the file is empty or blank.
+/// Readers that choose a layout by content call this before reading for real.
+pub(super) fn first_non_blank_line(
+    path: &Path,
+) -> Result<Option<(u64, std::result::Result<String, Utf8Error>)>> {
+    let mut lines = Lines::open(path)?;
+    while let Some(line) = lines.next_line()? {
+        match line.text {
+            Ok(text) if text.trim().is_empty() => continue,
+            Ok(text) => return Ok(Some((line.number, Ok(text.to_string())))),
+            Err(e) => return Ok(Some((line.number, Err(e)))),
+        }
+    }
+    Ok(None)
+}
+
+/// The message for bytes that are not UTF-8, naming the first bad byte
+/// (1-based) within `what` ("the line", "the field").
+pub(super) fn utf8_message(err: Utf8Error, what: &str) -> String {
+    format!(
+        "expected UTF-8 text, found an invalid byte sequence at byte {} of {what}",
+        err.valid_up_to() + 1
+    )
+}
+
+/// A found value quoted for a message (`"deu-CH"`), cut after
+/// [`MAX_QUOTED_CHARS`] characters.
+pub(super) fn quoted(value: &str) -> String {
+    match value.char_indices().nth(MAX_QUOTED_CHARS) {
+        Some((cut, _)) => format!("{:?}…", &value[..cut]),
+        None => format!("{value:?}"),
+    }
+}
+
+/// The message prefix naming a CSV column or a JSON field.
+pub(super) fn in_column(column: &str, message: &str) -> String {
+    format!("column {column:?}: {message}")
+}
+
+/// Check an id value: surrounding whitespace is removed (ids are compared as
+/// strings across files, and a stray space would silently break the match);
+/// an empty id is an error.
+pub(super) fn check_id(raw: &str) -> std::result::Result<&str, String> {
+    let id = raw.trim();
+    if id.is_empty() {
+        Err(format!("expected a non-empty id, found {}", quoted(raw)))
+    } else {
+        Ok(id)
+    }
+}
+
+/// Check an optional language value: empty (after trimming) means absent,
+/// anything else must be an ISO 639-1 code.
+pub(super) fn check_lang(raw: &str) -> std::result::Result<Option<LangCode>, String> {
+    let value = raw.trim();
+    if value.is_empty() {
+        return Ok(None);
+    }
+    LangCode::parse(value).map(Some).ok_or_else(|| LangCode::error_message(value))
+}
+
+/// A reader that remembers the byte offsets of the `\n` bytes it has passed
+/// on but the CSV parser has not yet moved beyond (a buffer's worth at most),
+/// so [`CsvTable`] can tell whether a record ended with `\n`.
+struct LineIndex<R> {
+    inner: R,
+    offset: u64,
+    newlines: VecDeque<u64>,
+}
+
+impl<R: Read> Read for LineIndex<R> {
+    fn read(&mut self, buf: &mut [u8]) -> std::io::Result<usize> {
+        let n = self.inner.read(buf)?;
+        let read = buf.get(..n).unwrap_or(&[]);
+        for (i, _) in read.iter().enumerate().filter(|(_, &b)| b == b'\n') {
+            self.newlines.push_back(self.offset + i as u64);
+        }
+        self.offset += n as u64;
+        Ok(n)
+    }
+}
+
+impl<R> LineIndex<R> {
+    /// True when the byte just before offset `end` is `\n`. Offsets before
+    /// it are forgotten: the parser only moves forward.
+    fn newline_before(&mut self, end: u64) -> bool {
+        let Some(last) = end.checked_sub(1) else { return false };
+        while self.newlines.front().is_some_and(|&o| o < last) {
+            self.newlines.pop_front();
+        }
+        self.newlines.front() == Some(&last)
+    }
+}
+
+/// A CSV file whose columns are located by header name (order free, extra
+/// columns ignored), read record by record.
+pub(super) struct CsvTable {
+    path: PathBuf,
+    reader: csv::Reader<LineIndex<BufReader<File>>>,
+    header: Vec<String>,
+    header_line: u64,
+    record: csv::ByteRecord,
+}
+
+/// One CSV record whose field count matches the header and whose fields are
+/// UTF-8.
+pub(super) struct Row {
+    /// Physical line where the record starts.
+    pub line: u64,
+    fields: csv::StringRecord,
+}
+
+impl Row {
+    /// The field at `column` (an index from [`CsvTable::columns`], so always
+    /// present; `""` otherwise).
+    pub fn get(&self, column: usize) -> &str {
+        self.fields.get(column).unwrap_or("")
+    }
+
+    /// The field at an optional column; `""` when the column is absent.
+    pub fn get_opt(&self, column: Option<usize>) -> &str {
+        column.map_or("", |c| self.get(c))
+    }
+}
+
+impl CsvTable {
+    /// Open `path` and read its header. `expected` describes the header for
+    /// the message about an empty file (for example `"query_id,text"`).
+    pub fn open(path: &Path, expected: &str) -> Result<CsvTable> {
+        let reader = csv::ReaderBuilder::new()
+            .has_headers(true)
+            // Field counts are checked per record to report every bad line
+            // with its number instead of stopping at the first.
+            .flexible(true)
+            .from_reader(LineIndex { inner: open(path)?, offset: 0, newlines: VecDeque::new() });
+        let mut table = CsvTable {
+            path: path.to_path_buf(),
+            reader,
+            header: Vec::new(),
+            header_line: 1,
+            record: csv::ByteRecord::new(),
+        };
+        let raw = table.reader.byte_headers().map_err(|e| wrap_csv(path, e))?.clone();
+        if raw.is_empty() {
+            return Err(Error::in_file(
+                path,
+                format!("expected a CSV header {}, found an empty file", quoted(expected)),
+            ));
+        }
+        table.header_line = table.start_line(&raw);
+        for (i, field) in raw.iter().enumerate() {
+            match std::str::from_utf8(field) {
+                Ok(name) => table.header.push(name.trim().to_string()),
+                Err(e) => {
+                    let what = format!("header field {}", i + 1);
+                    return Err(Error::at_line(path, table.header_line, utf8_message(e, &what)));
+                }
+            }
+        }
+        Ok(table)
+    }
+
+    /// Locate the `required` and `optional` columns by name. A missing
+    /// required column or a column named twice is one error at the header
+    /// line that lists the header found.
+    pub fn columns<const R: usize, const O: usize>(
+        &self,
+        required: [&str; R],
+        optional: [&str; O],
+    ) -> Result<([usize; R], [Option<usize>; O])> {
+        let mut problems = Problems::new(&self.path);
+        for name in required.iter().chain(optional.iter()) {
+            let positions: Vec<String> = self
+                .header
+                .iter()
+                .enumerate()
+                .filter(|(_, h)| h == name)
+                .map(|(i, _)| (i + 1).to_string())
+                .collect();
+            if positions.len() > 1 {
+                problems.push(
+                    self.header_line,
+                    format!(
+                        "column {name:?} appears {} times in the header (fields {})",
+                        positions.len(),
+                        positions.join(", ")
+                    ),
+                );
+            }
+        }
+        let missing: Vec<String> =
+            required.iter().filter(|n| self.find(n).is_none()).map(|n| format!("{n:?}")).collect();
+        if !missing.is_empty() {
+            let plural = if missing.len() > 1 { "s" } else { "" };
+            let all: Vec<String> = required.iter().map(|n| format!("{n:?}")).collect();
+            let optional_note = if O > 0 {
+                let names: Vec<String> = optional.iter().map(|n| format!("{n:?}")).collect();
+                format!(" (optional: {})", names.join(", "))
+            } else {
+                String::new()
+            };
+            problems.push(
+                self.header_line,
+                format!(
+                    "missing column{plural} {}: expected a header with columns {}{optional_note}, \
+                     found {}",
+                    missing.join(", "),
+                    all.join(", "),
+                    quoted(&self.header.join(","))
+                ),
+            );
+        }
+        problems.finish(())?;
+        let required = required.map(|n| self.find(n).expect("missing columns returned above"));
+        Ok((required, optional.map(|n| self.find(n))))
+    }
+
+    /// The physical line where `record`, just read, starts (module docs).
+    fn start_line(&mut self, record: &csv::ByteRecord) -> u64 {
+        let after = self.reader.position().clone();
+        let inner_newlines: u64 =
+            record.iter().map(|f| f.iter().filter(|&&b| b == b'\n').count() as u64).sum();
+        let ended_with_newline = u64::from(self.reader.get_mut().newline_before(after.byte()));
+        after.line().saturating_sub(ended_with_newline + inner_newlines).max(1)
+    }
+
+    fn find(&self, name: &str) -> Option<usize> {
+        self.header.iter().position(|h| h == name)
+    }
+
+    /// The next record that has as many fields as the header and is valid
+    /// UTF-8; records that are not are recorded in `problems` and skipped.
+    /// Records made of one blank field (a line of spaces) are skipped like
+    /// the empty lines the CSV parser already skips.
+    pub fn next_row(&mut self, problems: &mut Problems) -> Result<Option<Row>> {
+        loop {
+            let more = self
+                .reader
+                .read_byte_record(&mut self.record)
+                .map_err(|e| wrap_csv(&self.path, e))?;
+            if !more {
+                return Ok(None);
+            }
+            let record = std::mem::take(&mut self.record);
+            let line = self.start_line(&record);
+            self.record = record;
+            if self.record.len() == 1 && self.record.iter().all(|f| f.trim_ascii().is_empty()) {
+                continue;
+            }
+            if self.record.len() != self.header.len() {
+                problems.push(
+                    line,
+                    format!(
+                        "expected {} fields as in the header, found {}",
+                        self.header.len(),
+                        self.record.len()
+                    ),
+                );
+                continue;
+            }
+            match csv::StringRecord::from_byte_record(std::mem::take(&mut self.record)) {
+                Ok(fields) => return Ok(Some(Row { line, fields })),
+                Err(e) => {
+                    let field = e.utf8_error().field();
+                    let name = self.header.get(field).map_or("?", String::as_str);
+                    let what = in_column(name, &utf8_message_field(e.utf8_error()));
+                    problems.push(line, what);
+                    self.record = e.into_byte_record();
+                }
+            }
+        }
+    }
+}
+
+/// The UTF-8 message for a CSV field (csv's error gives the byte offset).
+fn utf8_message_field(err: &csv::Utf8Error) -> String {
+    format!(
+        "expected UTF-8 text, found an invalid byte sequence at byte {} of the field",
+        err.valid_up_to() + 1
+    )
+}
+
+/// Add the path (and line, when csv knows it) to a csv error.
+fn wrap_csv(path: &Path, err: csv::Error) -> Error {
+    let line = err.position().map(csv::Position::line);
+    let message = format!("CSV error: {err}");
+    match err.into_kind() {
+        csv::ErrorKind::Io(e) => Error::io(path, e),
+        _ => match line {
+            Some(line) => Error::at_line(path, line, message),
+            None => Error::in_file(path, message),
+        },
+    }
+}
+
+/// Helpers shared by the readers' unit tests.
+#[cfg(test)]
+pub(super) mod testutil {
+    use std::io::Write;
+    use std::path::PathBuf;
+
+    /// A temp dir holding one file `name` with `content`; keep the dir alive
+    /// while the path is used.
+    pub fn temp_file(name: &str, content: &[u8]) -> (tempfile::TempDir, PathBuf) {
+        let dir = tempfile::tempdir().expect("temp dir");
+        let path = dir.path().join(name);
+        let mut f = std::fs::File::create(&path).expect("create temp file");
+        f.write_all(content).expect("write temp file");
+        (dir, path)
+    }
+
+    /// The shared Cranfield directory (`../shared/data/cranfield`), or `None`
+    /// with a printed reason when it is absent (the test then skips).
+    pub fn cranfield_dir() -> Option<PathBuf> {
+        let dir = PathBuf::from(concat!(env!("CARGO_MANIFEST_DIR"), "/../shared/data/cranfield"));
+        if dir.is_dir() {
+            Some(dir)
+        } else {
+            eprintln!("skipped: shared data {} is absent", dir.display());
+            None
+        }
+    }
+
+    /// The counts `scripts/cranfield_input_counts.py` computed with Python's
+    /// csv and json modules.
+    pub fn cranfield_counts() -> serde_json::Value {
+        let path =
+            concat!(env!("CARGO_MANIFEST_DIR"), "/tests/fixtures/input/cranfield_counts.json");
+        let text = std::fs::read_to_string(path).expect("fixture is committed");
+        serde_json::from_str(&text).expect("fixture is JSON")
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use std::io::Write;
+
+    fn file_with(bytes: &[u8]) -> tempfile::NamedTempFile {
+        let mut f = tempfile::NamedTempFile::new().expect("temp file");
+        f.write_all(bytes).expect("write temp file");
+        f
+    }
+
+    #[test]
+    fn lines_strip_bom_and_crlf_and_count_physically() {
+        let f = file_with(b"\xEF\xBB\xBFfirst\r\n\r\nthird\nlast");
+        let mut lines = Lines::open(f.path()).expect("opens");
+        let mut seen = Vec::new();
+        while let Some(line) = lines.next_line().expect("reads") {
+            seen.push((line.number, line.text.expect("utf-8").to_string()));
+        }
+        let expected = [(1, "first"), (2, ""), (3, "third"), (4, "last")];
+        let expected: Vec<(u64, String)> =
+            expected.iter().map(|(n, s)| (*n, s.to_string())).collect();
+        assert_eq!(seen, expected);
+    }
+
+    #[test]
+    fn first_non_blank_line_skips_blank_lines() {
+        let f = file_with(b"\n  \t\r\n  x y\n");
+        let (n, text) = first_non_blank_line(f.path()).expect("reads").expect("has a line");
+        assert_eq!((n, text.expect("utf-8")), (3, "  x y".to_string()));
+        let blank = file_with(b"\n\r\n");
+        assert!(first_non_blank_line(blank.path()).expect("reads").is_none());
+    }
+
+    #[test]
+    fn quoted_cuts_long_values() {
+        assert_eq!(quoted("deu-CH"), r#""deu-CH""#);
+        let long = "é".repeat(100);
+        let q = quoted(&long);
+        assert_eq!(q.chars().count(), MAX_QUOTED_CHARS + 3);
+        assert!(q.ends_with("\"…"));
+    }
+
+    #[test]
+    fn check_id_trims_and_rejects_empty() {
+        assert_eq!(check_id("  q7 "), Ok("q7"));
+        assert_eq!(check_id(" "), Err(r#"expected a non-empty id, found " ""#.to_string()));
+    }
+
+    #[test]
+    fn csv_columns_are_found_by_name_in_any_order() {
+        let f = file_with(b"extra, text ,query_id\nx,hello,q1\n");
+        let table = CsvTable::open(f.path(), "query_id,text").expect("opens");
+        let ([q, t], [lang]) = table.columns(["query_id", "text"], ["lang"]).expect("found");
+        assert_eq!((q, t, lang), (2, 1, None));
+    }
+
+    #[test]
+    fn csv_missing_and_duplicate_columns_are_reported_at_the_header() {
+        let f = file_with(b"\n\nquery_id,text,text\n");
+        let table = CsvTable::open(f.path(), "query_id,doc_id").expect("opens");
+        let err = table.columns(["query_id", "doc_id"], []).expect_err("doc_id missing");
+        let msg = err.to_string();
+        assert!(!msg.contains("appears"), "text is not asked for, so not checked: {msg}");
+        assert!(msg.contains(r#":3: missing column "doc_id": expected a header with columns "query_id", "doc_id", found "query_id,text,text""#), "{msg}");
+        let dup = table.columns(["query_id", "text"], []).expect_err("text twice");
+        assert!(
+            dup.to_string()
+                .contains(r#":3: column "text" appears 2 times in the header (fields 2, 3)"#),
+            "{dup}"
+        );
+    }
+
+    fn csv_lines(bytes: &[u8]) -> (u64, Vec<(u64, String)>) {
+        let f = file_with(bytes);
+        let mut table = CsvTable::open(f.path(), "a,b").expect("opens");
+        let mut problems = Problems::new(f.path());
+        let mut rows = Vec::new();
+        while let Some(row) = table.next_row(&mut problems).expect("reads") {
+            rows.push((row.line, row.get(0).to_string()));
+        }
+        problems.finish(()).expect("no problems");
+        (table.header_line, rows)
+    }
+
+    #[test]
+    fn csv_lines_are_where_records_start_despite_blank_lines() {
+        // Line 1-2 blank, header 3, blank 4-5, x 6, quoted field 7-8, blank 9, last 10.
+        let lf = csv_lines(b"\n\na,b\n\n\nx,y\n\"multi\nline\",z\n\r\n1,2\r\n");
+        let expected =
+            vec![(6, "x".to_string()), (7, "multi\nline".to_string()), (10, "1".to_string())];
+        assert_eq!(lf, (3, expected));
+        // CRLF throughout, no final line end: header 1, blank 2, x 3, quoted 4-5, last 6.
+        let crlf = csv_lines(b"\xEF\xBB\xBFa,b\r\n\r\nx,y\r\n\"m\r\nl\",z\r\n3,4");
+        let expected = vec![(3, "x".to_string()), (4, "m\r\nl".to_string()), (6, "3".to_string())];
+        assert_eq!(crlf, (1, expected));
+    }
+}

@@ -1,0 +1,267 @@
+//! Built chains: turns a validated [`ChainSpec`] into tantivy analyzers (one
+//! per index field) and answers which field a post goes to and which fields
+//! a query searches.
+//!
+//! Place in the data flow: `analysis` stage, called by the indexer. A plain
+//! chain has one field, `text`. A routed chain has one field per routed
+//! language (`text_en`, `text_de`, …, in the route's order) and a last
+//! field for everything else, `text_other`. The orchestrator detects each
+//! post's and query's language once (with [`Analyzer::detector`]) and passes
+//! the result in; routing never detects again.
+//!
+//! Chains are assembled at run time with tantivy's `filter_dynamic`, which
+//! boxes the stream after each step (tantivy's documented way of building a
+//! chain from a list).
+
+use std::fmt;
+use std::sync::Arc;
+
+use tantivy::tokenizer::{TextAnalyzer, TextAnalyzerBuilder};
+
+use super::detect::{Detection, LangDetector};
+use super::drop_tokens::DropTokens;
+use super::edge_ngrams::EdgeNgrams;
+use super::elision::Elision;
+use super::fold::Fold;
+use super::hashtag::{HashtagSplit, WordFreqs};
+use super::length_limit::LengthLimit;
+use super::lowercase::Lowercase;
+use super::post_tokenizer::PostTokenizer;
+use super::spec::{
+    ChainBody, ChainSpec, Pipeline, PostRouting, QueryRouting, RouteSpec, StepSpec, TagVocabulary,
+    TokenizerKind,
+};
+use super::stem::Stem;
+use super::stop_words::StopWords;
+use super::whitespace_tokenizer::WhitespaceTokenizer;
+use super::word_tokenizer::WordTokenizer;
+use crate::error::{Error, Result};
+use crate::ids::ChainName;
+use crate::input::LangCode;
+
+/// What building a chain may need from the corpus.
+#[derive(Clone, Debug, Default)]
+pub struct AnalysisContext {
+    /// Word frequencies for the `hashtags` step's segmentation of
+    /// all-lowercase tags (see [`ChainSpec::needs_word_freqs`]). When a chain
+    /// needs them and this is `None`, tags split only on case, digit and
+    /// underscore boundaries.
+    pub word_freqs: Option<Arc<WordFreqs>>,
+}
+
+/// One index field and the analyzer of its text.
+#[derive(Clone)]
+pub struct FieldAnalyzer {
+    /// The field's name: `text` for a plain chain, `text_<lang>` or
+    /// `text_other` for a routed one.
+    pub key: String,
+    /// The routed language of the field (`None` for `text` and `text_other`).
+    pub language: Option<LangCode>,
+    /// The analyzer (clone it for each thread).
+    pub analyzer: TextAnalyzer,
+}
+
+impl fmt::Debug for FieldAnalyzer {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.debug_struct("FieldAnalyzer")
+            .field("key", &self.key)
+            .field("language", &self.language)
+            .finish_non_exhaustive()
+    }
+}
+
+/// A built chain: its fields' analyzers and, for a routed chain, its
+/// detector and routing rules.
+#[derive(Clone, Debug)]
+pub struct Analyzer {
+    spec: ChainSpec,
+    fields: Vec<FieldAnalyzer>,
+    detector: Option<LangDetector>,
+}
+
+/// Name of a plain chain's only field.
+pub const PLAIN_FIELD: &str = "text";
+
+/// Name of a routed chain's fallback field.
+pub const FALLBACK_FIELD: &str = "text_other";
+
+impl Analyzer {
+    /// Build the analyzers of `spec`.
+    ///
+    /// ```
+    /// use postassay::analysis::{builtin_chains, AnalysisContext, Analyzer};
+    /// use postassay::input::LangCode;
+    ///
+    /// let chains = builtin_chains(LangCode::parse("en").unwrap()).unwrap();
+    /// let stemmed = chains.iter().find(|c| c.name.as_str() == "stemmed").unwrap();
+    /// let analyzer = Analyzer::build(stemmed, &AnalysisContext::default()).unwrap();
+    /// let mut text = analyzer.fields()[0].analyzer.clone();
+    /// let mut stream = text.token_stream("Running ponies");
+    /// assert_eq!(stream.next().unwrap().text, "run");
+    /// assert_eq!(stream.next().unwrap().text, "poni");
+    /// ```
+    pub fn build(spec: &ChainSpec, ctx: &AnalysisContext) -> Result<Analyzer> {
+        let (fields, detector) = match &spec.body {
+            ChainBody::Plain(pipeline) => {
+                let field = FieldAnalyzer {
+                    key: PLAIN_FIELD.to_string(),
+                    language: None,
+                    analyzer: build_pipeline(pipeline, ctx)?,
+                };
+                (vec![field], None)
+            }
+            ChainBody::Routed { route } => {
+                let mut fields = Vec::with_capacity(route.branches.len() + 1);
+                for branch in &route.branches {
+                    fields.push(FieldAnalyzer {
+                        key: format!("text_{}", branch.language),
+                        language: Some(branch.language),
+                        analyzer: build_pipeline(&branch.pipeline, ctx)?,
+                    });
+                }
+                fields.push(FieldAnalyzer {
+                    key: FALLBACK_FIELD.to_string(),
+                    language: None,
+                    analyzer: build_pipeline(&route.fallback, ctx)?,
+                });
+                let detector =
+                    LangDetector::new(Some(route.languages.clone()), route.min_confidence)
+                        .map_err(|e| Error::chain(format!("chain {:?}: {e}", spec.name.as_str())))?;
+                (fields, Some(detector))
+            }
+        };
+        Ok(Analyzer { spec: spec.clone(), fields, detector })
+    }
+
+    /// The chain's name.
+    pub fn name(&self) -> &ChainName {
+        &self.spec.name
+    }
+
+    /// The specification the chain was built from.
+    pub fn spec(&self) -> &ChainSpec {
+        &self.spec
+    }
+
+    /// The fields: one for a plain chain; one per routed language and then
+    /// the fallback for a routed chain.
+    pub fn fields(&self) -> &[FieldAnalyzer] {
+        &self.fields
+    }
+
+    /// The language detector of a routed chain (restricted to its languages,
+    /// with its confidence floor); `None` for a plain chain.
+    pub fn detector(&self) -> Option<&LangDetector> {
+        self.detector.as_ref()
+    }
+
+    /// The field a post is indexed in, from its declared language and its
+    /// detection (see [`PostRouting`]). Always 0 for a plain chain.
+    pub fn field_for_post(&self, declared: Option<LangCode>, detected: Option<&Detection>) -> usize {
+        let Some(route) = self.spec.route() else { return 0 };
+        match (route.posts, declared) {
+            (PostRouting::Declared, Some(lang)) => self.field_of(route, lang),
+            _ => self.field_of_detection(route, detected),
+        }
+    }
+
+    /// The fields a query searches, from its declared language and its
+    /// detection (see [`QueryRouting`]). Always `[0]` for a plain chain.
+    pub fn fields_for_query(
+        &self,
+        declared: Option<LangCode>,
+        detected: Option<&Detection>,
+    ) -> Vec<usize> {
+        let Some(route) = self.spec.route() else { return vec![0] };
+        match (route.queries, declared) {
+            (QueryRouting::Every, _) => (0..self.fields.len()).collect(),
+            (QueryRouting::Declared, Some(lang)) => vec![self.field_of(route, lang)],
+            _ => vec![self.field_of_detection(route, detected)],
+        }
+    }
+
+    /// The field of a language: its branch, else the fallback.
+    fn field_of(&self, route: &RouteSpec, lang: LangCode) -> usize {
+        route.branches.iter().position(|b| b.language == lang).unwrap_or(route.branches.len())
+    }
+
+    /// The field of a detection that is confident enough, else the fallback.
+    fn field_of_detection(&self, route: &RouteSpec, detected: Option<&Detection>) -> usize {
+        match detected {
+            Some(d) if d.confidence >= route.min_confidence => self.field_of(route, d.lang),
+            _ => route.branches.len(),
+        }
+    }
+}
+
+/// Build the analyzer of one pipeline.
+pub fn build_pipeline(pipeline: &Pipeline, ctx: &AnalysisContext) -> Result<TextAnalyzer> {
+    build_prefix(pipeline, pipeline.steps.len(), ctx)
+}
+
+/// Build the analyzer of a pipeline's tokenizer and its first `steps` steps.
+pub(crate) fn build_prefix(
+    pipeline: &Pipeline,
+    steps: usize,
+    ctx: &AnalysisContext,
+) -> Result<TextAnalyzer> {
+    let mut builder: TextAnalyzerBuilder = match pipeline.tokenizer {
+        TokenizerKind::Words => TextAnalyzer::builder(WordTokenizer::default()).dynamic(),
+        TokenizerKind::Posts => TextAnalyzer::builder(PostTokenizer::default()).dynamic(),
+        TokenizerKind::Whitespace => TextAnalyzer::builder(WhitespaceTokenizer::default()).dynamic(),
+    };
+    for step in pipeline.steps.iter().take(steps) {
+        builder = add_step(builder, step, ctx)?;
+    }
+    Ok(builder.build())
+}
+
+/// Append one step. Settings a validated spec cannot hold (a missing or
+/// unsupported language) are reported as chain errors, not panics, since
+/// specs can also be built in code.
+fn add_step(
+    builder: TextAnalyzerBuilder,
+    step: &StepSpec,
+    ctx: &AnalysisContext,
+) -> Result<TextAnalyzerBuilder> {
+    let unsupported = |what: &str| Error::chain(format!("step {}: {what}", step.label()));
+    Ok(match step {
+        StepSpec::Lowercase { language } => builder.filter_dynamic(Lowercase {
+            turkic: language.is_some_and(|l| matches!(l.as_str(), "tr" | "az")),
+        }),
+        StepSpec::Fold {} => builder.filter_dynamic(Fold),
+        StepSpec::Stop { language } => {
+            let lang = language.ok_or_else(|| unsupported("needs a language"))?;
+            builder.filter_dynamic(
+                StopWords::new(lang).ok_or_else(|| unsupported("no stop list for the language"))?,
+            )
+        }
+        StepSpec::Stem { language, generation } => {
+            let lang = language.ok_or_else(|| unsupported("needs a language"))?;
+            builder.filter_dynamic(
+                Stem::new(lang, *generation)
+                    .ok_or_else(|| unsupported("no stemmer for the language"))?,
+            )
+        }
+        StepSpec::Elision { language } => builder.filter_dynamic(
+            Elision::new(*language).ok_or_else(|| unsupported("no prefix list for the language"))?,
+        ),
+        StepSpec::Length { min, max } => {
+            builder.filter_dynamic(LengthLimit { min: *min, max: *max })
+        }
+        StepSpec::EdgeNgrams { min, max } => {
+            if *min == 0 || min > max {
+                return Err(unsupported("needs 1 ≤ min ≤ max"));
+            }
+            builder.filter_dynamic(EdgeNgrams { min: *min, max: *max })
+        }
+        StepSpec::Drop { kinds } => builder.filter_dynamic(DropTokens::new(kinds)),
+        StepSpec::Hashtags { vocabulary } => {
+            let freqs = match vocabulary {
+                TagVocabulary::Corpus => ctx.word_freqs.clone(),
+                TagVocabulary::None => None,
+            };
+            builder.filter_dynamic(HashtagSplit::new(freqs))
+        }
+    })
+}

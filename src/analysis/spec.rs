@@ -1,0 +1,1007 @@
+//! Chain specifications: analysis chains as data, read from TOML chain files
+//! (and from the built-in `chains/builtin.toml`), validated with errors that
+//! name the file, the line and the accepted values.
+//!
+//! Place in the data flow: `analysis` stage. The CLI reads chain files into
+//! [`ChainSpec`]s; [`Analyzer::build`](super::Analyzer::build) turns one into
+//! tantivy analyzers; `report.json` records the specs (they serialize).
+//!
+//! # File layout
+//!
+//! ```toml
+//! [[chain]]
+//! name = "stemmed_de"                 # letters, digits, '_', '-', '.'
+//! description = "German, stemmed"     # optional
+//! tokenizer = "words"                 # words (default) | posts | whitespace
+//! steps = [
+//!   { step = "lowercase" },
+//!   { step = "stem", language = "de", generation = "current" },
+//! ]
+//!
+//! [[chain]]
+//! name = "by_language"
+//! [chain.route]                       # a routed chain: one field per language
+//! languages = ["en", "de"]
+//! min_confidence = 0.5                # default 0.5
+//! posts = "declared"                  # declared (default) | detected
+//! queries = "declared"                # declared (default) | detected | every
+//! tokenizer = "words"                 # each language's chain (default words)
+//! steps = [{ step = "lowercase" }, { step = "stem" }]   # (the default)
+//! fallback = "standard"               # a plain chain's name, or an inline
+//!                                     # { tokenizer = …, steps = […] }
+//! [chain.route.language.de]           # optional per-language override
+//! steps = [{ step = "lowercase" }, { step = "stem" }, { step = "fold" }]
+//! ```
+//!
+//! In a route's `steps`, `stem` and `stop` without a `language` take each
+//! branch's language, and so does `lowercase` (which only changes behaviour
+//! for `tr` and `az`).
+//!
+//! # Steps and their options (defaults in brackets)
+//!
+//! | step | options |
+//! |---|---|
+//! | `lowercase` | `language` [none; `tr`/`az` use the Turkic i rules] |
+//! | `fold` | – |
+//! | `stop` | `language` (required outside routes) |
+//! | `stem` | `language` (required outside routes), `generation` = `"2018"` \| `"current"` [current] |
+//! | `elision` | `language` = `fr` \| `it` \| `ca` [all three] |
+//! | `length` | `min` [1], `max` [40] (characters) |
+//! | `edge_ngrams` | `min` [2], `max` [15] |
+//! | `drop` | `kinds` = list of `mentions` `urls` `emoji` `numbers` `hashtags` |
+//! | `hashtags` | `vocabulary` = `"corpus"` \| `"none"` [corpus] |
+//!
+//! # Orders that are rejected, and why
+//!
+//! - `stem` and `stop` need a `lowercase` step before them: Snowball's rules
+//!   and the stop lists are lower case, so capitalised words would slip by.
+//! - `stop` and `elision` must come before `stem`: stop lists and elided
+//!   prefixes are surface forms, which stemming changes.
+//! - `fold` before `stem` is rejected except for English and Dutch: every
+//!   other Snowball algorithm has accented letters in its suffix rules
+//!   (`-ität`, `-ción`, `-ità` …), which folding would remove first. (Dutch's
+//!   algorithm removes its accents itself.) `fold` before `stop` is rejected
+//!   except for English, because the other stop lists hold accented words.
+//! - `hashtags` must come before `lowercase` (it splits `#CamelCase` at case
+//!   changes) and needs the `posts` or `whitespace` tokenizer (`words` drops
+//!   the `#`). `drop` of mentions, URLs, emoji or hashtags also needs one of
+//!   those tokenizers, and dropping hashtags after `hashtags` finds none.
+//! - Nothing but `length`, `lowercase`, `fold` and `drop` may follow
+//!   `edge_ngrams`: stemming, stop-listing or splitting prefixes is nonsense.
+//! - `stem` and `hashtags` may appear once per chain.
+
+use std::collections::{BTreeMap, BTreeSet};
+use std::ops::Range;
+use std::path::Path;
+
+use serde::{Deserialize, Serialize};
+use toml::Spanned;
+
+use super::detect;
+use super::drop_tokens::DropKind;
+use super::elision::ELISION_LANGUAGES;
+use super::stem::{stem_languages, StemGeneration};
+use super::stop_words::stop_languages;
+use crate::error::{Error, Result, MAX_LISTED_PROBLEMS};
+use crate::ids::ChainName;
+use crate::input::LangCode;
+
+/// The built-in chains' file, embedded.
+pub const BUILTIN_CHAINS_TOML: &str = include_str!("../../chains/builtin.toml");
+
+/// The name under which the built-in chain file is reported in messages.
+const BUILTIN_ORIGIN: &str = "chains/builtin.toml";
+
+/// Default detection confidence floor of a route.
+pub const DEFAULT_MIN_CONFIDENCE: f64 = 0.5;
+
+/// Which tokenizer starts a chain.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum TokenizerKind {
+    /// UAX #29 words with a letter or digit ([`WordTokenizer`](super::WordTokenizer)).
+    Words,
+    /// Post-aware: tags, mentions, URLs and emoji whole, the rest as words
+    /// ([`PostTokenizer`](super::PostTokenizer)).
+    Posts,
+    /// Split on Unicode white space only ([`WhitespaceTokenizer`](super::WhitespaceTokenizer)).
+    Whitespace,
+}
+
+impl TokenizerKind {
+    /// The name used in chain files.
+    pub fn as_str(self) -> &'static str {
+        match self {
+            TokenizerKind::Words => "words",
+            TokenizerKind::Posts => "posts",
+            TokenizerKind::Whitespace => "whitespace",
+        }
+    }
+}
+
+/// Where the `hashtags` step gets word frequencies for all-lowercase tags.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Hash, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum TagVocabulary {
+    /// Words learned from the corpus (given in the
+    /// [`AnalysisContext`](super::AnalysisContext)); without them, splitting
+    /// falls back to case, digit and underscore boundaries.
+    #[default]
+    Corpus,
+    /// Split on case, digit and underscore boundaries only.
+    None,
+}
+
+fn default_generation() -> StemGeneration {
+    StemGeneration::Current
+}
+fn default_length_min() -> usize {
+    1
+}
+fn default_length_max() -> usize {
+    40
+}
+fn default_ngram_min() -> usize {
+    2
+}
+fn default_ngram_max() -> usize {
+    15
+}
+
+/// One step of a chain (a token filter with its settings).
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(tag = "step", rename_all = "snake_case", deny_unknown_fields)]
+pub enum StepSpec {
+    /// Full Unicode lower-casing ([`Lowercase`](super::Lowercase)).
+    Lowercase {
+        /// `tr`/`az` select the Turkic dotted/dotless i rules.
+        #[serde(default, skip_serializing_if = "Option::is_none")]
+        language: Option<LangCode>,
+    },
+    /// Diacritic removal ([`Fold`](super::Fold)).
+    Fold {},
+    /// Stop-word removal ([`StopWords`](super::StopWords)).
+    Stop {
+        /// The list's language (taken from the branch in a route).
+        #[serde(default)]
+        language: Option<LangCode>,
+    },
+    /// Snowball stemming ([`Stem`](super::Stem)).
+    Stem {
+        /// The algorithm's language (taken from the branch in a route).
+        #[serde(default)]
+        language: Option<LangCode>,
+        /// Which generation of the algorithms.
+        #[serde(default = "default_generation")]
+        generation: StemGeneration,
+    },
+    /// Elided-article removal ([`Elision`](super::Elision)).
+    Elision {
+        /// `fr`, `it` or `ca`; all three when absent.
+        #[serde(default, skip_serializing_if = "Option::is_none")]
+        language: Option<LangCode>,
+    },
+    /// Length bounds in characters ([`LengthLimit`](super::LengthLimit)).
+    Length {
+        /// Fewest characters kept.
+        #[serde(default = "default_length_min")]
+        min: usize,
+        /// Most characters kept.
+        #[serde(default = "default_length_max")]
+        max: usize,
+    },
+    /// Prefixes of each token ([`EdgeNgrams`](super::EdgeNgrams)).
+    EdgeNgrams {
+        /// Shortest prefix.
+        #[serde(default = "default_ngram_min")]
+        min: usize,
+        /// Longest prefix.
+        #[serde(default = "default_ngram_max")]
+        max: usize,
+    },
+    /// Removal of tokens by shape ([`DropTokens`](super::DropTokens)).
+    Drop {
+        /// The shapes to remove.
+        kinds: Vec<DropKind>,
+    },
+    /// Hashtag splitting ([`HashtagSplit`](super::hashtag::HashtagSplit)).
+    Hashtags {
+        /// Where word frequencies come from.
+        #[serde(default)]
+        vocabulary: TagVocabulary,
+    },
+}
+
+impl StepSpec {
+    /// The step's name in chain files.
+    pub fn name(&self) -> &'static str {
+        match self {
+            StepSpec::Lowercase { .. } => "lowercase",
+            StepSpec::Fold {} => "fold",
+            StepSpec::Stop { .. } => "stop",
+            StepSpec::Stem { .. } => "stem",
+            StepSpec::Elision { .. } => "elision",
+            StepSpec::Length { .. } => "length",
+            StepSpec::EdgeNgrams { .. } => "edge_ngrams",
+            StepSpec::Drop { .. } => "drop",
+            StepSpec::Hashtags { .. } => "hashtags",
+        }
+    }
+
+    /// A short human-readable label with the settings (`stem(de, current)`).
+    pub fn label(&self) -> String {
+        let lang = |l: &Option<LangCode>| l.map_or(String::new(), |l| l.to_string());
+        match self {
+            StepSpec::Lowercase { language: Some(l) } => format!("lowercase({l})"),
+            StepSpec::Stop { language } => format!("stop({})", lang(language)),
+            StepSpec::Stem { language, generation } => {
+                format!("stem({}, {})", lang(language), generation.as_str())
+            }
+            StepSpec::Elision { language: Some(l) } => format!("elision({l})"),
+            StepSpec::Length { min, max } => format!("length({min}..={max})"),
+            StepSpec::EdgeNgrams { min, max } => format!("edge_ngrams({min}..={max})"),
+            StepSpec::Drop { kinds } => {
+                let kinds: Vec<&str> = kinds.iter().map(|k| k.as_str()).collect();
+                format!("drop({})", kinds.join(", "))
+            }
+            StepSpec::Hashtags { vocabulary: TagVocabulary::None } => "hashtags(none)".into(),
+            other => other.name().to_string(),
+        }
+    }
+}
+
+/// A tokenizer and its steps: one plain analysis chain.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize)]
+pub struct Pipeline {
+    /// The tokenizer.
+    pub tokenizer: TokenizerKind,
+    /// The steps, applied in order.
+    pub steps: Vec<StepSpec>,
+}
+
+impl Pipeline {
+    /// True when a `hashtags` step wants corpus word frequencies.
+    pub fn needs_word_freqs(&self) -> bool {
+        self.steps
+            .iter()
+            .any(|s| matches!(s, StepSpec::Hashtags { vocabulary: TagVocabulary::Corpus }))
+    }
+
+    /// `words + lowercase`.
+    fn standard() -> Pipeline {
+        Pipeline {
+            tokenizer: TokenizerKind::Words,
+            steps: vec![StepSpec::Lowercase { language: None }],
+        }
+    }
+}
+
+/// How a routed chain picks the field of a post.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Hash, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum PostRouting {
+    /// The post's declared `lang` when it has one (a routed language or else
+    /// the fallback); detection only for posts without one.
+    #[default]
+    Declared,
+    /// Detection only; declared languages are ignored.
+    Detected,
+}
+
+/// How a routed chain picks the fields a query searches.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Hash, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum QueryRouting {
+    /// The query's declared `lang`, else its detected language, else the
+    /// fallback field.
+    #[default]
+    Declared,
+    /// The detected language, else the fallback field.
+    Detected,
+    /// Every field (each language and the fallback).
+    Every,
+}
+
+/// One language's chain inside a route.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize)]
+pub struct Branch {
+    /// The language.
+    pub language: LangCode,
+    /// Its chain.
+    #[serde(flatten)]
+    pub pipeline: Pipeline,
+}
+
+/// The routing of a language-routed chain.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct RouteSpec {
+    /// The routed languages (detection is restricted to them), in file order.
+    pub languages: Vec<LangCode>,
+    /// Detections below this confidence go to the fallback.
+    pub min_confidence: f64,
+    /// How posts are routed.
+    pub posts: PostRouting,
+    /// How queries are routed.
+    pub queries: QueryRouting,
+    /// One chain per language, in the order of `languages`.
+    pub branches: Vec<Branch>,
+    /// The chain of everything else.
+    pub fallback: Pipeline,
+}
+
+/// What a chain is: one pipeline, or a route over several.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+#[serde(untagged)]
+pub enum ChainBody {
+    /// One field analysed by one pipeline.
+    Plain(Pipeline),
+    /// One field per language plus a fallback.
+    Routed {
+        /// The route.
+        route: RouteSpec,
+    },
+}
+
+/// A named, validated analysis chain.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct ChainSpec {
+    /// The chain's name (unique in a file).
+    pub name: ChainName,
+    /// Free text from the chain file.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub description: Option<String>,
+    /// The chain itself.
+    #[serde(flatten)]
+    pub body: ChainBody,
+}
+
+impl ChainSpec {
+    /// True when a `hashtags` step of the chain wants corpus word frequencies
+    /// in the [`AnalysisContext`](super::AnalysisContext).
+    pub fn needs_word_freqs(&self) -> bool {
+        self.pipelines().any(Pipeline::needs_word_freqs)
+    }
+
+    /// The route of a routed chain.
+    pub fn route(&self) -> Option<&RouteSpec> {
+        match &self.body {
+            ChainBody::Routed { route } => Some(route),
+            ChainBody::Plain(_) => None,
+        }
+    }
+
+    /// Every pipeline of the chain (one, or each branch and the fallback).
+    pub fn pipelines(&self) -> impl Iterator<Item = &Pipeline> {
+        let (plain, route) = match &self.body {
+            ChainBody::Plain(p) => (Some(p), None),
+            ChainBody::Routed { route } => (None, Some(route)),
+        };
+        plain.into_iter().chain(
+            route
+                .into_iter()
+                .flat_map(|r| r.branches.iter().map(|b| &b.pipeline).chain([&r.fallback])),
+        )
+    }
+}
+
+/// Read and validate a chain file. Plain chains named as a route's
+/// `fallback` are looked up in the file first, then among the built-ins.
+pub fn read_chain_file(path: &Path) -> Result<Vec<ChainSpec>> {
+    let bytes = std::fs::read(path).map_err(|e| Error::io(path, e))?;
+    let text = String::from_utf8(bytes).map_err(|e| {
+        Error::chain(format!("{}: not UTF-8 ({})", path.display(), e.utf8_error()))
+    })?;
+    let text = text.strip_prefix('\u{feff}').unwrap_or(&text);
+    let builtins = builtin_chains(LangCode::parse("en").expect("en is ISO 639-1"))?;
+    parse_chains(text, &path.display().to_string(), &builtins)
+}
+
+/// The built-in chains (`standard`, `stemmed`, `hashtag`, `routed`) from the
+/// embedded `chains/builtin.toml`, with `stemmed` stemming `stem_lang`.
+pub fn builtin_chains(stem_lang: LangCode) -> Result<Vec<ChainSpec>> {
+    let mut chains = parse_chains(BUILTIN_CHAINS_TOML, BUILTIN_ORIGIN, &[])?;
+    for chain in &mut chains {
+        if chain.name.as_str() != "stemmed" {
+            continue;
+        }
+        if let ChainBody::Plain(pipeline) = &mut chain.body {
+            for step in &mut pipeline.steps {
+                if let StepSpec::Stem { language, generation } = step {
+                    if !stem_languages(*generation).contains(&stem_lang) {
+                        return Err(Error::usage(format!(
+                            "stem language {:?} for the built-in chain \"stemmed\": no Snowball \
+                             stemmer ({} generation); accepted: {}",
+                            stem_lang.as_str(),
+                            generation.as_str(),
+                            join_codes(&stem_languages(*generation))
+                        )));
+                    }
+                    *language = Some(stem_lang);
+                }
+            }
+        }
+    }
+    Ok(chains)
+}
+
+/// Pick chains by a comma-separated list of names, in the list's order.
+/// Unknown or repeated names are errors that list the available names.
+pub fn select_chains(available: &[ChainSpec], names: &str) -> Result<Vec<ChainSpec>> {
+    let list = || available.iter().map(|c| c.name.as_str()).collect::<Vec<_>>().join(", ");
+    let mut chosen: Vec<ChainSpec> = Vec::new();
+    for name in names.split(',').map(str::trim).filter(|n| !n.is_empty()) {
+        if chosen.iter().any(|c| c.name.as_str() == name) {
+            return Err(Error::usage(format!("chain {name:?} is listed twice")));
+        }
+        match available.iter().find(|c| c.name.as_str() == name) {
+            Some(chain) => chosen.push(chain.clone()),
+            None => {
+                return Err(Error::usage(format!(
+                    "unknown chain {name:?}; available: {}",
+                    list()
+                )))
+            }
+        }
+    }
+    if chosen.is_empty() {
+        return Err(Error::usage(format!("no chain named; available: {}", list())));
+    }
+    Ok(chosen)
+}
+
+/// Parse and validate chain-file text. `origin` names the file in messages;
+/// `pool` holds further plain chains a route's `fallback` may name.
+pub fn parse_chains(text: &str, origin: &str, pool: &[ChainSpec]) -> Result<Vec<ChainSpec>> {
+    let raw: RawFile = toml::from_str(text).map_err(|e| {
+        let line = e.span().map_or(1, |s| line_of(text, s.start));
+        Error::chain(format!("{origin}:{line}: {}", e.message().trim_end()))
+    })?;
+    let mut issues = Issues { origin, text, seen: BTreeSet::new(), listed: Vec::new(), more: 0 };
+    if raw.chain.is_empty() {
+        issues.push(0..0, "no [[chain]] table: a chain file defines at least one chain");
+    }
+
+    // Names first: format and uniqueness.
+    let mut first_line: BTreeMap<&str, usize> = BTreeMap::new();
+    for chain in &raw.chain {
+        let name = chain.get_ref().name.get_ref().as_str();
+        let span = chain.get_ref().name.span();
+        if !valid_name(name) {
+            issues.push(
+                span.clone(),
+                format!(
+                    "chain name {name:?}: use 1 to 64 letters, digits, '_', '-' or '.', \
+                     starting with a letter or digit"
+                ),
+            );
+        }
+        match first_line.get(name) {
+            Some(line) => {
+                issues.push(span, format!("chain name {name:?} is already used at line {line}"))
+            }
+            None => {
+                first_line.insert(name, line_of(text, span.start));
+            }
+        }
+    }
+
+    // Plain chains, then routed ones (whose fallback may name a plain chain).
+    let mut plain: BTreeMap<String, Pipeline> = BTreeMap::new();
+    let mut specs: Vec<Option<ChainSpec>> = Vec::new();
+    for chain in &raw.chain {
+        let c = chain.get_ref();
+        let label = format!("chain {:?}", c.name.get_ref());
+        let spec = if c.route.is_some() {
+            if let Some(t) = &c.tokenizer {
+                issues.push(
+                    t.span(),
+                    format!(
+                        "{label}: a routed chain sets its tokenizer and steps inside [chain.route]"
+                    ),
+                );
+            }
+            if let Some(s) = c.steps.as_ref().and_then(|s| s.first()) {
+                issues.push(
+                    s.span(),
+                    format!(
+                        "{label}: a routed chain sets its tokenizer and steps inside [chain.route]"
+                    ),
+                );
+            }
+            None
+        } else {
+            let pipeline = check_pipeline(
+                &mut issues,
+                &label,
+                c.tokenizer.as_ref(),
+                c.steps.as_deref().unwrap_or_default(),
+                None,
+            );
+            plain.insert(c.name.get_ref().clone(), pipeline.clone());
+            Some(ChainSpec {
+                name: ChainName::from(c.name.get_ref().as_str()),
+                description: c.description.clone(),
+                body: ChainBody::Plain(pipeline),
+            })
+        };
+        specs.push(spec);
+    }
+    for (chain, slot) in raw.chain.iter().zip(specs.iter_mut()) {
+        let c = chain.get_ref();
+        let Some(route) = &c.route else { continue };
+        let label = format!("chain {:?}", c.name.get_ref());
+        let route = check_route(&mut issues, &label, route, &plain, pool);
+        *slot = Some(ChainSpec {
+            name: ChainName::from(c.name.get_ref().as_str()),
+            description: c.description.clone(),
+            body: ChainBody::Routed { route },
+        });
+    }
+
+    if issues.listed.is_empty() {
+        Ok(specs.into_iter().flatten().collect())
+    } else {
+        let mut message = issues.listed.join("\n");
+        if issues.more > 0 {
+            message.push_str(&format!("\n{origin}: … and {} more problems", issues.more));
+        }
+        Err(Error::chain(message))
+    }
+}
+
+// ---------------------------------------------------------------------------
+// Raw (as written) forms, with spans for messages.
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawFile {
+    #[serde(default)]
+    chain: Vec<Spanned<RawChain>>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawChain {
+    name: Spanned<String>,
+    description: Option<String>,
+    tokenizer: Option<Spanned<TokenizerKind>>,
+    steps: Option<Vec<Spanned<StepSpec>>>,
+    route: Option<Spanned<RawRoute>>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawRoute {
+    languages: Spanned<Vec<Spanned<LangCode>>>,
+    min_confidence: Option<Spanned<f64>>,
+    #[serde(default)]
+    posts: PostRouting,
+    #[serde(default)]
+    queries: QueryRouting,
+    tokenizer: Option<Spanned<TokenizerKind>>,
+    steps: Option<Vec<Spanned<StepSpec>>>,
+    fallback: Option<Spanned<toml::Value>>,
+    #[serde(default)]
+    language: BTreeMap<String, Spanned<RawPipeline>>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawPipeline {
+    tokenizer: Option<Spanned<TokenizerKind>>,
+    steps: Option<Vec<Spanned<StepSpec>>>,
+}
+
+/// Problems found while validating, as `origin:line: message` strings.
+struct Issues<'a> {
+    origin: &'a str,
+    text: &'a str,
+    seen: BTreeSet<String>,
+    listed: Vec<String>,
+    more: usize,
+}
+
+impl Issues<'_> {
+    fn push(&mut self, span: Range<usize>, message: impl AsRef<str>) {
+        let line = line_of(self.text, span.start);
+        let entry = format!("{}:{}: {}", self.origin, line, message.as_ref());
+        if !self.seen.insert(entry.clone()) {
+            return;
+        }
+        if self.listed.len() < MAX_LISTED_PROBLEMS {
+            self.listed.push(entry);
+        } else {
+            self.more += 1;
+        }
+    }
+}
+
+/// 1-based line of a byte offset.
+fn line_of(text: &str, offset: usize) -> usize {
+    let end = offset.min(text.len());
+    text.as_bytes().get(..end).map_or(0, |b| b.iter().filter(|&&c| c == b'\n').count()) + 1
+}
+
+fn valid_name(name: &str) -> bool {
+    let mut bytes = name.bytes();
+    name.len() <= 64
+        && bytes.next().is_some_and(|b| b.is_ascii_alphanumeric())
+        && bytes.all(|b| b.is_ascii_alphanumeric() || matches!(b, b'_' | b'-' | b'.'))
+}
+
+fn join_codes(codes: &[LangCode]) -> String {
+    codes.iter().map(LangCode::as_str).collect::<Vec<_>>().join(", ")
+}
+
+/// The languages whose stemmer tolerates folded (accent-free) input.
+const FOLD_BEFORE_STEM_OK: &[&str] = &["en", "nl"];
+
+/// Validate one pipeline (`branch` = the route language it serves, if any)
+/// and return it with branch languages filled in.
+fn check_pipeline(
+    issues: &mut Issues<'_>,
+    label: &str,
+    tokenizer: Option<&Spanned<TokenizerKind>>,
+    steps: &[Spanned<StepSpec>],
+    branch: Option<LangCode>,
+) -> Pipeline {
+    let kind = tokenizer.map_or(TokenizerKind::Words, |t| *t.get_ref());
+    let in_branch = branch.map_or(String::new(), |l| format!(" (language {l})"));
+    let mut seen_lowercase = false;
+    let mut seen_fold = false;
+    let mut seen_stem = false;
+    let mut seen_ngrams = false;
+    let mut seen_hashtags = false;
+    let mut resolved = Vec::with_capacity(steps.len());
+    for spanned in steps {
+        let span = spanned.span();
+        let mut step = spanned.get_ref().clone();
+        let mut err = |message: String| issues.push(span.clone(), format!("{label}: {message}"));
+        let name = step.name();
+        if seen_ngrams && !matches!(step, StepSpec::Length { .. } | StepSpec::Lowercase { .. } | StepSpec::Fold {} | StepSpec::Drop { .. }) {
+            err(format!(
+                "{name} cannot follow edge_ngrams (it would work on prefixes); \
+                 only length, lowercase, fold and drop may"
+            ));
+        }
+        match &mut step {
+            StepSpec::Lowercase { language } => {
+                if language.is_none() {
+                    *language = branch.filter(|l| matches!(l.as_str(), "tr" | "az"));
+                }
+                seen_lowercase = true;
+            }
+            StepSpec::Fold {} => seen_fold = true,
+            StepSpec::Stop { language } => {
+                if language.is_none() {
+                    *language = branch;
+                }
+                let accepted = stop_languages();
+                match language {
+                    None => err(format!(
+                        "stop needs a language, e.g. language = \"en\"; accepted: {}",
+                        join_codes(&accepted)
+                    )),
+                    Some(l) if !accepted.contains(l) => err(format!(
+                        "stop: no stop list for language {:?}{in_branch}; accepted: {}",
+                        l.as_str(),
+                        join_codes(&accepted)
+                    )),
+                    Some(l) => {
+                        if seen_fold && l.as_str() != "en" {
+                            err("stop must come before fold: the stop list holds accented words"
+                                .to_string());
+                        }
+                    }
+                }
+                if !seen_lowercase {
+                    err("stop needs lower-case input: put a lowercase step before it".to_string());
+                }
+                if seen_stem {
+                    err("stop must come before stem: stop lists hold unstemmed words".to_string());
+                }
+            }
+            StepSpec::Stem { language, generation } => {
+                if language.is_none() {
+                    *language = branch;
+                }
+                let accepted = stem_languages(*generation);
+                match language {
+                    None => err(format!(
+                        "stem needs a language, e.g. language = \"en\"; accepted: {}",
+                        join_codes(&accepted)
+                    )),
+                    Some(l) if l.as_str() == "el" && *generation == StemGeneration::V2018 => {
+                        err("stem: Greek is only offered with generation = \"current\" \
+                             (the 2018 implementation can crash on Greek words)"
+                            .to_string())
+                    }
+                    Some(l) if !accepted.contains(l) => err(format!(
+                        "stem: no Snowball stemmer for language {:?}{in_branch} (generation {}); \
+                         accepted: {}",
+                        l.as_str(),
+                        generation.as_str(),
+                        join_codes(&accepted)
+                    )),
+                    Some(l) => {
+                        if seen_fold && !FOLD_BEFORE_STEM_OK.contains(&l.as_str()) {
+                            err(format!(
+                                "fold before stem removes accents the {} stemmer's rules need: \
+                                 put fold after stem (fold may precede stem only for {})",
+                                l.as_str(),
+                                FOLD_BEFORE_STEM_OK.join(", ")
+                            ));
+                        }
+                    }
+                }
+                if !seen_lowercase {
+                    err("stem needs lower-case input: put a lowercase step before it".to_string());
+                }
+                if seen_stem {
+                    err("stem appears twice in one chain".to_string());
+                }
+                seen_stem = true;
+            }
+            StepSpec::Elision { language } => {
+                if let Some(l) = language {
+                    if !ELISION_LANGUAGES.contains(&l.as_str()) {
+                        err(format!(
+                            "elision: no prefix list for language {:?}; accepted: {} \
+                             (or no language for all three)",
+                            l.as_str(),
+                            ELISION_LANGUAGES.join(", ")
+                        ));
+                    }
+                }
+                if seen_stem {
+                    err("elision must come before stem".to_string());
+                }
+            }
+            StepSpec::Length { min, max } | StepSpec::EdgeNgrams { min, max } => {
+                if *min == 0 || min > max {
+                    err(format!("{name}: need 1 ≤ min ≤ max, found min = {min}, max = {max}"));
+                }
+                if name == "edge_ngrams" {
+                    seen_ngrams = true;
+                }
+            }
+            StepSpec::Drop { kinds } => {
+                if kinds.is_empty() {
+                    err("drop needs kinds, e.g. kinds = [\"urls\"]; accepted: mentions, urls, \
+                         emoji, numbers, hashtags"
+                        .to_string());
+                }
+                for k in kinds.iter() {
+                    let post_only = !matches!(k, DropKind::Numbers);
+                    if post_only && kind == TokenizerKind::Words {
+                        err(format!(
+                            "drop {}: the words tokenizer never produces them; use tokenizer = \
+                             \"posts\" (or \"whitespace\")",
+                            k.as_str()
+                        ));
+                    }
+                    if *k == DropKind::Hashtags && seen_hashtags {
+                        err("drop hashtags after the hashtags step finds none (it strips the \
+                             '#'): put drop first"
+                            .to_string());
+                    }
+                }
+            }
+            StepSpec::Hashtags { .. } => {
+                if kind == TokenizerKind::Words {
+                    err("hashtags needs tokenizer = \"posts\" (or \"whitespace\"): the words \
+                         tokenizer drops the '#'"
+                        .to_string());
+                }
+                if seen_lowercase {
+                    err("hashtags must come before lowercase: it splits #CamelCase tags at \
+                         case changes"
+                        .to_string());
+                }
+                if seen_hashtags {
+                    err("hashtags appears twice in one chain".to_string());
+                }
+                seen_hashtags = true;
+            }
+        }
+        resolved.push(step);
+    }
+    Pipeline { tokenizer: kind, steps: resolved }
+}
+
+/// The default steps of a route's branches: lowercase, then stem.
+fn default_branch_steps() -> Vec<StepSpec> {
+    vec![
+        StepSpec::Lowercase { language: None },
+        StepSpec::Stem { language: None, generation: default_generation() },
+    ]
+}
+
+fn check_route(
+    issues: &mut Issues<'_>,
+    label: &str,
+    route: &Spanned<RawRoute>,
+    plain: &BTreeMap<String, Pipeline>,
+    pool: &[ChainSpec],
+) -> RouteSpec {
+    let r = route.get_ref();
+    let route_span = route.span();
+
+    // Languages: non-empty, distinct, known to the detector.
+    let detectable = detect::supported_codes();
+    let mut languages: Vec<LangCode> = Vec::new();
+    if r.languages.get_ref().is_empty() {
+        issues.push(r.languages.span(), format!("{label}: route languages must not be empty"));
+    }
+    for l in r.languages.get_ref() {
+        let code = *l.get_ref();
+        if languages.contains(&code) {
+            issues.push(l.span(), format!("{label}: language {:?} is listed twice", code.as_str()));
+            continue;
+        }
+        if !detectable.contains(&code) {
+            issues.push(
+                l.span(),
+                format!(
+                    "{label}: language detection cannot recognise {:?}; accepted: {}",
+                    code.as_str(),
+                    join_codes(&detectable)
+                ),
+            );
+        }
+        languages.push(code);
+    }
+
+    let min_confidence = match &r.min_confidence {
+        Some(m) if !(0.0..=1.0).contains(m.get_ref()) => {
+            issues.push(
+                m.span(),
+                format!("{label}: min_confidence must be in [0, 1], found {}", m.get_ref()),
+            );
+            DEFAULT_MIN_CONFIDENCE
+        }
+        Some(m) => *m.get_ref(),
+        None => DEFAULT_MIN_CONFIDENCE,
+    };
+
+    // Per-language overrides must name routed languages.
+    let mut overrides: BTreeMap<LangCode, &Spanned<RawPipeline>> = BTreeMap::new();
+    for (key, pipeline) in &r.language {
+        match LangCode::parse(key) {
+            Some(code) if languages.contains(&code) => {
+                overrides.insert(code, pipeline);
+            }
+            _ => issues.push(
+                pipeline.span(),
+                format!(
+                    "{label}: [chain.route.language.{}] names no routed language; routed: {}",
+                    key,
+                    join_codes(&languages)
+                ),
+            ),
+        }
+    }
+
+    let template_steps: Vec<Spanned<StepSpec>> = match &r.steps {
+        Some(steps) => steps.clone(),
+        None => default_branch_steps()
+            .into_iter()
+            .map(|s| Spanned::new(route_span.clone(), s))
+            .collect(),
+    };
+    let mut branches = Vec::with_capacity(languages.len());
+    for &language in &languages {
+        let (tokenizer, steps) = match overrides.get(&language) {
+            Some(o) => (
+                o.get_ref().tokenizer.as_ref().or(r.tokenizer.as_ref()),
+                o.get_ref().steps.as_deref().unwrap_or(&template_steps),
+            ),
+            None => (r.tokenizer.as_ref(), template_steps.as_slice()),
+        };
+        let pipeline = check_pipeline(issues, label, tokenizer, steps, Some(language));
+        branches.push(Branch { language, pipeline });
+    }
+
+    let fallback = match &r.fallback {
+        None => Pipeline::standard(),
+        Some(value) => match value.get_ref() {
+            toml::Value::String(name) => {
+                let found = plain
+                    .get(name)
+                    .cloned()
+                    .or_else(|| pool.iter().find(|c| c.name.as_str() == name).and_then(|c| match &c.body {
+                        ChainBody::Plain(p) => Some(p.clone()),
+                        ChainBody::Routed { .. } => None,
+                    }));
+                match found {
+                    Some(p) => p,
+                    None => {
+                        let mut names: Vec<&str> = plain.keys().map(String::as_str).collect();
+                        names.extend(pool.iter().filter(|c| c.route().is_none()).map(|c| c.name.as_str()));
+                        names.sort_unstable();
+                        names.dedup();
+                        issues.push(
+                            value.span(),
+                            format!(
+                                "{label}: fallback {name:?} is not a plain chain of this file or a \
+                                 built-in one; available: {}",
+                                names.join(", ")
+                            ),
+                        );
+                        Pipeline::standard()
+                    }
+                }
+            }
+            toml::Value::Table(table) => {
+                match toml::Value::Table(table.clone()).try_into::<RawPipelineOwned>() {
+                    Ok(p) => {
+                        let steps: Vec<Spanned<StepSpec>> = p
+                            .steps
+                            .into_iter()
+                            .map(|s| Spanned::new(value.span(), s))
+                            .collect();
+                        let tokenizer = p.tokenizer.map(|t| Spanned::new(value.span(), t));
+                        check_pipeline(issues, label, tokenizer.as_ref(), &steps, None)
+                    }
+                    Err(e) => {
+                        issues.push(value.span(), format!("{label}: fallback: {}", e.message().trim_end()));
+                        Pipeline::standard()
+                    }
+                }
+            }
+            _ => {
+                issues.push(
+                    value.span(),
+                    format!(
+                        "{label}: fallback must be a plain chain's name (\"standard\") or a table \
+                         {{ tokenizer = …, steps = […] }}"
+                    ),
+                );
+                Pipeline::standard()
+            }
+        },
+    };
+
+    RouteSpec { languages, min_confidence, posts: r.posts, queries: r.queries, branches, fallback }
+}
+
+/// An inline fallback table (its values carry no spans of their own).
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawPipelineOwned {
+    tokenizer: Option<TokenizerKind>,
+    #[serde(default)]
+    steps: Vec<StepSpec>,
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn err(text: &str) -> String {
+        match parse_chains(text, "my.toml", &[]) {
+            Ok(_) => panic!("expected an error for {text}"),
+            Err(e) => e.to_string(),
+        }
+    }
+
+    #[test]
+    fn scratch() {
+        for t in [
+            "[[chain]]\nname = \"a\"\nsteps = [{ step = \"lowercas\" }]\n",
+            "[[chain]]\nname = \"a\"\nsteps = [\n  { step = \"lowercase\" },\n  { step = \"stem\", lang = \"en\" },\n]\n",
+            "[[chain]]\nname = \"a\"\nsteps = [\n  { step = \"lowercase\" },\n  { step = \"stem\", language = \"xx\" },\n]\n",
+            "[[chain]]\nname = \"a\"\ntokenzer = \"words\"\n",
+            "[[chain]]\nname = \"a\"\ntokenizer = \"word\"\n",
+            "[[chain]]\nname = \"a\"\n\n[[chain]]\nname = \"a\"\n",
+            "[[chain]]\nname = \"a\"\nsteps = [\n  { step = \"stem\", language = \"ja\" },\n  { step = \"lowercase\" },\n]\n",
+            "[[chain]]\nname = \"a\"\nsteps = [ { step = \"drop\", kinds = [\"url\"] } ]\n",
+            "[[chain]]\nname = \"a\"\n[chain.route]\nlanguages = [\"en\", \"xx\"]\n",
+            "[[chain]]\nname = \"a\"\n[chain.route]\nlanguages = [\"en\", \"ja\"]\nfallback = \"nope\"\n",
+            "[[chain]]\nname = \"a\"\n[chain.route]\nlanguages = [\"en\"]\nfallback = { tokenizer = \"words\", steps = [{ step = \"stem\" }] }\n",
+            "[[chain]\nname = \"a\"\n",
+        ] {
+            eprintln!("----\n{}", err(t));
+        }
+    }
+}

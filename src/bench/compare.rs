@@ -1,0 +1,290 @@
+//! Turns per-query metric values of several systems into the numbers the
+//! reports show: each system's mean with its bootstrap interval, paired
+//! comparisons with the baseline (t-test, randomization test, Holm
+//! adjustment, wins/losses/ties, smallest detectable difference) and the same
+//! per query language and per query tag. Sits between `eval` (which gives the
+//! per-query values) and `report` (which only renders what is computed here).
+
+use std::collections::BTreeMap;
+
+use serde::{Deserialize, Serialize};
+
+use crate::eval::{Metric, SystemScores};
+use crate::ids::{ChainName, QueryId};
+use crate::input::Query;
+use crate::stats::{self, StatSettings};
+
+/// Breakdown cells with fewer queries than this are shown but not tested.
+pub const MIN_BREAKDOWN_QUERIES: usize = 5;
+
+/// Mean and 95% interval of one metric for one system.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
+pub struct MetricSummary {
+    /// Metric key (`ndcg@10`, …).
+    pub metric: String,
+    /// Arithmetic mean over the evaluated queries.
+    pub mean: f64,
+    /// Lower bound of the 95% percentile-bootstrap interval (None when no query).
+    pub ci_low: Option<f64>,
+    /// Upper bound of the interval.
+    pub ci_high: Option<f64>,
+}
+
+/// One system-vs-baseline comparison on one metric.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
+pub struct ComparisonRow {
+    /// The baseline system.
+    pub baseline: ChainName,
+    /// The compared system.
+    pub system: ChainName,
+    /// Metric key.
+    pub metric: String,
+    /// Number of paired queries.
+    pub queries: usize,
+    /// mean(system) − mean(baseline).
+    pub delta: f64,
+    /// 95% bootstrap interval of the mean per-query difference.
+    pub delta_ci_low: Option<f64>,
+    /// Upper bound of that interval.
+    pub delta_ci_high: Option<f64>,
+    /// Two-sided paired t-test p-value (None when n < 2).
+    pub p_ttest: Option<f64>,
+    /// Two-sided paired randomization test p-value (None when n < 2).
+    pub p_randomization: Option<f64>,
+    /// Holm-adjusted randomization p-value over the systems of this metric.
+    pub p_holm: Option<f64>,
+    /// Queries where the system is above the baseline.
+    pub wins: usize,
+    /// Queries where it is below.
+    pub losses: usize,
+    /// Queries where both are equal (within 1e-12).
+    pub ties: usize,
+    /// Smallest mean difference the query set could detect at α with 80% power.
+    pub min_detectable: Option<f64>,
+    /// Whether `p_holm` < α.
+    pub significant: bool,
+}
+
+/// Every metric of one system.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
+pub struct SystemSummary {
+    /// System (chain or run) name.
+    pub system: ChainName,
+    /// Number of evaluated queries.
+    pub queries: usize,
+    /// One entry per metric, in `--metrics` order.
+    pub metrics: Vec<MetricSummary>,
+}
+
+/// One cell of a breakdown: the queries sharing one language or one tag.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
+pub struct BreakdownCell {
+    /// `lang` or `tag`.
+    pub dimension: String,
+    /// The language code or tag (`(none)` for queries without a language).
+    pub value: String,
+    /// Number of evaluated queries in the cell.
+    pub queries: usize,
+    /// True when the cell has fewer than [`MIN_BREAKDOWN_QUERIES`] queries: means
+    /// are shown, tests are not run.
+    pub too_small: bool,
+    /// Each system's means in the cell, in system order.
+    pub systems: Vec<SystemSummary>,
+    /// Comparisons with the baseline inside the cell (empty when too small).
+    pub comparisons: Vec<ComparisonRow>,
+}
+
+/// Everything computed from the per-query values.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
+pub struct Comparisons {
+    /// Per-system means and intervals.
+    pub summaries: Vec<SystemSummary>,
+    /// Every non-baseline system against the baseline, per metric.
+    pub comparisons: Vec<ComparisonRow>,
+    /// Per query language, then per tag.
+    pub breakdowns: Vec<BreakdownCell>,
+}
+
+/// Compute summaries, comparisons and breakdowns. `systems` are in report
+/// order; `baseline` indexes into it; `queries` (optional) supplies languages
+/// and tags for breakdowns; `alpha` is the significance level.
+pub fn compare(
+    systems: &[(ChainName, &SystemScores)],
+    baseline: usize,
+    metrics: &[Metric],
+    queries: Option<&[Query]>,
+    settings: &StatSettings,
+) -> Comparisons {
+    let all: Vec<QueryId> = evaluated_ids(systems);
+    let summaries = summarise(systems, metrics, &all, settings);
+    let comparisons = compare_subset(systems, baseline, metrics, &all, settings);
+    let breakdowns = match queries {
+        Some(qs) => breakdown(systems, baseline, metrics, &all, qs, settings),
+        None => Vec::new(),
+    };
+    Comparisons { summaries, comparisons, breakdowns }
+}
+
+fn evaluated_ids(systems: &[(ChainName, &SystemScores)]) -> Vec<QueryId> {
+    systems.first().map(|(_, s)| s.per_query.keys().cloned().collect()).unwrap_or_default()
+}
+
+/// Values of metric `m` of one system over `ids` (0 for a missing query, which
+/// cannot happen when every system shares one population).
+fn column(scores: &SystemScores, m: usize, ids: &[QueryId]) -> Vec<f64> {
+    ids.iter()
+        .map(|q| scores.per_query.get(q).and_then(|v| v.get(m)).copied().unwrap_or(0.0))
+        .collect()
+}
+
+/// Mean of a column (0 for an empty query set: nothing to average).
+fn mean(v: &[f64]) -> f64 {
+    stats::mean(v).unwrap_or(0.0)
+}
+
+fn summarise(
+    systems: &[(ChainName, &SystemScores)],
+    metrics: &[Metric],
+    ids: &[QueryId],
+    settings: &StatSettings,
+) -> Vec<SystemSummary> {
+    systems
+        .iter()
+        .map(|(name, scores)| SystemSummary {
+            system: name.clone(),
+            queries: ids.len(),
+            metrics: metrics
+                .iter()
+                .enumerate()
+                .map(|(m, metric)| {
+                    let values = column(scores, m, ids);
+                    let ci =
+                        stats::bootstrap_ci(&values, settings.bootstrap_resamples, settings.seed);
+                    MetricSummary {
+                        metric: metric.key(),
+                        mean: mean(&values),
+                        ci_low: ci.map(|c| c.0),
+                        ci_high: ci.map(|c| c.1),
+                    }
+                })
+                .collect(),
+        })
+        .collect()
+}
+
+fn compare_subset(
+    systems: &[(ChainName, &SystemScores)],
+    baseline: usize,
+    metrics: &[Metric],
+    ids: &[QueryId],
+    settings: &StatSettings,
+) -> Vec<ComparisonRow> {
+    let Some((base_name, base_scores)) = systems.get(baseline) else {
+        return Vec::new();
+    };
+    let others: Vec<(usize, &(ChainName, &SystemScores))> =
+        systems.iter().enumerate().filter(|(i, _)| *i != baseline).collect();
+    // Ordered by system then metric, as the CSV contract asks; Holm adjusts
+    // within one metric across the systems (stats::compare_with_baseline).
+    let mut keyed: Vec<((usize, usize), ComparisonRow)> = Vec::new();
+    for (m, metric) in metrics.iter().enumerate() {
+        let base = column(base_scores, m, ids);
+        let columns: Vec<Vec<f64>> =
+            others.iter().map(|(_, (_, scores))| column(scores, m, ids)).collect();
+        let slices: Vec<&[f64]> = columns.iter().map(Vec::as_slice).collect();
+        let paired = stats::compare_with_baseline(&base, &slices, settings);
+        for (((i, (name, _)), sys), pc) in others.iter().zip(&columns).zip(paired) {
+            let diffs: Vec<f64> = sys.iter().zip(&base).map(|(a, b)| a - b).collect();
+            let ci = stats::bootstrap_ci(&diffs, settings.bootstrap_resamples, settings.seed);
+            let row = ComparisonRow {
+                baseline: base_name.clone(),
+                system: name.clone(),
+                metric: metric.key(),
+                queries: pc.n,
+                delta: pc.delta.unwrap_or(0.0),
+                delta_ci_low: ci.map(|c| c.0),
+                delta_ci_high: ci.map(|c| c.1),
+                p_ttest: pc.p_ttest,
+                p_randomization: pc.p_randomization,
+                p_holm: pc.p_randomization_holm,
+                wins: pc.wins_losses_ties.wins,
+                losses: pc.wins_losses_ties.losses,
+                ties: pc.wins_losses_ties.ties,
+                min_detectable: pc.min_detectable,
+                significant: pc.p_randomization_holm.is_some_and(|p| p < settings.alpha),
+            };
+            keyed.push(((*i, m), row));
+        }
+    }
+    keyed.sort_by_key(|(k, _)| *k);
+    keyed.into_iter().map(|(_, r)| r).collect()
+}
+
+fn breakdown(
+    systems: &[(ChainName, &SystemScores)],
+    baseline: usize,
+    metrics: &[Metric],
+    evaluated: &[QueryId],
+    queries: &[Query],
+    settings: &StatSettings,
+) -> Vec<BreakdownCell> {
+    let by_id: BTreeMap<&QueryId, &Query> = queries.iter().map(|q| (&q.id, q)).collect();
+    let mut langs: BTreeMap<String, Vec<QueryId>> = BTreeMap::new();
+    let mut tags: BTreeMap<String, Vec<QueryId>> = BTreeMap::new();
+    for id in evaluated {
+        let q = by_id.get(id);
+        let lang = q.and_then(|q| q.lang).map_or_else(|| "(none)".to_string(), |l| l.to_string());
+        langs.entry(lang).or_default().push(id.clone());
+        for tag in q.map(|q| q.tags.as_slice()).unwrap_or_default() {
+            let ids = tags.entry(tag.clone()).or_default();
+            if ids.last() != Some(id) {
+                ids.push(id.clone());
+            }
+        }
+    }
+    let mut cells = Vec::new();
+    for (dimension, groups) in [("lang", langs), ("tag", tags)] {
+        for (value, ids) in groups {
+            let too_small = ids.len() < MIN_BREAKDOWN_QUERIES;
+            let comparisons = if too_small {
+                Vec::new()
+            } else {
+                compare_subset(systems, baseline, metrics, &ids, settings)
+            };
+            cells.push(BreakdownCell {
+                dimension: dimension.to_string(),
+                value,
+                queries: ids.len(),
+                too_small,
+                systems: summarise_means(systems, metrics, &ids),
+                comparisons,
+            });
+        }
+    }
+    cells
+}
+
+/// Means only (no intervals) for breakdown cells.
+fn summarise_means(
+    systems: &[(ChainName, &SystemScores)],
+    metrics: &[Metric],
+    ids: &[QueryId],
+) -> Vec<SystemSummary> {
+    systems
+        .iter()
+        .map(|(name, scores)| SystemSummary {
+            system: name.clone(),
+            queries: ids.len(),
+            metrics: metrics
+                .iter()
+                .enumerate()
+                .map(|(m, metric)| MetricSummary {
+                    metric: metric.key(),
+                    mean: mean(&column(scores, m, ids)),
+                    ci_low: None,
+                    ci_high: None,
+                })
+                .collect(),
+        })
+        .collect()
+}

@@ -1,0 +1,483 @@
+//! Orchestration of whole commands: `run` (read inputs → build one index per
+//! chain → search → evaluate → compare → report model) and `score` (read runs
+//! → evaluate → compare → report model). Every input is read and validated
+//! before any index is built or any output written.
+//!
+//! Language detection runs once per post (and once per query) for each
+//! distinct detector configuration, never once per chain.
+
+pub mod compare;
+
+use std::collections::{BTreeMap, BTreeSet};
+use std::io::Read;
+use std::path::{Path, PathBuf};
+use std::time::Instant;
+
+use sha2::{Digest, Sha256};
+
+use crate::analysis::detect::{Detection, LangDetector};
+use crate::analysis::hashtag::WordFreqs;
+use crate::analysis::{AnalysisContext, Analyzer, ChainSpec};
+use crate::error::{Error, Result};
+use crate::eval::{self, EvalSettings, Gain, Metric, SystemScores};
+use crate::ids::{ChainName, QueryId};
+use crate::index::ChainIndex;
+use crate::input::{self, Judgments, Post, Query, Run};
+use crate::report::model::{
+    ChainTiming, Cost, Counts, InputFile, PerQuery, QueryValues, Report, Settings, SystemInfo,
+    Timing, ToolInfo, SCHEMA_VERSION,
+};
+use crate::search;
+use crate::stats::StatSettings;
+
+/// Corpus size from which indexing uses every core (below it, one thread
+/// keeps segment layout, and so index size, identical between runs).
+const PARALLEL_INDEXING_FROM: usize = 50_000;
+
+/// Settings shared by `run` and `score`.
+#[derive(Debug, Clone)]
+pub struct EvalOptions {
+    /// Metrics in output order.
+    pub metrics: Vec<Metric>,
+    /// Threshold, gain and gmax.
+    pub eval: EvalSettings,
+    /// Seeds, resamples, α.
+    pub stats: StatSettings,
+    /// The system others are compared with (default: the first).
+    pub baseline: Option<ChainName>,
+}
+
+/// What `postassay run` does.
+#[derive(Debug, Clone)]
+pub struct RunPlan {
+    /// Corpus file.
+    pub corpus: PathBuf,
+    /// Queries file.
+    pub queries: PathBuf,
+    /// Judgments file.
+    pub judgments: PathBuf,
+    /// Chain file the chains came from, if any (hashed into the report).
+    pub chain_file: Option<PathBuf>,
+    /// Chains to compare, in report order.
+    pub chains: Vec<ChainSpec>,
+    /// Results kept per query.
+    pub depth: usize,
+    /// Evaluation settings.
+    pub options: EvalOptions,
+}
+
+/// What `postassay score` does.
+#[derive(Debug, Clone)]
+pub struct ScorePlan {
+    /// Judgments file.
+    pub judgments: PathBuf,
+    /// Optional queries file, for breakdowns by language and tag.
+    pub queries: Option<PathBuf>,
+    /// Named run files in report order.
+    pub runs: Vec<(ChainName, PathBuf)>,
+    /// Evaluation settings.
+    pub options: EvalOptions,
+}
+
+/// A computed report and the runs it rests on.
+#[derive(Debug, Clone)]
+pub struct BenchOutput {
+    /// The report model.
+    pub report: Report,
+    /// Each system's run (written to `runs/` by `run`).
+    pub runs: Vec<(ChainName, Run)>,
+}
+
+/// Run the bench: index the corpus once per chain, search, evaluate, compare.
+/// `progress` receives one line per step (the CLI prints it on stderr).
+pub fn run(plan: &RunPlan, progress: &mut dyn FnMut(&str)) -> Result<BenchOutput> {
+    let started = Instant::now();
+    if plan.chains.is_empty() {
+        return Err(Error::usage("no chain to run"));
+    }
+    let names: Vec<ChainName> = plan.chains.iter().map(|c| c.name.clone()).collect();
+    let baseline = baseline_index(&names, plan.options.baseline.as_ref())?;
+    let (judgments, mut warnings) = input::read_judgments(&plan.judgments)?;
+    let queries = input::read_queries(&plan.queries)?;
+    let posts = input::read_corpus(&plan.corpus)?;
+    eval::validate_settings(&judgments, &plan.options.eval)?;
+    progress(&format!(
+        "read {} posts, {} queries, {} judgments",
+        posts.len(),
+        queries.len(),
+        judgments.len()
+    ));
+
+    let ctx = AnalysisContext {
+        word_freqs: if plan.chains.iter().any(ChainSpec::needs_word_freqs) {
+            Some(std::sync::Arc::new(WordFreqs::learn(posts.iter().map(|p| p.text.as_str()))))
+        } else {
+            None
+        },
+    };
+    let analyzers: Vec<Analyzer> =
+        plan.chains.iter().map(|c| Analyzer::build(c, &ctx)).collect::<Result<_>>()?;
+    let detections = Detections::compute(&analyzers, &posts, &queries, progress);
+
+    let threads = if posts.len() >= PARALLEL_INDEXING_FROM {
+        std::thread::available_parallelism().map_or(1, |n| n.get())
+    } else {
+        1
+    };
+    let mut runs = Vec::new();
+    let mut infos = Vec::new();
+    let mut timings = Vec::new();
+    for analyzer in &analyzers {
+        let (post_det, query_det) = detections.for_analyzer(analyzer);
+        let index = ChainIndex::build(analyzer, &posts, post_det, threads)?;
+        let outcome = search::search_chain(&index, analyzer, &queries, query_det, plan.depth)?;
+        let cost = index.cost();
+        progress(&format!(
+            "chain {}: indexed in {:.2} s, {} distinct terms",
+            analyzer.name(),
+            cost.build_seconds,
+            cost.distinct_terms
+        ));
+        let (mean_ms, p95_ms) = latency_summary(&outcome.latencies_ms);
+        timings.push(ChainTiming {
+            name: analyzer.name().clone(),
+            build_seconds: cost.build_seconds,
+            query_ms_mean: mean_ms,
+            query_ms_p95: p95_ms,
+        });
+        infos.push(SystemInfo { name: analyzer.name().clone(), cost: Some(Cost::from(cost)) });
+        runs.push((analyzer.name().clone(), outcome.run));
+    }
+
+    // Judged queries missing from the query file cannot be run: they are left
+    // out of the population (rather than scored 0) and named in a warning.
+    let in_file: BTreeSet<&QueryId> = queries.iter().map(|q| &q.id).collect();
+    let mut population = eval::query_population(&judgments, &plan.options.eval);
+    let missing: Vec<String> = population
+        .evaluated
+        .iter()
+        .filter(|q| !in_file.contains(q))
+        .map(ToString::to_string)
+        .collect();
+    if !missing.is_empty() {
+        warnings.push(format!(
+            "{}: {} judged queries are not in the query file and were not evaluated: {}",
+            plan.judgments.display(),
+            missing.len(),
+            abbreviate(&missing)
+        ));
+        population.evaluated.retain(|q| in_file.contains(q));
+    }
+
+    let mut inputs = vec![
+        hash_input("corpus", &plan.corpus)?,
+        hash_input("queries", &plan.queries)?,
+        hash_input("judgments", &plan.judgments)?,
+    ];
+    if let Some(f) = &plan.chain_file {
+        inputs.push(hash_input("chains", f)?);
+    }
+    let chains_json = plan
+        .chains
+        .iter()
+        .map(|c| serde_json::to_value(c).map_err(|e| Error::usage(format!("chain as JSON: {e}"))))
+        .collect::<Result<Vec<_>>>()?;
+    let assembled = Assembly {
+        command: "run",
+        inputs,
+        judgments: &judgments,
+        queries: Some(&queries),
+        posts: Some(posts.len()),
+        population,
+        runs,
+        infos,
+        baseline,
+        depth: Some(plan.depth),
+        chains: chains_json,
+        warnings,
+    };
+    let mut out = assembled.finish(&plan.options)?;
+    out.report.timing = Timing { total_seconds: started.elapsed().as_secs_f64(), chains: timings };
+    Ok(out)
+}
+
+/// Score existing runs against judgments.
+pub fn score(plan: &ScorePlan) -> Result<BenchOutput> {
+    let started = Instant::now();
+    if plan.runs.is_empty() {
+        return Err(Error::usage("give at least one --run NAME=FILE"));
+    }
+    let names: Vec<ChainName> = plan.runs.iter().map(|(n, _)| n.clone()).collect();
+    let baseline = baseline_index(&names, plan.options.baseline.as_ref())?;
+    let (judgments, warnings) = input::read_judgments(&plan.judgments)?;
+    let queries = plan.queries.as_deref().map(input::read_queries).transpose()?;
+    let mut runs = Vec::new();
+    for (name, path) in &plan.runs {
+        runs.push((name.clone(), input::read_run(path)?));
+    }
+    eval::validate_settings(&judgments, &plan.options.eval)?;
+    let mut inputs = vec![hash_input("judgments", &plan.judgments)?];
+    if let Some(q) = &plan.queries {
+        inputs.push(hash_input("queries", q)?);
+    }
+    for (name, path) in &plan.runs {
+        inputs.push(hash_input(&format!("run:{name}"), path)?);
+    }
+    let population = eval::query_population(&judgments, &plan.options.eval);
+    let infos = names.iter().map(|n| SystemInfo { name: n.clone(), cost: None }).collect();
+    let assembled = Assembly {
+        command: "score",
+        inputs,
+        judgments: &judgments,
+        queries: queries.as_deref(),
+        posts: None,
+        population,
+        runs,
+        infos,
+        baseline,
+        depth: None,
+        chains: Vec::new(),
+        warnings,
+    };
+    let mut out = assembled.finish(&plan.options)?;
+    out.report.timing.total_seconds = started.elapsed().as_secs_f64();
+    Ok(out)
+}
+
+/// Position of the baseline among the systems (the first by default).
+fn baseline_index(names: &[ChainName], wanted: Option<&ChainName>) -> Result<usize> {
+    let mut seen = BTreeSet::new();
+    for n in names {
+        if !seen.insert(n) {
+            return Err(Error::usage(format!("the name {n:?} is given twice")));
+        }
+    }
+    match wanted {
+        None => Ok(0),
+        Some(w) => names.iter().position(|n| n == w).ok_or_else(|| {
+            let list: Vec<&str> = names.iter().map(ChainName::as_str).collect();
+            Error::usage(format!(
+                "--baseline {w:?} is not one of the systems: expected one of {}",
+                list.join(", ")
+            ))
+        }),
+    }
+}
+
+/// Everything needed to turn runs into a report.
+struct Assembly<'a> {
+    command: &'static str,
+    inputs: Vec<InputFile>,
+    judgments: &'a Judgments,
+    queries: Option<&'a [Query]>,
+    posts: Option<usize>,
+    population: eval::QueryPopulation,
+    runs: Vec<(ChainName, Run)>,
+    infos: Vec<SystemInfo>,
+    baseline: usize,
+    depth: Option<usize>,
+    chains: Vec<serde_json::Value>,
+    warnings: Vec<String>,
+}
+
+impl Assembly<'_> {
+    fn finish(self, options: &EvalOptions) -> Result<BenchOutput> {
+        let mut warnings = self.warnings;
+        let mut scores: Vec<(ChainName, SystemScores)> = Vec::new();
+        for (name, run) in &self.runs {
+            let s = eval::evaluate(
+                run,
+                self.judgments,
+                &self.population,
+                &options.metrics,
+                &options.eval,
+            )?;
+            warnings.extend(s.warnings.iter().map(|w| format!("{name}: {w}")));
+            scores.push((name.clone(), s));
+        }
+        if self.population.evaluated.len() < 2 {
+            warnings.push(format!(
+                "only {} evaluated queries: significance tests need at least 2, p-values are left empty",
+                self.population.evaluated.len()
+            ));
+        }
+        let refs: Vec<(ChainName, &SystemScores)> =
+            scores.iter().map(|(n, s)| (n.clone(), s)).collect();
+        let computed = compare::compare(
+            &refs,
+            self.baseline,
+            &options.metrics,
+            self.queries,
+            &options.stats,
+        );
+        let per_query = scores
+            .iter()
+            .map(|(name, s)| PerQuery {
+                system: name.clone(),
+                queries: s
+                    .per_query
+                    .iter()
+                    .map(|(q, v)| QueryValues { query_id: q.clone(), values: v.clone() })
+                    .collect(),
+            })
+            .collect();
+        let baseline_name = self
+            .runs
+            .get(self.baseline)
+            .map(|(n, _)| n.clone())
+            .ok_or_else(|| Error::usage("no baseline system"))?;
+        let report = Report {
+            schema_version: SCHEMA_VERSION,
+            tool: ToolInfo {
+                name: "postassay".to_string(),
+                version: env!("CARGO_PKG_VERSION").to_string(),
+            },
+            command: self.command.to_string(),
+            inputs: self.inputs,
+            settings: Settings {
+                metrics: options.metrics.iter().map(Metric::key).collect(),
+                relevant_from: options.eval.relevant_from,
+                gain: match options.eval.gain {
+                    Gain::Exponential => "exp".to_string(),
+                    Gain::Linear => "linear".to_string(),
+                },
+                max_grade: options.eval.max_grade.unwrap_or_else(|| self.judgments.max_grade()),
+                baseline: baseline_name,
+                seed: options.stats.seed,
+                permutations: options.stats.permutations,
+                bootstrap_resamples: options.stats.bootstrap_resamples,
+                alpha: options.stats.alpha,
+                depth: self.depth,
+                chains: self.chains,
+            },
+            counts: Counts {
+                posts: self.posts,
+                queries: self.queries.map(<[Query]>::len),
+                queries_evaluated: self.population.evaluated.len(),
+                queries_skipped: self.population.skipped.len(),
+                judgments: self.judgments.len(),
+            },
+            systems: self.infos,
+            summary: computed.summaries,
+            per_query,
+            comparisons: computed.comparisons,
+            breakdowns: computed.breakdowns,
+            skipped_queries: self.population.skipped.clone(),
+            warnings,
+            timing: Timing::default(),
+        };
+        Ok(BenchOutput { report, runs: self.runs })
+    }
+}
+
+/// Detections of posts and queries, one set per distinct detector.
+struct Detections {
+    /// Keyed by the detector's configuration.
+    by_detector: BTreeMap<String, (Vec<Option<Detection>>, Vec<Option<Detection>>)>,
+}
+
+impl Detections {
+    fn key(d: &LangDetector) -> String {
+        format!("{d:?}")
+    }
+
+    fn compute(
+        analyzers: &[Analyzer],
+        posts: &[Post],
+        queries: &[Query],
+        progress: &mut dyn FnMut(&str),
+    ) -> Detections {
+        let mut by_detector = BTreeMap::new();
+        for a in analyzers {
+            let Some(d) = a.detector() else { continue };
+            let key = Self::key(d);
+            if by_detector.contains_key(&key) {
+                continue;
+            }
+            let started = Instant::now();
+            // A declared language wins: only undeclared texts are detected.
+            let post_texts: Vec<&str> =
+                posts.iter().map(|p| if p.lang.is_some() { "" } else { p.text.as_str() }).collect();
+            let query_texts: Vec<&str> = queries
+                .iter()
+                .map(|q| if q.lang.is_some() { "" } else { q.text.as_str() })
+                .collect();
+            let post_det = d.detect_all(&post_texts);
+            let query_det = d.detect_all(&query_texts);
+            progress(&format!(
+                "detected languages of {} posts in {:.2} s",
+                post_texts.iter().filter(|t| !t.is_empty()).count(),
+                started.elapsed().as_secs_f64()
+            ));
+            by_detector.insert(key, (post_det, query_det));
+        }
+        Detections { by_detector }
+    }
+
+    fn for_analyzer(&self, a: &Analyzer) -> (&[Option<Detection>], &[Option<Detection>]) {
+        match a.detector().and_then(|d| self.by_detector.get(&Self::key(d))) {
+            Some((p, q)) => (p, q),
+            None => (&[], &[]),
+        }
+    }
+}
+
+/// Mean and 95th percentile (nearest rank) of latencies.
+fn latency_summary(ms: &[f64]) -> (f64, f64) {
+    if ms.is_empty() {
+        return (0.0, 0.0);
+    }
+    let mut sorted = ms.to_vec();
+    sorted.sort_by(f64::total_cmp);
+    let rank = ((0.95 * sorted.len() as f64).ceil() as usize).clamp(1, sorted.len());
+    (ms.iter().sum::<f64>() / ms.len() as f64, sorted[rank - 1])
+}
+
+fn abbreviate(items: &[String]) -> String {
+    const SHOWN: usize = 10;
+    if items.len() <= SHOWN {
+        items.join(", ")
+    } else {
+        format!("{}, … ({} more)", items[..SHOWN].join(", "), items.len() - SHOWN)
+    }
+}
+
+/// SHA-256 of a file, streamed.
+fn hash_input(role: &str, path: &Path) -> Result<InputFile> {
+    let mut file = std::fs::File::open(path).map_err(|e| Error::io(path, e))?;
+    let mut hasher = Sha256::new();
+    let mut buf = vec![0u8; 1 << 16];
+    loop {
+        let n = file.read(&mut buf).map_err(|e| Error::io(path, e))?;
+        if n == 0 {
+            break;
+        }
+        hasher.update(&buf[..n]);
+    }
+    let digest = hasher.finalize();
+    let sha256 = digest.iter().map(|b| format!("{b:02x}")).collect();
+    Ok(InputFile { role: role.to_string(), path: path.display().to_string(), sha256 })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn latency_percentile_is_nearest_rank() {
+        // Nearest-rank percentile: rank = ceil(0.95 · 20) = 19 (common practice, no source).
+        let ms: Vec<f64> = (1..=20).map(f64::from).collect();
+        assert_eq!(latency_summary(&ms), (10.5, 19.0));
+    }
+
+    #[test]
+    fn baseline_must_exist_and_names_be_unique() {
+        let names = vec![ChainName::from("a"), ChainName::from("b")];
+        assert_eq!(baseline_index(&names, None).unwrap(), 0);
+        assert_eq!(baseline_index(&names, Some(&ChainName::from("b"))).unwrap(), 1);
+        let err = baseline_index(&names, Some(&ChainName::from("c"))).unwrap_err();
+        assert!(err.to_string().contains("expected one of a, b"));
+        let dup = vec![ChainName::from("a"), ChainName::from("a")];
+        assert!(baseline_index(&dup, None).unwrap_err().to_string().contains("twice"));
+    }
+}

@@ -1,0 +1,57 @@
+//! Command-line surface (formats.md's "Commands that scripts rely on"). Each
+//! subcommand has its own file with its clap arguments and a function that
+//! turns them into a typed plan and hands it to the library. No evaluation
+//! logic lives here.
+
+mod common;
+mod gate;
+mod judge;
+mod pool;
+mod run;
+mod score;
+
+use std::process::ExitCode;
+
+use clap::{Parser, Subcommand};
+
+/// Exit code for success (and a passing gate).
+pub const EXIT_OK: u8 = 0;
+/// Exit code for bad input, bad usage or an I/O failure.
+pub const EXIT_BAD_INPUT: u8 = 2;
+
+/// Compare text-analysis chains for short multilingual posts with IR metrics
+/// and paired significance tests.
+#[derive(Debug, Parser)]
+#[command(name = "postassay", version, about, long_about = None)]
+pub struct Cli {
+    #[command(subcommand)]
+    command: Command,
+}
+
+#[derive(Debug, Subcommand)]
+enum Command {
+    /// Index a corpus once per analysis chain, run the queries with BM25 and
+    /// compare the chains (no input flags: the bundled demo bench).
+    Run(run::RunArgs),
+    /// Score existing ranked runs against judgments and compare them.
+    Score(score::ScoreArgs),
+    /// Compare a current report with a baseline report and exit 1 when a
+    /// metric dropped more than allowed (for CI).
+    Gate(gate::GateArgs),
+    /// Gather the unjudged (query, post) pairs of every system's top K into a
+    /// CSV to judge.
+    Pool(pool::PoolArgs),
+    /// Grade pooled pairs in the terminal, appending to a judgments file.
+    Judge(judge::JudgeArgs),
+}
+
+/// Run the parsed command line.
+pub fn execute(cli: Cli) -> anyhow::Result<ExitCode> {
+    match cli.command {
+        Command::Run(args) => run::execute(args),
+        Command::Score(args) => score::execute(args),
+        Command::Gate(args) => gate::execute(args),
+        Command::Pool(args) => pool::execute(args),
+        Command::Judge(args) => judge::execute(args),
+    }
+}

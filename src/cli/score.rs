@@ -1,0 +1,66 @@
+//! `postassay score`: evaluate and compare existing runs.
+
+use std::path::PathBuf;
+use std::process::ExitCode;
+
+use clap::Args;
+
+use postassay::bench::{self, ScorePlan};
+use postassay::error::Error;
+use postassay::ids::ChainName;
+use postassay::report;
+
+use super::common::{check_out_dir, EvalFlags};
+
+#[derive(Debug, Args)]
+pub struct ScoreArgs {
+    /// Judgments: CSV `query_id,doc_id,grade` or the four-column layout.
+    #[arg(long, value_name = "FILE")]
+    judgments: PathBuf,
+    /// A named run, `NAME=FILE` (CSV `query_id,doc_id,rank,score`); repeat for
+    /// each system. The first is the baseline unless --baseline says otherwise.
+    #[arg(long = "run", value_name = "NAME=FILE", required = true)]
+    runs: Vec<String>,
+    /// Optional queries file, for breakdowns by query language and tag.
+    #[arg(long, value_name = "FILE")]
+    queries: Option<PathBuf>,
+    #[command(flatten)]
+    eval: EvalFlags,
+}
+
+pub fn execute(args: ScoreArgs) -> anyhow::Result<ExitCode> {
+    let plan = plan(&args)?;
+    check_out_dir(&args.eval.out)?;
+    let mut progress = args.eval.progress();
+    let out = bench::score(&plan)?;
+    report::write_outputs(&args.eval.out, &out.report, &[])?;
+    progress(&format!("wrote {}", args.eval.out.join("report.md").display()));
+    Ok(ExitCode::SUCCESS)
+}
+
+fn plan(args: &ScoreArgs) -> Result<ScorePlan, Error> {
+    let mut runs: Vec<(ChainName, PathBuf)> = Vec::new();
+    for spec in &args.runs {
+        let (name, file) = spec.split_once('=').ok_or_else(|| {
+            Error::usage(format!("--run: expected NAME=FILE, found {spec:?}"))
+        })?;
+        if name.is_empty() || file.is_empty() {
+            return Err(Error::usage(format!("--run: expected NAME=FILE, found {spec:?}")));
+        }
+        if !name.chars().all(|c| c.is_alphanumeric() || "-_.".contains(c)) {
+            return Err(Error::usage(format!(
+                "--run: a NAME uses letters, digits, '-', '_' and '.', found {name:?}"
+            )));
+        }
+        if runs.iter().any(|(n, _)| n.as_str() == name) {
+            return Err(Error::usage(format!("--run: the name {name:?} is given twice")));
+        }
+        runs.push((ChainName::from(name), PathBuf::from(file)));
+    }
+    Ok(ScorePlan {
+        judgments: args.judgments.clone(),
+        queries: args.queries.clone(),
+        runs,
+        options: args.eval.options()?,
+    })
+}

@@ -1,0 +1,746 @@
+//! The regression gate: compares a current report with a baseline report and
+//! decides, per system and metric, whether retrieval quality dropped more
+//! than allowed. It sits after `report` in the data flow (input → analysis →
+//! index → search → eval → stats → report → **gate**): it reads two
+//! `report.json` documents, recomputes the paired tests from their per-query
+//! values with [`crate::stats`], and hands a [`GateOutcome`] to the Markdown
+//! and JUnit renderers of this module. The CLI maps a failed gate to exit 1.
+//!
+//! # The rule
+//!
+//! Every system present in both reports is checked on every metric present
+//! in both (or on the metrics the caller lists). With drop = baseline mean −
+//! current mean:
+//!
+//! - a metric with no limit of its own (and no `*` limit) may not drop at
+//!   all: any drop larger than [`DROP_TOLERANCE`] fails. The bench is
+//!   deterministic, so an unchanged chain on unchanged inputs gives the same
+//!   numbers bit for bit, and a drop is a real change in ranking; a
+//!   demanding CI user grants tolerance explicitly, metric by metric;
+//! - an absolute limit (`ndcg@10=0.02`) allows a drop up to that amount; a
+//!   relative limit (`map=5`, in percent of the baseline mean) allows a drop
+//!   up to that share; when both are given, exceeding either fails;
+//! - with `require_significance`, a drop that exceeds its limit fails only
+//!   when the paired randomization test of the two reports' per-query values
+//!   (queries matched by id, the current report's seed and number of
+//!   permutations) gives p < α. The paired t-test is computed and shown too,
+//!   for information; the decision uses the randomization test, as the
+//!   reports' own significance marks do. No multiple-comparison adjustment
+//!   is applied: adjusting would make the gate more lenient;
+//! - `unjudged@k` is a diagnostic of the judgments, not of ranking quality:
+//!   it is shown but never gated (and a rise is named in a warning, since it
+//!   means the current chains retrieve posts nobody judged: pool and judge
+//!   them).
+//!
+//! Reports resting on different judgments or queries (their SHA-256 in
+//! `inputs`), or scored with a different relevance threshold, gain or
+//! highest grade, measure different things: the gate refuses them unless
+//! `allow_different_inputs` is set, in which case the differences become
+//! warnings.
+
+mod junit;
+mod markdown;
+
+use std::collections::{BTreeMap, BTreeSet};
+use std::path::{Path, PathBuf};
+
+use serde::Deserialize;
+
+use crate::error::{Error, Result};
+use crate::eval::Metric;
+use crate::ids::{ChainName, QueryId};
+use crate::report::model::{Report, SCHEMA_VERSION};
+use crate::stats;
+
+pub use junit::render_junit;
+pub use markdown::render_markdown;
+
+/// A drop no larger than this is no drop: it absorbs float rounding, like the
+/// 1e-12 tolerance metrics.md uses for ties.
+pub const DROP_TOLERANCE: f64 = 1e-12;
+
+/// Significance level used when none is given.
+pub const DEFAULT_ALPHA: f64 = 0.05;
+
+/// The metric key of a limit that applies to every metric without a limit
+/// of its own (`--max-drop '*=0.01'`).
+pub const ANY_METRIC: &str = "*";
+
+/// The roles of `report.json` `inputs` that must be identical in both
+/// reports (formats.md: a report records each input's SHA-256).
+const SAME_INPUT_ROLES: [&str; 2] = ["judgments", "queries"];
+
+/// The limits of the drop of one metric. Both `None`: no drop is allowed.
+#[derive(Debug, Clone, Copy, Default, PartialEq)]
+pub struct Limit {
+    /// Largest allowed absolute drop of the mean.
+    pub absolute: Option<f64>,
+    /// Largest allowed drop in percent of the baseline mean.
+    pub relative_percent: Option<f64>,
+}
+
+impl Limit {
+    /// True when neither an absolute nor a relative limit is set.
+    pub fn is_zero_tolerance(&self) -> bool {
+        self.absolute.is_none() && self.relative_percent.is_none()
+    }
+
+    /// Whether a drop from `baseline` to `current` exceeds this limit.
+    pub fn is_exceeded(&self, baseline: f64, current: f64) -> bool {
+        let drop = baseline - current;
+        if self.is_zero_tolerance() {
+            return drop > DROP_TOLERANCE;
+        }
+        let over_absolute = self.absolute.is_some_and(|a| drop > a + DROP_TOLERANCE);
+        // Written as an absolute allowance so a baseline mean of 0 needs no
+        // division (no drop below 0 is possible there anyway).
+        let over_relative = self
+            .relative_percent
+            .is_some_and(|p| drop > baseline.abs() * p / 100.0 + DROP_TOLERANCE);
+        over_absolute || over_relative
+    }
+}
+
+/// Drop limits by metric key, as given by `--max-drop` and
+/// `--max-drop-relative`. Default: none (every metric at zero tolerance).
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct Thresholds {
+    absolute: BTreeMap<String, f64>,
+    relative_percent: BTreeMap<String, f64>,
+}
+
+impl Thresholds {
+    /// Add an absolute limit from `METRIC=VALUE` (`ndcg@10=0.02`, or `*=0.02`
+    /// for every metric without its own); VALUE is a finite number ≥ 0.
+    pub fn add_absolute(&mut self, spec: &str) -> Result<()> {
+        let (key, value) = parse_limit(spec, "--max-drop", false)?;
+        insert_once(&mut self.absolute, key, value, "--max-drop")
+    }
+
+    /// Add a relative limit from `METRIC=PCT` (`map=5` or `map=5%`): the
+    /// largest drop in percent of the baseline mean, a finite number ≥ 0.
+    pub fn add_relative(&mut self, spec: &str) -> Result<()> {
+        let (key, value) = parse_limit(spec, "--max-drop-relative", true)?;
+        insert_once(&mut self.relative_percent, key, value, "--max-drop-relative")
+    }
+
+    /// The limit of one metric: its own, else the `*` one, for each kind.
+    pub fn limit(&self, metric: &str) -> Limit {
+        let pick = |m: &BTreeMap<String, f64>| m.get(metric).or_else(|| m.get(ANY_METRIC)).copied();
+        Limit { absolute: pick(&self.absolute), relative_percent: pick(&self.relative_percent) }
+    }
+
+    /// Metric keys named by a limit (without `*`), in byte order.
+    pub fn named_metrics(&self) -> BTreeSet<&str> {
+        self.absolute
+            .keys()
+            .chain(self.relative_percent.keys())
+            .map(String::as_str)
+            .filter(|k| *k != ANY_METRIC)
+            .collect()
+    }
+}
+
+/// Parse `METRIC=VALUE`; the metric key is canonicalised (`p@05` → `p@5`).
+fn parse_limit(spec: &str, flag: &str, percent: bool) -> Result<(String, f64)> {
+    let what = if percent { "METRIC=PCT" } else { "METRIC=VALUE" };
+    let (key, value) = spec
+        .split_once('=')
+        .ok_or_else(|| Error::usage(format!("{flag}: expected {what}, found {spec:?}")))?;
+    let key = key.trim();
+    let key = if key == ANY_METRIC {
+        ANY_METRIC.to_string()
+    } else {
+        let metric: Metric =
+            key.parse().map_err(|e: Error| Error::usage(format!("{flag} {spec:?}: {e}")))?;
+        if metric.is_diagnostic() {
+            return Err(Error::usage(format!(
+                "{flag} {spec:?}: {metric} is a diagnostic of the judgments (the share of \
+                 unjudged posts), not a quality measure, and is never gated; pool and judge \
+                 the unjudged posts instead"
+            )));
+        }
+        metric.key()
+    };
+    let raw = value.trim();
+    let number = if percent { raw.strip_suffix('%').unwrap_or(raw).trim() } else { raw };
+    let unit = if percent { "a percentage" } else { "a number" };
+    let parsed: f64 = number.parse().map_err(|_| {
+        Error::usage(format!("{flag} {spec:?}: expected {unit} ≥ 0 after '=', found {raw:?}"))
+    })?;
+    if !parsed.is_finite() || parsed < 0.0 {
+        return Err(Error::usage(format!(
+            "{flag} {spec:?}: expected {unit} ≥ 0 after '=', found {raw:?}"
+        )));
+    }
+    Ok((key, parsed))
+}
+
+fn insert_once(map: &mut BTreeMap<String, f64>, key: String, value: f64, flag: &str) -> Result<()> {
+    if map.contains_key(&key) {
+        return Err(Error::usage(format!("{flag}: a limit for {key} is given twice")));
+    }
+    map.insert(key, value);
+    Ok(())
+}
+
+/// What the gate is asked to do. `Default` is the demanding gate: every
+/// common metric at zero tolerance, no significance required, α = 0.05,
+/// different inputs refused.
+#[derive(Debug, Clone, PartialEq)]
+pub struct GateSettings {
+    /// Drop limits per metric.
+    pub thresholds: Thresholds,
+    /// Fail only on drops whose paired randomization test has p < `alpha`.
+    pub require_significance: bool,
+    /// Significance level (0 < α < 1).
+    pub alpha: f64,
+    /// Compare reports built on different judgments, queries or scoring
+    /// settings (the differences become warnings).
+    pub allow_different_inputs: bool,
+    /// Gate only these metric keys (canonical); `None`: every common metric.
+    pub metrics: Option<Vec<String>>,
+}
+
+impl Default for GateSettings {
+    fn default() -> GateSettings {
+        GateSettings {
+            thresholds: Thresholds::default(),
+            require_significance: false,
+            alpha: DEFAULT_ALPHA,
+            allow_different_inputs: false,
+            metrics: None,
+        }
+    }
+}
+
+/// A report read from disk, with the path it was read from.
+#[derive(Debug, Clone)]
+pub struct LoadedReport {
+    /// The `report.json` file read.
+    pub path: PathBuf,
+    /// Its content.
+    pub report: Report,
+}
+
+/// The fields read first, to tell "not a report" and "a report of another
+/// layout version" from a malformed report.
+#[derive(Deserialize)]
+struct Probe {
+    schema_version: Option<u32>,
+}
+
+/// Read a report from a report directory (its `report.json`) or from a
+/// `report.json` path. A report of another layout version is refused.
+pub fn load_report(path: &Path) -> Result<LoadedReport> {
+    let file = if path.is_dir() { path.join("report.json") } else { path.to_path_buf() };
+    let text = std::fs::read_to_string(&file).map_err(|e| Error::io(&file, e))?;
+    let json_error = |e: serde_json::Error, what: &str| {
+        let line = u64::try_from(e.line()).unwrap_or(0).max(1);
+        Error::at_line(&file, line, format!("expected {what}, found a problem: {e}"))
+    };
+    let probe: Probe =
+        serde_json::from_str(&text).map_err(|e| json_error(e, "a postassay report.json"))?;
+    match probe.schema_version {
+        None => {
+            return Err(Error::in_file(
+                &file,
+                "expected a postassay report.json with a \"schema_version\" field, found none",
+            ))
+        }
+        Some(v) if v != SCHEMA_VERSION => {
+            return Err(Error::in_file(
+                &file,
+                format!(
+                    "expected report layout schema_version {SCHEMA_VERSION}, found {v}: \
+                     rebuild the report with this version of postassay"
+                ),
+            ))
+        }
+        Some(_) => {}
+    }
+    let report: Report = serde_json::from_str(&text)
+        .map_err(|e| json_error(e, &format!("a report of schema_version {SCHEMA_VERSION}")))?;
+    Ok(LoadedReport { path: file, report })
+}
+
+/// One way two reports differ in what they were built on.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct InputDifference {
+    /// What differs: an input role (`judgments`, `queries`) or a setting
+    /// (`relevant_from`, `gain`, `max_grade`).
+    pub what: String,
+    /// The baseline's side (a hash with its path, or a setting's value).
+    pub baseline: String,
+    /// The current report's side.
+    pub current: String,
+}
+
+/// The differences in judgments, queries and scoring settings between two
+/// reports, in a fixed order (roles, then settings).
+pub fn input_differences(baseline: &Report, current: &Report) -> Vec<InputDifference> {
+    let mut out = Vec::new();
+    let describe = |r: &Report, role: &str| -> String {
+        let found: Vec<String> = r
+            .inputs
+            .iter()
+            .filter(|i| i.role == role)
+            .map(|i| format!("sha256 {} ({})", short_hash(&i.sha256), i.path))
+            .collect();
+        if found.is_empty() {
+            "none".to_string()
+        } else {
+            found.join(", ")
+        }
+    };
+    for role in SAME_INPUT_ROLES {
+        if input_hashes(baseline, role) != input_hashes(current, role) {
+            out.push(InputDifference {
+                what: role.to_string(),
+                baseline: describe(baseline, role),
+                current: describe(current, role),
+            });
+        }
+    }
+    let (b, c) = (&baseline.settings, &current.settings);
+    let settings = [
+        ("relevant_from", b.relevant_from.to_string(), c.relevant_from.to_string()),
+        ("gain", b.gain.clone(), c.gain.clone()),
+        ("max_grade", b.max_grade.to_string(), c.max_grade.to_string()),
+    ];
+    for (what, bv, cv) in settings {
+        if bv != cv {
+            out.push(InputDifference { what: what.to_string(), baseline: bv, current: cv });
+        }
+    }
+    out
+}
+
+/// The SHA-256 of a report's inputs of one role, sorted.
+fn input_hashes<'a>(r: &'a Report, role: &str) -> Vec<&'a str> {
+    let mut h: Vec<&str> =
+        r.inputs.iter().filter(|i| i.role == role).map(|i| i.sha256.as_str()).collect();
+    h.sort_unstable();
+    h
+}
+
+/// The first 12 hex digits of a SHA-256, enough to tell files apart in a
+/// message.
+fn short_hash(h: &str) -> &str {
+    h.get(..12).unwrap_or(h)
+}
+
+/// The outcome of one system × metric check.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord)]
+pub enum Verdict {
+    /// No drop (equal within [`DROP_TOLERANCE`], or better).
+    Pass,
+    /// Dropped, but no more than the limit allows.
+    WithinLimit,
+    /// Dropped beyond the limit, but the paired test is not significant and
+    /// significance is required.
+    NotSignificant,
+    /// A regression: the gate fails.
+    Regression,
+    /// A diagnostic metric (`unjudged@k`): shown, never gated.
+    NotGated,
+}
+
+impl Verdict {
+    /// A short label for tables.
+    pub fn label(self) -> &'static str {
+        match self {
+            Verdict::Pass => "pass",
+            Verdict::WithinLimit => "pass (within limit)",
+            Verdict::NotSignificant => "pass (not significant)",
+            Verdict::Regression => "REGRESSION",
+            Verdict::NotGated => "not gated (diagnostic)",
+        }
+    }
+}
+
+/// One system × metric comparison.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Check {
+    /// The system (chain or run name).
+    pub system: ChainName,
+    /// The metric key.
+    pub metric: String,
+    /// Mean in the baseline report.
+    pub baseline_mean: f64,
+    /// Mean in the current report.
+    pub current_mean: f64,
+    /// The limit that applied.
+    pub limit: Limit,
+    /// Queries evaluated in both reports (the pairs of the tests).
+    pub paired_queries: usize,
+    /// Two-sided paired randomization test p (None with fewer than 2 pairs).
+    pub p_randomization: Option<f64>,
+    /// Two-sided paired t-test p (None with fewer than 2 pairs).
+    pub p_ttest: Option<f64>,
+    /// The decision.
+    pub verdict: Verdict,
+}
+
+impl Check {
+    /// current mean − baseline mean.
+    pub fn delta(&self) -> f64 {
+        self.current_mean - self.baseline_mean
+    }
+}
+
+/// Everything the gate found, ready to render.
+#[derive(Debug, Clone, PartialEq)]
+pub struct GateOutcome {
+    /// The baseline `report.json`.
+    pub baseline_path: PathBuf,
+    /// The current `report.json`.
+    pub current_path: PathBuf,
+    /// Checks in the current report's system order, then its metric order.
+    pub checks: Vec<Check>,
+    /// Systems or metrics present in one report only, differences allowed
+    /// through, and other notes; never failures.
+    pub warnings: Vec<String>,
+    /// Whether only significant drops fail.
+    pub require_significance: bool,
+    /// The significance level.
+    pub alpha: f64,
+    /// Seed of the randomization test.
+    pub seed: u64,
+    /// Sampled sign assignments of the randomization test (n > 16).
+    pub permutations: u32,
+}
+
+impl GateOutcome {
+    /// The checks that failed.
+    pub fn regressions(&self) -> impl Iterator<Item = &Check> {
+        self.checks.iter().filter(|c| c.verdict == Verdict::Regression)
+    }
+
+    /// True when no check failed.
+    pub fn passed(&self) -> bool {
+        self.regressions().next().is_none()
+    }
+
+    /// The one-line verdict (Markdown), e.g. `**PASS**: no regression in 14
+    /// checks.`
+    pub fn verdict_line(&self) -> String {
+        let gated = self.checks.iter().filter(|c| c.verdict != Verdict::NotGated).count();
+        let checks = plural(gated, "check", "checks");
+        let failed: Vec<&Check> = self.regressions().collect();
+        if failed.is_empty() {
+            return format!("**PASS**: no regression in {checks}.");
+        }
+        const NAMED: usize = 5;
+        let mut named: Vec<String> = failed
+            .iter()
+            .take(NAMED)
+            .map(|c| {
+                format!(
+                    "{} {} {} ({})",
+                    markdown::code(c.system.as_str()),
+                    c.metric,
+                    markdown::signed(c.delta()),
+                    markdown::limit_text(&c.limit)
+                )
+            })
+            .collect();
+        if failed.len() > NAMED {
+            named.push(format!("and {} more", failed.len() - NAMED));
+        }
+        format!(
+            "**FAIL**: {} in {checks}: {}.",
+            plural(failed.len(), "regression", "regressions"),
+            named.join(", ")
+        )
+    }
+}
+
+fn plural(n: usize, one: &str, many: &str) -> String {
+    format!("{n} {}", if n == 1 { one } else { many })
+}
+
+/// Compare `current` with `baseline` under `settings`.
+///
+/// Errors (exit 2 in the CLI): reports on different inputs without
+/// `allow_different_inputs` (the message lists every difference), a limit
+/// or `--metrics` entry naming a metric neither report has, or nothing to
+/// compare at all.
+pub fn run_gate(
+    baseline: &LoadedReport,
+    current: &LoadedReport,
+    settings: &GateSettings,
+) -> Result<GateOutcome> {
+    if !(settings.alpha > 0.0 && settings.alpha < 1.0) {
+        return Err(Error::usage(format!(
+            "--alpha: expected a number between 0 and 1, found {}",
+            settings.alpha
+        )));
+    }
+    let (b, c) = (&baseline.report, &current.report);
+    let mut warnings = Vec::new();
+
+    let differences = input_differences(b, c);
+    if !differences.is_empty() {
+        let lines: Vec<String> = differences
+            .iter()
+            .map(|d| format!("{}: baseline {}; current {}", d.what, d.baseline, d.current))
+            .collect();
+        if !settings.allow_different_inputs {
+            return Err(Error::usage(format!(
+                "the reports were not built on the same inputs, so their numbers are not \
+                 comparable (baseline {}, current {}):\n  {}\ngive --allow-different-inputs \
+                 to compare them anyway",
+                baseline.path.display(),
+                current.path.display(),
+                lines.join("\n  ")
+            )));
+        }
+        warnings.extend(lines.into_iter().map(|l| format!("different inputs allowed: {l}")));
+    }
+    let (bc, cc) = (input_hashes(b, "corpus"), input_hashes(c, "corpus"));
+    if bc != cc && !bc.is_empty() && !cc.is_empty() {
+        warnings.push("the corpus differs between the reports".to_string());
+    }
+    let (seed, permutations) = (c.settings.seed, c.settings.permutations);
+    if (b.settings.seed, b.settings.permutations) != (seed, permutations) {
+        warnings.push(format!(
+            "the reports use different test settings (baseline seed {} with {} permutations, \
+             current seed {seed} with {permutations}); the gate uses the current report's",
+            b.settings.seed, b.settings.permutations
+        ));
+    }
+
+    let metrics = gated_metrics(b, c, settings, &mut warnings)?;
+    let systems = common_systems(b, c, &mut warnings);
+    let mut checks = Vec::new();
+    for system in &systems {
+        for metric in &metrics {
+            let (Some(bm), Some(cm)) = (summary_mean(b, system, metric), summary_mean(c, system, metric))
+            else {
+                warnings.push(format!(
+                    "{system} {metric}: a report has no mean for it in its summary; not checked"
+                ));
+                continue;
+            };
+            let (base_values, cur_values) = paired_values(b, c, system, metric);
+            let p_randomization =
+                stats::randomization_test(&cur_values, &base_values, permutations, seed);
+            let p_ttest = stats::paired_t_test(&cur_values, &base_values);
+            let is_diagnostic = metric.parse::<Metric>().is_ok_and(|m| m.is_diagnostic());
+            let limit = settings.thresholds.limit(metric);
+            let verdict = if is_diagnostic {
+                if cm > bm + DROP_TOLERANCE {
+                    warnings.push(format!(
+                        "{system}: {metric} rose from {} to {}: the current ranking retrieves \
+                         more posts nobody judged, which its other metrics count as not \
+                         relevant; pool and judge them (postassay pool, postassay judge)",
+                        markdown::fixed(bm),
+                        markdown::fixed(cm)
+                    ));
+                }
+                Verdict::NotGated
+            } else if !limit.is_exceeded(bm, cm) {
+                if bm - cm > DROP_TOLERANCE {
+                    Verdict::WithinLimit
+                } else {
+                    Verdict::Pass
+                }
+            } else if settings.require_significance
+                && !p_randomization.is_some_and(|p| p < settings.alpha)
+            {
+                Verdict::NotSignificant
+            } else {
+                Verdict::Regression
+            };
+            checks.push(Check {
+                system: system.clone(),
+                metric: metric.clone(),
+                baseline_mean: bm,
+                current_mean: cm,
+                limit,
+                paired_queries: cur_values.len(),
+                p_randomization,
+                p_ttest,
+                verdict,
+            });
+        }
+    }
+    if checks.is_empty() {
+        return Err(Error::usage(format!(
+            "nothing to compare: no system and metric appear in both {} and {}",
+            baseline.path.display(),
+            current.path.display()
+        )));
+    }
+    if settings.require_significance
+        && checks.iter().any(|c| c.verdict == Verdict::NotSignificant && c.paired_queries < 2)
+    {
+        warnings.push(
+            "fewer than 2 queries are evaluated in both reports: no paired test can be run, so \
+             with --require-significance no drop can fail the gate"
+                .to_string(),
+        );
+    }
+    Ok(GateOutcome {
+        baseline_path: baseline.path.clone(),
+        current_path: current.path.clone(),
+        checks,
+        warnings,
+        require_significance: settings.require_significance,
+        alpha: settings.alpha,
+        seed,
+        permutations,
+    })
+}
+
+/// The metrics to check: those listed (or all of the current report's, in
+/// its order) that both reports have; the others become warnings.
+fn gated_metrics(
+    b: &Report,
+    c: &Report,
+    settings: &GateSettings,
+    warnings: &mut Vec<String>,
+) -> Result<Vec<String>> {
+    let in_b: BTreeSet<&str> = b.settings.metrics.iter().map(String::as_str).collect();
+    let in_c: BTreeSet<&str> = c.settings.metrics.iter().map(String::as_str).collect();
+    let known = |m: &str| in_b.contains(m) || in_c.contains(m);
+    for m in settings.thresholds.named_metrics() {
+        if !known(m) {
+            return Err(Error::usage(format!(
+                "a drop limit names {m}, which neither report has (baseline: {}; current: {})",
+                b.settings.metrics.join(","),
+                c.settings.metrics.join(",")
+            )));
+        }
+    }
+    let wanted: Vec<String> = match &settings.metrics {
+        Some(list) => {
+            for m in list {
+                if !known(m) {
+                    return Err(Error::usage(format!(
+                        "--metrics names {m}, which neither report has (baseline: {}; \
+                         current: {})",
+                        b.settings.metrics.join(","),
+                        c.settings.metrics.join(",")
+                    )));
+                }
+            }
+            list.clone()
+        }
+        None => {
+            let mut all = c.settings.metrics.clone();
+            all.extend(b.settings.metrics.iter().filter(|m| !in_c.contains(m.as_str())).cloned());
+            all
+        }
+    };
+    let mut out = Vec::new();
+    for m in wanted {
+        match (in_b.contains(m.as_str()), in_c.contains(m.as_str())) {
+            (true, true) => out.push(m),
+            (true, false) => warnings.push(format!("metric {m} is in the baseline report only")),
+            (false, true) => warnings.push(format!("metric {m} is in the current report only")),
+            (false, false) => {}
+        }
+    }
+    Ok(out)
+}
+
+/// Systems of both reports, in the current report's order; the others
+/// become warnings.
+fn common_systems(b: &Report, c: &Report, warnings: &mut Vec<String>) -> Vec<ChainName> {
+    let names = |r: &Report| -> Vec<ChainName> { r.summary.iter().map(|s| s.system.clone()).collect() };
+    let (in_b, in_c) = (names(b), names(c));
+    for s in in_b.iter().filter(|s| !in_c.contains(s)) {
+        warnings.push(format!("system {s} is in the baseline report only"));
+    }
+    for s in in_c.iter().filter(|s| !in_b.contains(s)) {
+        warnings.push(format!("system {s} is in the current report only"));
+    }
+    in_c.into_iter().filter(|s| in_b.contains(s)).collect()
+}
+
+fn summary_mean(r: &Report, system: &ChainName, metric: &str) -> Option<f64> {
+    r.summary
+        .iter()
+        .find(|s| &s.system == system)?
+        .metrics
+        .iter()
+        .find(|m| m.metric == metric)
+        .map(|m| m.mean)
+}
+
+/// Per-query values of `metric` for `system` in both reports, over the
+/// queries both evaluated, in byte order of the query id.
+fn paired_values(b: &Report, c: &Report, system: &ChainName, metric: &str) -> (Vec<f64>, Vec<f64>) {
+    let values = |r: &Report| -> BTreeMap<QueryId, f64> {
+        let Some(m) = r.metric_index(metric) else { return BTreeMap::new() };
+        r.per_query
+            .iter()
+            .filter(|p| &p.system == system)
+            .flat_map(|p| p.queries.iter())
+            .filter_map(|q| q.values.get(m).map(|v| (q.query_id.clone(), *v)))
+            .collect()
+    };
+    let (bv, cv) = (values(b), values(c));
+    bv.iter().filter_map(|(q, b)| cv.get(q).map(|c| (*b, *c))).unzip()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn zero_tolerance_fails_any_drop_beyond_rounding() {
+        let none = Limit::default();
+        assert!(!none.is_exceeded(0.5, 0.5));
+        assert!(!none.is_exceeded(0.5, 0.6));
+        assert!(!none.is_exceeded(0.5, 0.5 - 1e-13));
+        assert!(none.is_exceeded(0.5, 0.5 - 1e-9));
+    }
+
+    #[test]
+    fn absolute_and_relative_limits() {
+        let abs = Limit { absolute: Some(0.02), relative_percent: None };
+        assert!(!abs.is_exceeded(0.50, 0.48), "a drop equal to the limit passes");
+        assert!(abs.is_exceeded(0.50, 0.479));
+        // 5% of 0.40 is 0.02.
+        let rel = Limit { absolute: None, relative_percent: Some(5.0) };
+        assert!(!rel.is_exceeded(0.40, 0.381));
+        assert!(rel.is_exceeded(0.40, 0.379));
+        // Both: exceeding either fails (0.015 ≤ 0.02 but > 5% of 0.2 = 0.01).
+        let both = Limit { absolute: Some(0.02), relative_percent: Some(5.0) };
+        assert!(both.is_exceeded(0.20, 0.185));
+        assert!(!both.is_exceeded(0.20, 0.191));
+        // A baseline of 0 cannot drop.
+        assert!(!rel.is_exceeded(0.0, 0.0));
+    }
+
+    #[test]
+    fn thresholds_parse_canonicalise_and_fall_back_to_star() {
+        let mut t = Thresholds::default();
+        t.add_absolute("p@05=0.1").unwrap();
+        t.add_absolute("*=0.03").unwrap();
+        t.add_relative("map=5%").unwrap();
+        t.add_relative("ndcg@10 = 2.5").unwrap();
+        assert_eq!(t.limit("p@5"), Limit { absolute: Some(0.1), relative_percent: None });
+        assert_eq!(t.limit("map"), Limit { absolute: Some(0.03), relative_percent: Some(5.0) });
+        assert_eq!(t.limit("ndcg@10"), Limit { absolute: Some(0.03), relative_percent: Some(2.5) });
+        assert_eq!(t.named_metrics().into_iter().collect::<Vec<_>>(), ["map", "ndcg@10", "p@5"]);
+        assert!(Thresholds::default().limit("mrr").is_zero_tolerance());
+    }
+
+    #[test]
+    fn thresholds_reject_bad_specs() {
+        let mut t = Thresholds::default();
+        let err = |r: Result<()>| r.unwrap_err().to_string();
+        assert!(err(t.add_absolute("ndcg@10")).contains("expected METRIC=VALUE"));
+        assert!(err(t.add_absolute("ndcg@10=-1")).contains("expected a number ≥ 0"));
+        assert!(err(t.add_absolute("ndcg@10=NaN")).contains("expected a number ≥ 0"));
+        assert!(err(t.add_relative("map=x%")).contains("expected a percentage ≥ 0"));
+        assert!(err(t.add_absolute("ndgc@10=0.1")).contains("unknown metric"));
+        assert!(err(t.add_absolute("unjudged@10=0.1")).contains("never gated"));
+        t.add_absolute("map=0.1").unwrap();
+        assert!(err(t.add_absolute("map=0.2")).contains("given twice"));
+    }
+}

@@ -1,0 +1,238 @@
+//! One tantivy index per analysis chain. Third stage of the data flow: takes
+//! validated posts (`input`) and a built chain (`analysis`), writes an index in
+//! a temporary directory and measures what the chain costs (build time, size
+//! on disk, distinct terms, tokens per post).
+//!
+//! Each post is indexed under a dense ordinal (its position in the corpus) in
+//! a fast field, so search maps hits back to [`PostId`]s without stored
+//! fields. A routed chain has one text field per language plus a fallback
+//! field; every post goes to exactly one of them, chosen by the chain from the
+//! post's declared language or the detection made once per post by the
+//! caller.
+
+use std::collections::{BTreeMap, HashSet};
+use std::path::Path;
+use std::time::Instant;
+
+use serde::Serialize;
+use tantivy::schema::{
+    Field, IndexRecordOption, NumericOptions, Schema, TextFieldIndexing, TextOptions,
+};
+use tantivy::tokenizer::TokenStream;
+use tantivy::{Index, IndexReader, ReloadPolicy, TantivyDocument};
+
+use crate::analysis::detect::Detection;
+use crate::analysis::Analyzer;
+use crate::error::{Error, Result};
+use crate::ids::PostId;
+use crate::input::Post;
+
+/// Name of the fast field holding a post's ordinal in the corpus.
+pub(crate) const ORD_FIELD: &str = "ord";
+
+/// Indexing memory budget shared by all writer threads (tantivy needs at
+/// least 15 MB per thread).
+const WRITER_BUDGET_BYTES: usize = 120_000_000;
+
+/// What building one chain's index cost.
+#[derive(Debug, Clone, Serialize, PartialEq)]
+pub struct BuildCost {
+    /// Wall-clock seconds to analyse and index every post and commit.
+    pub build_seconds: f64,
+    /// Bytes on disk of the committed index.
+    pub index_bytes: u64,
+    /// Distinct terms over all text fields.
+    pub distinct_terms: u64,
+    /// Mean number of tokens the chain produced per post.
+    pub mean_tokens_per_post: f64,
+    /// Posts indexed under each field key (`text`, or `text_en`, …,
+    /// `text_other` for routed chains), in key order.
+    pub posts_per_field: BTreeMap<String, u64>,
+}
+
+/// A built index for one chain, living in a temporary directory that is
+/// removed when this value is dropped.
+pub struct ChainIndex {
+    index: Index,
+    reader: IndexReader,
+    fields: Vec<Field>,
+    ords: Vec<PostId>,
+    cost: BuildCost,
+    _dir: tempfile::TempDir,
+}
+
+impl ChainIndex {
+    /// Build the index of `posts` with `analyzer`. `detections[i]` is the
+    /// language detected for `posts[i]` (only read by routed chains; pass an
+    /// empty slice when the chain is not routed). `threads` indexing threads
+    /// are used (at least 1).
+    pub fn build(
+        analyzer: &Analyzer,
+        posts: &[Post],
+        detections: &[Option<Detection>],
+        threads: usize,
+    ) -> Result<ChainIndex> {
+        let started = Instant::now();
+        let dir = tempfile::Builder::new()
+            .prefix("postassay-index-")
+            .tempdir()
+            .map_err(|e| Error::io(&std::env::temp_dir(), e))?;
+
+        let mut builder = Schema::builder();
+        let ord_field = builder.add_u64_field(ORD_FIELD, NumericOptions::default().set_fast());
+        let mut fields = Vec::with_capacity(analyzer.fields().len());
+        for fa in analyzer.fields() {
+            let indexing = TextFieldIndexing::default()
+                .set_tokenizer(&tokenizer_name(analyzer, &fa.key))
+                .set_index_option(IndexRecordOption::WithFreqsAndPositions);
+            let options = TextOptions::default().set_indexing_options(indexing);
+            fields.push(builder.add_text_field(&fa.key, options));
+        }
+        let schema = builder.build();
+        let index = Index::create_in_dir(dir.path(), schema).map_err(tantivy_err)?;
+        for fa in analyzer.fields() {
+            index.tokenizers().register(&tokenizer_name(analyzer, &fa.key), fa.analyzer.clone());
+        }
+
+        let threads = threads.max(1);
+        let mut writer = index
+            .writer_with_num_threads::<TantivyDocument>(threads, WRITER_BUDGET_BYTES)
+            .map_err(tantivy_err)?;
+        let mut posts_per_field: BTreeMap<String, u64> =
+            analyzer.fields().iter().map(|f| (f.key.clone(), 0)).collect();
+        let mut ords = Vec::with_capacity(posts.len());
+        for (i, post) in posts.iter().enumerate() {
+            let detected = detections.get(i).and_then(Option::as_ref);
+            let slot = analyzer.field_for_post(post.lang, detected);
+            let (field, fa) = fields
+                .get(slot)
+                .zip(analyzer.fields().get(slot))
+                .ok_or_else(|| Error::index(format!("chain routed a post to field {slot}")))?;
+            *posts_per_field.entry(fa.key.clone()).or_default() += 1;
+            let mut doc = TantivyDocument::default();
+            doc.add_u64(ord_field, i as u64);
+            doc.add_text(*field, &post.text);
+            writer.add_document(doc).map_err(tantivy_err)?;
+            ords.push(post.id.clone());
+        }
+        writer.commit().map_err(tantivy_err)?;
+        writer.wait_merging_threads().map_err(tantivy_err)?;
+        let build_seconds = started.elapsed().as_secs_f64();
+
+        let reader = index
+            .reader_builder()
+            .reload_policy(ReloadPolicy::Manual)
+            .try_into()
+            .map_err(tantivy_err)?;
+        let searcher = reader.searcher();
+        let distinct_terms = count_distinct_terms(&searcher, &fields)?;
+        let total_tokens = count_tokens(analyzer, posts, detections);
+        let mean_tokens_per_post =
+            if posts.is_empty() { 0.0 } else { total_tokens as f64 / posts.len() as f64 };
+        let index_bytes = dir_size(dir.path())?;
+        Ok(ChainIndex {
+            index,
+            reader,
+            fields,
+            ords,
+            cost: BuildCost {
+                build_seconds,
+                index_bytes,
+                distinct_terms,
+                mean_tokens_per_post,
+                posts_per_field,
+            },
+            _dir: dir,
+        })
+    }
+
+    /// The tantivy index.
+    pub fn index(&self) -> &Index {
+        &self.index
+    }
+
+    /// A reader on the committed index.
+    pub fn reader(&self) -> &IndexReader {
+        &self.reader
+    }
+
+    /// The text field of each of the chain's field analyzers, in the same order.
+    pub fn fields(&self) -> &[Field] {
+        &self.fields
+    }
+
+    /// The post id at a corpus ordinal.
+    pub fn post_id(&self, ord: u64) -> Option<&PostId> {
+        usize::try_from(ord).ok().and_then(|i| self.ords.get(i))
+    }
+
+    /// What building this index cost.
+    pub fn cost(&self) -> &BuildCost {
+        &self.cost
+    }
+}
+
+fn tokenizer_name(analyzer: &Analyzer, key: &str) -> String {
+    format!("{}/{}", analyzer.name(), key)
+}
+
+/// Convert a tantivy error into ours.
+pub(crate) fn tantivy_err(e: tantivy::TantivyError) -> Error {
+    Error::index(e.to_string())
+}
+
+/// Distinct terms over every text field and segment (a term is counted once
+/// per field: routed chains keep languages apart on purpose).
+fn count_distinct_terms(searcher: &tantivy::Searcher, fields: &[Field]) -> Result<u64> {
+    let mut total = 0u64;
+    for &field in fields {
+        if searcher.segment_readers().len() == 1 {
+            let inv = searcher.segment_reader(0).inverted_index(field).map_err(tantivy_err)?;
+            total += inv.terms().num_terms() as u64;
+            continue;
+        }
+        let mut seen: HashSet<Vec<u8>> = HashSet::new();
+        for seg in searcher.segment_readers() {
+            let inv = seg.inverted_index(field).map_err(tantivy_err)?;
+            let mut stream =
+                inv.terms().stream().map_err(|e| Error::index(format!("term stream: {e}")))?;
+            while stream.advance() {
+                if !seen.contains(stream.key()) {
+                    seen.insert(stream.key().to_vec());
+                }
+            }
+        }
+        total += seen.len() as u64;
+    }
+    Ok(total)
+}
+
+/// Tokens the chain produces over the corpus (each post analysed by the field
+/// it is routed to).
+fn count_tokens(analyzer: &Analyzer, posts: &[Post], detections: &[Option<Detection>]) -> u64 {
+    let mut analyzers: Vec<_> = analyzer.fields().iter().map(|f| f.analyzer.clone()).collect();
+    let mut total = 0u64;
+    for (i, post) in posts.iter().enumerate() {
+        let detected = detections.get(i).and_then(Option::as_ref);
+        let slot = analyzer.field_for_post(post.lang, detected);
+        if let Some(a) = analyzers.get_mut(slot) {
+            let mut stream = a.token_stream(&post.text);
+            while stream.advance() {
+                total += 1;
+            }
+        }
+    }
+    total
+}
+
+fn dir_size(path: &Path) -> Result<u64> {
+    let mut total = 0;
+    for entry in std::fs::read_dir(path).map_err(|e| Error::io(path, e))? {
+        let entry = entry.map_err(|e| Error::io(path, e))?;
+        let meta = entry.metadata().map_err(|e| Error::io(&entry.path(), e))?;
+        if meta.is_file() {
+            total += meta.len();
+        }
+    }
+    Ok(total)
+}

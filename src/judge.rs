@@ -1,0 +1,665 @@
+//! Judging in the terminal: shows one pooled (query, post) pair at a time,
+//! takes a grade key and appends `query_id,doc_id,grade` to the judgments
+//! file. A side branch of the data flow: it reads a pool written by
+//! [`crate::pool`] and extends the judgments that the input stage of the
+//! next bench run reads. Terminal handling (raw keys, colour) is the CLI's;
+//! this module holds the session logic and the crash-safe appending.
+//!
+//! # Safety of the judgments file
+//!
+//! - Lines that exist are never rewritten: grades are only appended, each
+//!   line with a single `write_all` of the whole line followed by an fsync,
+//!   so a crash or `kill -9` leaves either the whole line or nothing.
+//! - A file that does not end with a line end when the session starts (a
+//!   torn tail left by another program) is refused, naming the line, rather
+//!   than appended to (the next line would be glued onto it).
+//! - A missing or empty file is created with the header
+//!   `query_id,doc_id,grade`. An existing file keeps its layout: CSV lines
+//!   follow its header's column order (extra columns left empty), the
+//!   four-column layout gets `query_id 0 doc_id grade`, and CRLF files get
+//!   CRLF.
+//! - Pairs already judged are skipped, so a session resumes where the last
+//!   one stopped. One session per file at a time: two sessions appending to
+//!   the same file could grade the same pair twice.
+//!
+//! # Undo
+//!
+//! The judgments reader treats one pair with two different grades as an
+//! error, so undo cannot append a correction, and rewriting the file would
+//! break the rule above. Instead the latest decision stays *pending* in
+//! memory: `u` takes it back (and shows its pair again); the next decision,
+//! `q`, the end of a script, or the end of the pool writes it. Only that one
+//! decision can be undone. The cost: a crash or `kill -9` loses the pending
+//! grade, the one still open to undo, and never anything else.
+
+use std::collections::BTreeSet;
+use std::fmt::Write as _;
+use std::fs::{File, OpenOptions};
+use std::io::{BufRead, Read, Write};
+use std::path::{Path, PathBuf};
+
+use crate::error::{Error, Result};
+use crate::ids::{PostId, QueryId};
+use crate::input::{read_judgments, Judgments};
+use crate::pool::PoolItem;
+
+/// The grade scale shown to the judge, with each grade's meaning.
+pub const GRADE_SCALE: [(u32, &str); 4] =
+    [(0, "not relevant"), (1, "marginal"), (2, "relevant"), (3, "highly relevant")];
+
+/// The header written into a new judgments file.
+pub const JUDGMENTS_HEADER: &str = "query_id,doc_id,grade";
+
+/// One command of the judge.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Key {
+    /// Grade the shown pair.
+    Grade(u32),
+    /// Take back the pending decision.
+    Undo,
+    /// Leave the shown pair unjudged (it is shown again next session).
+    Skip,
+    /// Save the pending decision and stop.
+    Quit,
+    /// Show the keys.
+    Help,
+}
+
+impl Key {
+    /// The key of one typed character (`0`–`3`, `u`, `s`, `q`, `?`/`h`;
+    /// upper case too).
+    pub fn from_char(c: char) -> Option<Key> {
+        match c.to_ascii_lowercase() {
+            d @ '0'..='3' => d.to_digit(10).map(Key::Grade),
+            'u' => Some(Key::Undo),
+            's' => Some(Key::Skip),
+            'q' => Some(Key::Quit),
+            '?' | 'h' => Some(Key::Help),
+            _ => None,
+        }
+    }
+
+    /// The key of one line of a script (surrounding whitespace ignored).
+    /// `None` for anything else; an empty line is the caller's to skip.
+    pub fn from_line(line: &str) -> Option<Key> {
+        let mut chars = line.trim().chars();
+        match (chars.next(), chars.next()) {
+            (Some(c), None) => Key::from_char(c),
+            _ => None,
+        }
+    }
+}
+
+/// The keys, for prompts and help.
+pub fn keys_help() -> String {
+    let grades: Vec<String> = GRADE_SCALE.iter().map(|(g, m)| format!("{g} {m}")).collect();
+    format!("{} · s skip · u undo · q quit", grades.join(" · "))
+}
+
+/// How lines are laid out in the judgments file being appended to.
+#[derive(Debug, Clone, PartialEq, Eq)]
+enum Layout {
+    /// CSV with a header: number of columns and where the three are.
+    Csv { width: usize, query: usize, doc: usize, grade: usize },
+    /// `query_id iteration doc_id grade`, whitespace-separated.
+    FourColumn,
+}
+
+/// What a judgments file holds before appending.
+#[derive(Debug)]
+struct Inspection {
+    layout: Layout,
+    /// Whether any judgment line follows the header.
+    has_judgments: bool,
+    /// The line end of the first line (`\r\n` or `\n`).
+    line_end: &'static str,
+}
+
+/// Look at an existing, non-empty judgments file: refuse a torn tail, find
+/// the layout, the line end and whether it holds any judgment.
+fn inspect(path: &Path) -> Result<Inspection> {
+    let mut file = File::open(path).map_err(|e| Error::io(path, e))?;
+    let mut bytes = Vec::new();
+    // The whole file is read once here; judgment files are small (one short
+    // line per judged pair).
+    file.read_to_end(&mut bytes).map_err(|e| Error::io(path, e))?;
+    if bytes.last().is_some_and(|&b| b != b'\n') {
+        let line = bytes.iter().filter(|&&b| b == b'\n').count() as u64 + 1;
+        return Err(Error::at_line(
+            path,
+            line,
+            "the file does not end with a line end: the last line may be a torn write of an \
+             interrupted program; complete or remove it before judging",
+        ));
+    }
+    let text = bytes.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(&bytes);
+    let mut lines = text.split(|&b| b == b'\n').enumerate().filter(|(_, l)| !l.trim_ascii().is_empty());
+    let Some((first_index, first)) = lines.next() else {
+        return Ok(Inspection {
+            layout: Layout::Csv { width: 3, query: 0, doc: 1, grade: 2 },
+            has_judgments: false,
+            line_end: "\n",
+        });
+    };
+    let line_end = if first.ends_with(b"\r") { "\r\n" } else { "\n" };
+    let first = String::from_utf8_lossy(first);
+    let fields: Vec<&str> = first.trim_end_matches('\r').split(',').map(str::trim).collect();
+    let has_more = lines.next().is_some();
+    if fields.contains(&"query_id") {
+        let find = |name: &str| fields.iter().position(|f| *f == name);
+        match (find("query_id"), find("doc_id"), find("grade")) {
+            (Some(query), Some(doc), Some(grade)) => Ok(Inspection {
+                layout: Layout::Csv { width: fields.len(), query, doc, grade },
+                has_judgments: has_more,
+                line_end,
+            }),
+            _ => Err(Error::at_line(
+                path,
+                first_index as u64 + 1,
+                format!("expected the header {JUDGMENTS_HEADER:?}, found {:?}", first.trim_end()),
+            )),
+        }
+    } else {
+        Ok(Inspection { layout: Layout::FourColumn, has_judgments: true, line_end })
+    }
+}
+
+/// Read a judgments file that may hold no judgment yet: a missing file, an
+/// empty file or a header alone give empty judgments (the judgments reader
+/// refuses them, rightly, as a bench input). Anything else goes through
+/// [`read_judgments`] and its validation.
+pub fn read_judgments_allow_empty(path: &Path) -> Result<(Judgments, Vec<String>)> {
+    if !path.exists() {
+        return Ok((Judgments::default(), Vec::new()));
+    }
+    let inspection = inspect(path)?;
+    if inspection.has_judgments {
+        read_judgments(path)
+    } else {
+        Ok((Judgments::default(), Vec::new()))
+    }
+}
+
+/// Appends grades to a judgments file, one whole line per write, each
+/// followed by an fsync.
+#[derive(Debug)]
+pub struct JudgmentsAppender {
+    path: PathBuf,
+    file: File,
+    layout: Layout,
+    line_end: &'static str,
+}
+
+impl JudgmentsAppender {
+    /// Open `path` for appending (created with the header when missing or
+    /// empty) and read the judgments it already holds.
+    pub fn open(path: &Path) -> Result<(JudgmentsAppender, Judgments)> {
+        let is_empty = match std::fs::metadata(path) {
+            Ok(m) => m.len() == 0,
+            Err(e) if e.kind() == std::io::ErrorKind::NotFound => true,
+            Err(e) => return Err(Error::io(path, e)),
+        };
+        let mut file = OpenOptions::new()
+            .append(true)
+            .create(true)
+            .open(path)
+            .map_err(|e| Error::io(path, e))?;
+        if is_empty {
+            file.write_all(format!("{JUDGMENTS_HEADER}\n").as_bytes())
+                .and_then(|()| file.sync_all())
+                .map_err(|e| Error::io(path, e))?;
+            sync_parent(path);
+        }
+        let inspection = inspect(path)?;
+        let judgments = if inspection.has_judgments {
+            read_judgments(path)?.0
+        } else {
+            Judgments::default()
+        };
+        let appender = JudgmentsAppender {
+            path: path.to_path_buf(),
+            file,
+            layout: inspection.layout,
+            line_end: inspection.line_end,
+        };
+        Ok((appender, judgments))
+    }
+
+    /// The file appended to.
+    pub fn path(&self) -> &Path {
+        &self.path
+    }
+
+    /// The line that records `grade` for the pair, line end included.
+    fn line(&self, query: &QueryId, doc: &PostId, grade: u32) -> Result<Vec<u8>> {
+        match self.layout {
+            Layout::Csv { width, query: qc, doc: dc, grade: gc } => {
+                let mut fields = vec![String::new(); width];
+                for (c, v) in [(qc, query.to_string()), (dc, doc.to_string()), (gc, grade.to_string())] {
+                    if let Some(f) = fields.get_mut(c) {
+                        *f = v;
+                    }
+                }
+                let terminator = if self.line_end == "\r\n" {
+                    csv::Terminator::CRLF
+                } else {
+                    csv::Terminator::Any(b'\n')
+                };
+                let mut w = csv::WriterBuilder::new().terminator(terminator).from_writer(Vec::new());
+                w.write_record(&fields)
+                    .map_err(|e| Error::usage(format!("formatting a judgment: {e}")))?;
+                w.into_inner().map_err(|e| Error::usage(format!("formatting a judgment: {e}")))
+            }
+            Layout::FourColumn => {
+                let bad = |id: &str| id.is_empty() || id.chars().any(char::is_whitespace);
+                if bad(query.as_str()) || bad(doc.as_str()) {
+                    return Err(Error::in_file(
+                        &self.path,
+                        format!(
+                            "cannot write the pair ({query:?}, {doc:?}) in the four-column \
+                             layout: an id holds whitespace"
+                        ),
+                    ));
+                }
+                Ok(format!("{query} 0 {doc} {grade}{}", self.line_end).into_bytes())
+            }
+        }
+    }
+
+    /// Append one grade: one `write_all` of the whole line, then fsync.
+    pub fn append(&mut self, query: &QueryId, doc: &PostId, grade: u32) -> Result<()> {
+        let line = self.line(query, doc, grade)?;
+        self.file.write_all(&line).map_err(|e| Error::io(&self.path, e))?;
+        self.file.sync_data().map_err(|e| Error::io(&self.path, e))
+    }
+}
+
+/// Make a newly created file's directory entry durable (best effort: some
+/// systems cannot open a directory for syncing).
+fn sync_parent(path: &Path) {
+    let dir = path.parent().filter(|p| !p.as_os_str().is_empty()).unwrap_or(Path::new("."));
+    if let Ok(d) = File::open(dir) {
+        let _ = d.sync_all();
+    }
+}
+
+/// The decision that is still open to undo.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Pending {
+    /// A grade not yet written, for the pair at this queue position.
+    Grade { at: usize, grade: u32 },
+    /// A skip (never written), at this queue position.
+    Skip { at: usize },
+}
+
+impl Pending {
+    fn at(self) -> usize {
+        match self {
+            Pending::Grade { at, .. } | Pending::Skip { at } => at,
+        }
+    }
+}
+
+/// What happened after a key, for the front end to show.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub enum Step {
+    /// Show the current pair (or the end prompt) again, with a note.
+    Continue(String),
+    /// The session is over: every decision is saved.
+    Finished,
+}
+
+/// A judging session over the unjudged pairs of a pool.
+#[derive(Debug)]
+pub struct Session {
+    items: Vec<PoolItem>,
+    /// Indices into `items` of the pairs to judge, in pool order.
+    queue: Vec<usize>,
+    position: usize,
+    pending: Option<Pending>,
+    appender: JudgmentsAppender,
+    already_judged: usize,
+    graded: usize,
+    skipped: usize,
+}
+
+impl Session {
+    /// Start a session: the pool's pairs that `judged` does not hold (each
+    /// pair once, in pool order).
+    pub fn new(items: Vec<PoolItem>, appender: JudgmentsAppender, judged: &Judgments) -> Session {
+        let mut seen: BTreeSet<(&QueryId, &PostId)> = BTreeSet::new();
+        let mut queue = Vec::new();
+        let mut already_judged = 0;
+        for (i, item) in items.iter().enumerate() {
+            if !seen.insert((&item.query, &item.doc)) {
+                continue;
+            }
+            if judged.for_query(&item.query).is_some_and(|j| j.contains_key(&item.doc)) {
+                already_judged += 1;
+            } else {
+                queue.push(i);
+            }
+        }
+        Session {
+            items,
+            queue,
+            position: 0,
+            pending: None,
+            appender,
+            already_judged,
+            graded: 0,
+            skipped: 0,
+        }
+    }
+
+    /// One line on where the session starts.
+    pub fn opening(&self) -> String {
+        format!(
+            "judging into {}: {} pairs in the pool, {} already judged, {} to go",
+            self.appender.path().display(),
+            self.queue.len() + self.already_judged,
+            self.already_judged,
+            self.queue.len()
+        )
+    }
+
+    /// The pair to judge now; `None` at the end of the pool.
+    pub fn current(&self) -> Option<&PoolItem> {
+        self.queue.get(self.position).and_then(|&i| self.items.get(i))
+    }
+
+    /// Apply one key.
+    pub fn apply(&mut self, key: Key) -> Result<Step> {
+        match key {
+            Key::Grade(g) => {
+                if self.current().is_none() {
+                    return Ok(Step::Continue(self.end_note()));
+                }
+                self.flush()?;
+                self.pending = Some(Pending::Grade { at: self.position, grade: g });
+                self.position += 1;
+                Ok(Step::Continue(String::new()))
+            }
+            Key::Skip => {
+                if self.current().is_none() {
+                    return Ok(Step::Continue(self.end_note()));
+                }
+                self.flush()?;
+                self.pending = Some(Pending::Skip { at: self.position });
+                self.position += 1;
+                Ok(Step::Continue(String::new()))
+            }
+            Key::Undo => match self.pending.take() {
+                Some(p) => {
+                    self.position = p.at();
+                    let what = match p {
+                        Pending::Grade { grade, .. } => format!("grade {grade}"),
+                        Pending::Skip { .. } => "skip".to_string(),
+                    };
+                    Ok(Step::Continue(format!("undone: {what} of the pair below")))
+                }
+                None => Ok(Step::Continue(
+                    "nothing to undo: only the latest decision can be undone, and saved grades \
+                     are never rewritten"
+                        .to_string(),
+                )),
+            },
+            Key::Help => Ok(Step::Continue(format!("keys: {}", keys_help()))),
+            Key::Quit => {
+                self.finish()?;
+                Ok(Step::Finished)
+            }
+        }
+    }
+
+    /// Write the pending grade, if any (call at the end of input).
+    pub fn finish(&mut self) -> Result<()> {
+        self.flush()
+    }
+
+    fn end_note(&self) -> String {
+        "no more pairs: u to undo the latest decision, q to finish".to_string()
+    }
+
+    /// Write the pending decision (a skip writes nothing).
+    fn flush(&mut self) -> Result<()> {
+        match self.pending.take() {
+            Some(Pending::Grade { at, grade }) => {
+                let item = self
+                    .queue
+                    .get(at)
+                    .and_then(|&i| self.items.get(i))
+                    .expect("pending positions index the queue");
+                self.appender.append(&item.query, &item.doc, grade)?;
+                self.graded += 1;
+            }
+            Some(Pending::Skip { .. }) => self.skipped += 1,
+            None => {}
+        }
+        Ok(())
+    }
+
+    /// One line summing up the session.
+    pub fn closing(&self) -> String {
+        let left = self.queue.len().saturating_sub(self.position);
+        format!(
+            "saved {} grades to {}; {} skipped and {} not reached are left for the next session",
+            self.graded,
+            self.appender.path().display(),
+            self.skipped,
+            left
+        )
+    }
+
+    /// The screen for the current state: the pair with the scale, or the end
+    /// prompt. `color` adds ANSI bold/dim (the caller checks the terminal
+    /// and `NO_COLOR`).
+    pub fn render(&self, note: &str, color: bool) -> String {
+        let (bold, dim, reset) = if color { ("\x1b[1m", "\x1b[2m", "\x1b[0m") } else { ("", "", "") };
+        let mut s = String::new();
+        if !note.is_empty() {
+            let _ = writeln!(s, "{dim}{}{reset}", sanitize(note));
+        }
+        if let Some(Pending::Grade { at, grade }) = self.pending {
+            if let Some(item) = self.queue.get(at).and_then(|&i| self.items.get(i)) {
+                let _ = writeln!(
+                    s,
+                    "{dim}last: {} / {} = {grade} (u to undo){reset}",
+                    sanitize(item.query.as_str()),
+                    sanitize(item.doc.as_str())
+                );
+            }
+        }
+        let Some(item) = self.current() else {
+            let _ = writeln!(s, "{bold}end of the pool{reset}: u undo · q finish");
+            return s;
+        };
+        let _ = writeln!(
+            s,
+            "── pair {} of {} ──",
+            self.position + 1 + self.already_judged,
+            self.queue.len() + self.already_judged
+        );
+        let _ = writeln!(
+            s,
+            "query {}: {bold}{}{reset}",
+            sanitize(item.query.as_str()),
+            sanitize(&item.query_text)
+        );
+        let mut about = Vec::new();
+        if !item.best_rank.is_empty() {
+            about.push(format!("best rank {}", sanitize(&item.best_rank)));
+        }
+        if !item.systems.is_empty() {
+            about.push(format!("from {}", sanitize(&item.systems.replace(';', ", "))));
+        }
+        let about =
+            if about.is_empty() { String::new() } else { format!(" {dim}({}){reset}", about.join("; ")) };
+        let _ = writeln!(s, "post {}{about}:", sanitize(item.doc.as_str()));
+        for line in item.post_text.lines() {
+            let _ = writeln!(s, "    {}", sanitize(line));
+        }
+        if item.post_text.is_empty() {
+            let _ = writeln!(s, "    {dim}(no text in the pool){reset}");
+        }
+        let _ = writeln!(s, "{}", keys_help());
+        s
+    }
+}
+
+/// Text from files made safe for a terminal: control characters (which
+/// could move the cursor or recolour the screen) become U+FFFD; tabs stay.
+fn sanitize(text: &str) -> String {
+    text.chars().map(|c| if c.is_control() && c != '\t' { '\u{FFFD}' } else { c }).collect()
+}
+
+/// Read keys from a script, one per line (blank lines skipped): the
+/// non-terminal front end. Returns the key and its 1-based line, or an
+/// error naming the line that is not a key.
+pub fn script_keys<R: BufRead>(input: R) -> impl Iterator<Item = Result<(u64, Key)>> {
+    input.lines().zip(1u64..).filter_map(|(line, number)| {
+        let stdin = Path::new("<stdin>");
+        match line {
+            Err(e) => Some(Err(Error::io(stdin, e))),
+            Ok(l) if l.trim().is_empty() => None,
+            Ok(l) => Some(Key::from_line(&l).map(|k| (number, k)).ok_or_else(|| {
+                Error::at_line(
+                    stdin,
+                    number,
+                    format!("expected one key per line ({}), found {:?}", keys_help(), l.trim()),
+                )
+            })),
+        }
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn item(q: &str, d: &str) -> PoolItem {
+        PoolItem {
+            line: 2,
+            query: QueryId::from(q),
+            doc: PostId::from(d),
+            best_rank: "1".to_string(),
+            systems: "a;b".to_string(),
+            query_text: "Fähre".to_string(),
+            post_text: "Die Fähre 🚢 ist spät\x1b[31m".to_string(),
+        }
+    }
+
+    fn session(dir: &Path, existing: Option<&str>) -> Session {
+        let path = dir.join("j.csv");
+        if let Some(text) = existing {
+            std::fs::write(&path, text).unwrap();
+        }
+        let (appender, judged) = JudgmentsAppender::open(&path).unwrap();
+        let items = vec![item("q1", "d1"), item("q1", "d2"), item("q1", "d1"), item("q2", "d3")];
+        Session::new(items, appender, &judged)
+    }
+
+    #[test]
+    fn keys_parse() {
+        assert_eq!(Key::from_line(" 2 "), Some(Key::Grade(2)));
+        assert_eq!(Key::from_line("U"), Some(Key::Undo));
+        assert_eq!(Key::from_line("4"), None);
+        assert_eq!(Key::from_line("22"), None);
+        assert_eq!(Key::from_char('q'), Some(Key::Quit));
+    }
+
+    #[test]
+    fn grades_are_appended_one_decision_late_and_undo_takes_back_the_pending_one() {
+        let dir = tempfile::tempdir().unwrap();
+        let mut s = session(dir.path(), None);
+        let path = dir.path().join("j.csv");
+        assert_eq!(std::fs::read_to_string(&path).unwrap(), "query_id,doc_id,grade\n");
+        assert_eq!(s.current().unwrap().doc.as_str(), "d1");
+        s.apply(Key::Grade(3)).unwrap();
+        // Pending: nothing written yet.
+        assert_eq!(std::fs::read_to_string(&path).unwrap(), "query_id,doc_id,grade\n");
+        s.apply(Key::Undo).unwrap();
+        assert_eq!(s.current().unwrap().doc.as_str(), "d1");
+        let again = s.apply(Key::Undo).unwrap();
+        assert!(matches!(again, Step::Continue(ref m) if m.starts_with("nothing to undo")));
+        s.apply(Key::Grade(2)).unwrap();
+        s.apply(Key::Skip).unwrap(); // writes q1,d1,2; d2 skipped (pending)
+        assert_eq!(std::fs::read_to_string(&path).unwrap(), "query_id,doc_id,grade\nq1,d1,2\n");
+        // The duplicate q1/d1 of the pool is not asked again.
+        assert_eq!(s.current().unwrap().query.as_str(), "q2");
+        s.apply(Key::Grade(0)).unwrap();
+        assert!(s.current().is_none());
+        assert!(matches!(s.apply(Key::Grade(1)).unwrap(), Step::Continue(ref m) if m.starts_with("no more pairs")));
+        assert_eq!(s.apply(Key::Quit).unwrap(), Step::Finished);
+        assert_eq!(
+            std::fs::read_to_string(&path).unwrap(),
+            "query_id,doc_id,grade\nq1,d1,2\nq2,d3,0\n"
+        );
+        assert!(s.closing().starts_with("saved 2 grades"));
+    }
+
+    #[test]
+    fn resume_skips_judged_pairs_and_keeps_the_files_layout() {
+        let dir = tempfile::tempdir().unwrap();
+        // Column order differs from ours, an extra column, CRLF line ends.
+        let s = session(dir.path(), Some("grade,note,doc_id,query_id\r\n1,,d1,q1\r\n"));
+        assert_eq!(s.current().unwrap().doc.as_str(), "d2");
+        assert!(s.opening().ends_with("3 pairs in the pool, 1 already judged, 2 to go"));
+        let mut s = s;
+        s.apply(Key::Grade(2)).unwrap();
+        s.apply(Key::Quit).unwrap();
+        let text = std::fs::read_to_string(dir.path().join("j.csv")).unwrap();
+        assert_eq!(text, "grade,note,doc_id,query_id\r\n1,,d1,q1\r\n2,,d2,q1\r\n");
+        // Four-column layout (TREC qrels style): `query 0 doc grade`.
+        let dir = tempfile::tempdir().unwrap();
+        let mut s = session(dir.path(), Some("q1 0 d1 1\n"));
+        s.apply(Key::Grade(3)).unwrap();
+        s.finish().unwrap();
+        let text = std::fs::read_to_string(dir.path().join("j.csv")).unwrap();
+        assert_eq!(text, "q1 0 d1 1\nq1 0 d2 3\n");
+    }
+
+    #[test]
+    fn torn_tail_is_refused_with_its_line() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("j.csv");
+        std::fs::write(&path, "query_id,doc_id,grade\nq1,d1,2\nq1,d").unwrap();
+        let msg = JudgmentsAppender::open(&path).unwrap_err().to_string();
+        assert!(msg.contains("j.csv:3: the file does not end with a line end"), "{msg}");
+        // Untouched.
+        assert_eq!(std::fs::read_to_string(&path).unwrap(), "query_id,doc_id,grade\nq1,d1,2\nq1,d");
+    }
+
+    #[test]
+    fn render_shows_scale_and_strips_control_characters() {
+        let dir = tempfile::tempdir().unwrap();
+        let s = session(dir.path(), None);
+        let screen = s.render("", false);
+        assert!(screen.contains("── pair 1 of 3 ──\nquery q1: Fähre\npost d1 (best rank 1; from a, b):\n"));
+        assert!(screen.contains("    Die Fähre 🚢 ist spät\u{FFFD}[31m\n"), "{screen}");
+        assert!(screen.contains("0 not relevant · 1 marginal · 2 relevant · 3 highly relevant"));
+        assert!(!screen.contains('\x1b'));
+        assert!(s.render("", true).contains("\x1b[1mFähre\x1b[0m"));
+    }
+
+    #[test]
+    fn script_names_a_bad_line() {
+        let keys: Vec<_> = script_keys("1\n\n s\nx\n".as_bytes()).collect();
+        assert_eq!(keys.len(), 3);
+        assert_eq!(keys[0].as_ref().unwrap(), &(1, Key::Grade(1)));
+        assert_eq!(keys[1].as_ref().unwrap(), &(3, Key::Skip));
+        let msg = keys[2].as_ref().unwrap_err().to_string();
+        assert!(msg.starts_with("<stdin>:4: expected one key per line"), "{msg}");
+    }
+
+    #[test]
+    fn empty_or_header_only_files_hold_no_judgments() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("j.csv");
+        assert!(read_judgments_allow_empty(&path).unwrap().0.is_empty());
+        std::fs::write(&path, "\u{feff}query_id,doc_id,grade\n\n").unwrap();
+        assert!(read_judgments_allow_empty(&path).unwrap().0.is_empty());
+        std::fs::write(&path, "query_id,doc_id,grade\nq1,d1,2\n").unwrap();
+        assert_eq!(read_judgments_allow_empty(&path).unwrap().0.len(), 1);
+    }
+}

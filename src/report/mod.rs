@@ -1,0 +1,70 @@
+//! Reports: the model computed by the bench and its renderings (CSV, JSON,
+//! Markdown). Last stage of the data flow; nothing here computes a number.
+//!
+//! [`write_outputs`] writes every file of formats.md's output table into the
+//! `--out` directory, each one atomically (a temporary file in the same
+//! directory, then a rename), so a reader never sees a half-written file.
+
+pub mod csv;
+pub mod markdown;
+pub mod model;
+
+use std::io::Write;
+use std::path::Path;
+
+use crate::error::{Error, Result};
+use crate::ids::ChainName;
+use crate::input::{write_run, Run};
+pub use model::Report;
+
+/// Serialise the report model as `report.json` text.
+pub fn to_json(report: &Report) -> Result<String> {
+    serde_json::to_string_pretty(report)
+        .map(|mut s| {
+            s.push('\n');
+            s
+        })
+        .map_err(|e| Error::usage(format!("serialising report.json: {e}")))
+}
+
+/// Write `bytes` to `path` atomically: a temporary sibling file, flushed and
+/// synced, then renamed over the target.
+pub fn write_atomic(path: &Path, bytes: &[u8]) -> Result<()> {
+    let dir = path.parent().filter(|p| !p.as_os_str().is_empty()).unwrap_or(Path::new("."));
+    let mut tmp = tempfile::Builder::new()
+        .prefix(".postassay-")
+        .suffix(".tmp")
+        .tempfile_in(dir)
+        .map_err(|e| Error::io(dir, e))?;
+    tmp.write_all(bytes).map_err(|e| Error::io(path, e))?;
+    tmp.as_file().sync_all().map_err(|e| Error::io(path, e))?;
+    tmp.persist(path).map_err(|e| Error::io(path, e.error))?;
+    Ok(())
+}
+
+/// Write every output file into `out` (created when missing): the CSVs,
+/// `report.json`, `report.md` and, for `run`, `runs/NAME.csv`.
+pub fn write_outputs(out: &Path, report: &Report, runs: &[(ChainName, &Run)]) -> Result<()> {
+    // Render everything first so a rendering error writes nothing.
+    let mut files: Vec<(std::path::PathBuf, Vec<u8>)> = vec![
+        (out.join("summary.csv"), csv::summary_csv(report)?.into_bytes()),
+        (out.join("per-query.csv"), csv::per_query_csv(report)?.into_bytes()),
+        (out.join("comparisons.csv"), csv::comparisons_csv(report)?.into_bytes()),
+        (out.join("report.json"), to_json(report)?.into_bytes()),
+        (out.join("report.md"), markdown::render(report).into_bytes()),
+    ];
+    for (name, run) in runs {
+        let mut bytes = Vec::new();
+        write_run(run, &mut bytes)?;
+        files.push((out.join("runs").join(format!("{name}.csv")), bytes));
+    }
+    std::fs::create_dir_all(out).map_err(|e| Error::io(out, e))?;
+    if !runs.is_empty() {
+        let dir = out.join("runs");
+        std::fs::create_dir_all(&dir).map_err(|e| Error::io(&dir, e))?;
+    }
+    for (path, bytes) in files {
+        write_atomic(&path, &bytes)?;
+    }
+    Ok(())
+}

@@ -1,0 +1,193 @@
+//! The report model: every number and fact a report shows, computed before
+//! any rendering. `report.json` is this model serialised; the Markdown, HTML
+//! and CSV writers render the same value and compute nothing of their own.
+
+use serde::{Deserialize, Serialize};
+
+use crate::bench::compare::{BreakdownCell, ComparisonRow, SystemSummary};
+use crate::ids::{ChainName, QueryId};
+use crate::index::BuildCost;
+
+/// Version of the `report.json` layout; bumped on any incompatible change.
+pub const SCHEMA_VERSION: u32 = 1;
+
+/// A whole report.
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct Report {
+    /// Layout version of this document.
+    pub schema_version: u32,
+    /// The program that wrote it.
+    pub tool: ToolInfo,
+    /// `run` or `score`.
+    pub command: String,
+    /// Every input file with its SHA-256, so two reports can be checked to
+    /// rest on the same inputs.
+    pub inputs: Vec<InputFile>,
+    /// Settings that shaped the numbers.
+    pub settings: Settings,
+    /// Sizes of the inputs.
+    pub counts: Counts,
+    /// Systems (chains or runs) in report order; the baseline is named in settings.
+    pub systems: Vec<SystemInfo>,
+    /// Mean and interval of each metric per system.
+    pub summary: Vec<SystemSummary>,
+    /// Every evaluated query's value per system and metric.
+    pub per_query: Vec<PerQuery>,
+    /// Each system against the baseline, per metric.
+    pub comparisons: Vec<ComparisonRow>,
+    /// The same per query language and per query tag.
+    pub breakdowns: Vec<BreakdownCell>,
+    /// Judged queries with no relevant post (not evaluated).
+    pub skipped_queries: Vec<QueryId>,
+    /// Warnings raised while reading and scoring.
+    pub warnings: Vec<String>,
+    /// Wall-clock figures; the only part that differs between identical runs.
+    pub timing: Timing,
+}
+
+/// Name and version of the program.
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct ToolInfo {
+    /// Always `postassay`.
+    pub name: String,
+    /// The crate version.
+    pub version: String,
+}
+
+/// One input file.
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct InputFile {
+    /// `corpus`, `queries`, `judgments`, `chains` or `run:NAME`.
+    pub role: String,
+    /// The path as given.
+    pub path: String,
+    /// Hex SHA-256 of the file's bytes.
+    pub sha256: String,
+}
+
+/// Settings recorded in the report.
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct Settings {
+    /// Metric keys in order.
+    pub metrics: Vec<String>,
+    /// Relevance threshold t.
+    pub relevant_from: u32,
+    /// `exp` or `linear`.
+    pub gain: String,
+    /// gmax used by ERR.
+    pub max_grade: u32,
+    /// The baseline system.
+    pub baseline: ChainName,
+    /// Seed of the randomization test and the bootstrap.
+    pub seed: u64,
+    /// Sampled sign assignments when n > 16.
+    pub permutations: u32,
+    /// Bootstrap resamples.
+    pub bootstrap_resamples: u32,
+    /// Significance level.
+    pub alpha: f64,
+    /// Results kept per query (`run` only).
+    pub depth: Option<usize>,
+    /// Chain definitions (`run` only), as data.
+    pub chains: Vec<serde_json::Value>,
+}
+
+/// Sizes of the inputs.
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct Counts {
+    /// Posts in the corpus (`run` only).
+    pub posts: Option<usize>,
+    /// Queries in the query file, when one was read.
+    pub queries: Option<usize>,
+    /// Queries evaluated (judged, at least one relevant post).
+    pub queries_evaluated: usize,
+    /// Judged queries skipped for having no relevant post.
+    pub queries_skipped: usize,
+    /// Judged (query, post) pairs.
+    pub judgments: usize,
+}
+
+/// Facts about one system beyond its scores.
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct SystemInfo {
+    /// System name.
+    pub name: ChainName,
+    /// Index cost of a chain (`run` only). Build time is under `timing`.
+    pub cost: Option<Cost>,
+}
+
+/// The deterministic part of what a chain costs.
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct Cost {
+    /// Bytes on disk of the index.
+    pub index_bytes: u64,
+    /// Distinct terms over all fields.
+    pub distinct_terms: u64,
+    /// Mean tokens per post.
+    pub mean_tokens_per_post: f64,
+    /// Posts per index field (languages and fallback for routed chains).
+    pub posts_per_field: std::collections::BTreeMap<String, u64>,
+}
+
+impl From<&BuildCost> for Cost {
+    fn from(c: &BuildCost) -> Cost {
+        Cost {
+            index_bytes: c.index_bytes,
+            distinct_terms: c.distinct_terms,
+            mean_tokens_per_post: c.mean_tokens_per_post,
+            posts_per_field: c.posts_per_field.clone(),
+        }
+    }
+}
+
+/// One system's per-query values.
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct PerQuery {
+    /// System name.
+    pub system: ChainName,
+    /// Evaluated queries in byte order of their ids, values in metric order.
+    pub queries: Vec<QueryValues>,
+}
+
+/// One query's metric values.
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct QueryValues {
+    /// Query id.
+    pub query_id: QueryId,
+    /// Values in `settings.metrics` order.
+    pub values: Vec<f64>,
+}
+
+/// Wall-clock figures (differ from run to run).
+#[derive(Debug, Clone, Serialize, Deserialize, Default)]
+pub struct Timing {
+    /// Whole command, seconds.
+    pub total_seconds: f64,
+    /// Per chain (`run` only), in system order.
+    pub chains: Vec<ChainTiming>,
+}
+
+/// Wall-clock cost of one chain.
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct ChainTiming {
+    /// Chain name.
+    pub name: ChainName,
+    /// Seconds to build the index.
+    pub build_seconds: f64,
+    /// Mean query latency in milliseconds.
+    pub query_ms_mean: f64,
+    /// 95th-percentile query latency in milliseconds (nearest rank).
+    pub query_ms_p95: f64,
+}
+
+impl Report {
+    /// Index of a metric key in `settings.metrics`.
+    pub fn metric_index(&self, key: &str) -> Option<usize> {
+        self.settings.metrics.iter().position(|m| m == key)
+    }
+
+    /// The comparison row of `system` on `metric`, if any.
+    pub fn comparison(&self, system: &ChainName, metric: &str) -> Option<&ComparisonRow> {
+        self.comparisons.iter().find(|r| &r.system == system && r.metric == metric)
+    }
+}

@@ -1,0 +1,92 @@
+//! `postassay run` end to end: the bundled demo bench, as the README's first
+//! command runs it, and a tiny bench where stemming makes the difference.
+
+use crate::util::{postassay, read_csv, root, texts, write};
+
+#[test]
+fn demo_bench_end_to_end() {
+    let tmp = tempfile::tempdir().unwrap();
+    let out = tmp.path().join("reports");
+    let res = postassay(&root(), &["run", "--quiet", "--out", out.to_str().unwrap()]);
+    let (stdout, stderr) = texts(&res);
+    assert_eq!(res.status.code(), Some(0), "stderr: {stderr}");
+    assert!(stdout.is_empty(), "nothing but requested output on stdout");
+    let summary = read_csv(&out.join("summary.csv"));
+    let systems: Vec<&str> = summary[1..].iter().map(|r| r[0].as_str()).collect();
+    for chain in ["standard", "stemmed", "hashtag", "routed"] {
+        assert!(systems.contains(&chain), "{chain} in summary");
+        assert!(out.join("runs").join(format!("{chain}.csv")).is_file());
+    }
+    // The four chains give four different nDCG@10 means.
+    let mut ndcg: Vec<String> =
+        summary[1..].iter().filter(|r| r[1] == "ndcg@10").map(|r| r[2].clone()).collect();
+    ndcg.sort();
+    ndcg.dedup();
+    assert_eq!(ndcg.len(), 4, "distinct nDCG@10 means: {ndcg:?}");
+    // Intervals are filled and contain the mean.
+    for r in &summary[1..] {
+        let (mean, lo, hi): (f64, f64, f64) =
+            (r[2].parse().unwrap(), r[3].parse().unwrap(), r[4].parse().unwrap());
+        assert!(lo <= mean + 1e-12 && mean <= hi + 1e-12, "{r:?}");
+    }
+    let md = std::fs::read_to_string(out.join("report.md")).unwrap();
+    for section in ["## Verdict", "## Scores", "## Against the baseline", "## By query tag", "## Cost"] {
+        assert!(md.contains(section), "{section} in report.md");
+    }
+    let report: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("report.json")).unwrap()).unwrap();
+    assert_eq!(report["inputs"].as_array().unwrap().len(), 3);
+    assert_eq!(report["inputs"][0]["sha256"].as_str().unwrap().len(), 64);
+
+    // Same inputs and seed: byte-identical statistics.
+    let again = tmp.path().join("again");
+    let res = postassay(&root(), &["run", "--quiet", "--out", again.to_str().unwrap()]);
+    assert_eq!(res.status.code(), Some(0));
+    for f in ["summary.csv", "per-query.csv", "comparisons.csv", "runs/routed.csv"] {
+        assert_eq!(std::fs::read(out.join(f)).unwrap(), std::fs::read(again.join(f)).unwrap(), "{f}");
+    }
+}
+
+#[test]
+fn stemming_finds_inflected_forms() {
+    let tmp = tempfile::tempdir().unwrap();
+    let corpus = write(
+        tmp.path(),
+        "posts.jsonl",
+        "{\"id\": \"p1\", \"text\": \"All ferries delayed this morning\"}\n\
+         {\"id\": \"p2\", \"text\": \"Tram line closed\"}\n\
+         {\"id\": \"p3\", \"text\": \"Bike lane repainted\"}\n",
+    );
+    let queries = write(tmp.path(), "queries.csv", "query_id,text\nq1,ferry delay\n");
+    let qrels = write(tmp.path(), "qrels.csv", "query_id,doc_id,grade\nq1,p1,2\nq1,p2,0\n");
+    let out = tmp.path().join("out");
+    let res = postassay(
+        tmp.path(),
+        &[
+            "run",
+            "--quiet",
+            "--corpus",
+            corpus.to_str().unwrap(),
+            "--queries",
+            queries.to_str().unwrap(),
+            "--judgments",
+            qrels.to_str().unwrap(),
+            "--chains",
+            "standard,stemmed",
+            "--metrics",
+            "mrr",
+            "--out",
+            out.to_str().unwrap(),
+        ],
+    );
+    assert_eq!(res.status.code(), Some(0), "{}", texts(&res).1);
+    // English Snowball: ferries → ferri = ferry → ferri; delayed → delay
+    // (Porter 1980 / Snowball English; "ferries" from memory of the rules).
+    let standard = read_csv(&out.join("runs/standard.csv"));
+    assert_eq!(standard.len(), 1, "standard finds nothing: {standard:?}");
+    let stemmed = read_csv(&out.join("runs/stemmed.csv"));
+    assert_eq!(stemmed[1][..3], ["q1", "p1", "1"]);
+    let summary = read_csv(&out.join("summary.csv"));
+    assert_eq!(summary[1][..3], ["standard", "mrr", "0"]);
+    assert_eq!(summary[2][..3], ["stemmed", "mrr", "1"]);
+}

@@ -1,0 +1,144 @@
+//! `postassay score` on a hand-checkable fixture (tests/fixtures/score/).
+//!
+//! Judgments: q1 = {d1: 3, d2: 1, d3: 0, d4: 2}, q2 = {d5: 1, d6: 0},
+//! q3 = {d7: 0} (no relevant post: skipped). Run `a` ranks q1: d1 d3 d2 and
+//! q2: d6 d5, plus q9 which is not judged (warning). Run `b` ranks q1: d4 d1
+//! and returns nothing for q2 (scores 0 on every metric).
+
+use std::collections::BTreeMap;
+
+use approx::assert_relative_eq;
+
+use crate::util::{fixture, postassay, read_csv, texts};
+
+fn per_query(dir: &std::path::Path) -> BTreeMap<(String, String, String), f64> {
+    read_csv(&dir.join("per-query.csv"))
+        .into_iter()
+        .skip(1)
+        .map(|r| ((r[0].clone(), r[1].clone(), r[2].clone()), r[3].parse().unwrap()))
+        .collect()
+}
+
+fn score(out: &std::path::Path, extra: &[&str]) -> std::process::Output {
+    let qrels = fixture("score/qrels.csv");
+    let a = format!("a={}", fixture("score/run_a.csv").display());
+    let b = format!("b={}", fixture("score/run_b.csv").display());
+    let mut args = vec![
+        "score",
+        "--judgments",
+        qrels.to_str().unwrap(),
+        "--run",
+        &a,
+        "--run",
+        &b,
+        "--out",
+        out.to_str().unwrap(),
+        "--metrics",
+        "ndcg@3,map,p@2,mrr,recall@2,bpref,err@3,unjudged@2",
+    ];
+    args.extend_from_slice(extra);
+    postassay(out.parent().unwrap(), &args)
+}
+
+#[test]
+fn score_reproduces_hand_computed_values() {
+    let tmp = tempfile::tempdir().unwrap();
+    let out = tmp.path().join("out");
+    let res = score(&out, &[]);
+    let (_, err) = texts(&res);
+    assert_eq!(res.status.code(), Some(0), "stderr: {err}");
+    let v = per_query(&out);
+    let get = |s: &str, q: &str, m: &str| v[&(s.to_string(), q.to_string(), m.to_string())];
+
+    // nDCG@3, exponential gain 2^g − 1, log2(i + 1) discount (Järvelin &
+    // Kekäläinen 2002; Burges et al. 2005 gain). Ideal order of q1: 3, 2, 1.
+    let idcg_q1 = 7.0 + 3.0 / 3f64.log2() + 1.0 / 4f64.log2();
+    assert_relative_eq!(get("a", "q1", "ndcg@3"), (7.0 + 0.0 + 1.0 / 4f64.log2()) / idcg_q1, epsilon = 1e-12);
+    assert_relative_eq!(get("b", "q1", "ndcg@3"), (3.0 + 7.0 / 3f64.log2()) / idcg_q1, epsilon = 1e-12);
+    assert_relative_eq!(get("a", "q2", "ndcg@3"), 1.0 / 3f64.log2(), epsilon = 1e-12);
+    // AP (Manning, Raghavan & Schütze 2008, §8.4): relevant at ranks 1 and 3 of R = 3.
+    assert_relative_eq!(get("a", "q1", "map"), (1.0 + 2.0 / 3.0) / 3.0, epsilon = 1e-12);
+    assert_relative_eq!(get("b", "q1", "map"), (1.0 + 1.0) / 3.0, epsilon = 1e-12);
+    assert_relative_eq!(get("a", "q2", "map"), 0.5, epsilon = 1e-12);
+    // P@2 divides by k; MRR is 1 / first relevant rank.
+    assert_relative_eq!(get("a", "q1", "p@2"), 0.5, epsilon = 1e-12);
+    assert_relative_eq!(get("b", "q1", "p@2"), 1.0, epsilon = 1e-12);
+    assert_relative_eq!(get("a", "q2", "mrr"), 0.5, epsilon = 1e-12);
+    assert_relative_eq!(get("a", "q1", "recall@2"), 1.0 / 3.0, epsilon = 1e-12);
+    // bpref (Buckley & Voorhees 2004): q1 has R = 3, N = 1; run a: d1 has no
+    // judged non-relevant above it (1), d2 has d3 above it (1 − 1/1 = 0).
+    assert_relative_eq!(get("a", "q1", "bpref"), 1.0 / 3.0, epsilon = 1e-12);
+    // ERR@3 (Chapelle et al. 2009), gmax = 3 (highest grade in the file):
+    // R(g) = (2^g − 1) / 8. Run b, q1: grades 2 then 3.
+    let (r2, r3) = (3.0 / 8.0, 7.0 / 8.0);
+    assert_relative_eq!(get("b", "q1", "err@3"), r2 + (1.0 - r2) * r3 / 2.0, epsilon = 1e-12);
+    // Every judged doc → unjudged@2 = 0.
+    assert_relative_eq!(get("a", "q1", "unjudged@2"), 0.0, epsilon = 1e-12);
+    // An evaluated query a run found nothing for scores 0 on every metric.
+    for m in ["ndcg@3", "map", "p@2", "mrr", "recall@2", "bpref", "err@3", "unjudged@2"] {
+        assert_eq!(get("b", "q2", m), 0.0, "{m}");
+    }
+    // q3 (no relevant post) is skipped; q9 (not judged) is ignored.
+    assert!(!v.keys().any(|k| k.1 == "q3" || k.1 == "q9"));
+    let report: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("report.json")).unwrap()).unwrap();
+    assert_eq!(report["skipped_queries"], serde_json::json!(["q3"]));
+    assert_eq!(report["schema_version"], 1);
+    assert!(report["warnings"].to_string().contains("q9"));
+}
+
+#[test]
+fn score_outputs_follow_the_contract() {
+    let tmp = tempfile::tempdir().unwrap();
+    let out = tmp.path().join("out");
+    let res = score(&out, &["--metrics", "map,p@2"]);
+    assert_eq!(res.status.code(), Some(0), "{}", texts(&res).1);
+    let summary = read_csv(&out.join("summary.csv"));
+    assert_eq!(summary[0].join(","), "system,metric,mean,ci_low,ci_high,queries");
+    // Rows: system in command-line order, then metric in --metrics order.
+    let keys: Vec<String> = summary[1..].iter().map(|r| format!("{}/{}", r[0], r[1])).collect();
+    assert_eq!(keys, ["a/map", "a/p@2", "b/map", "b/p@2"]);
+    assert_eq!(summary[1][5], "2");
+    let mean_a_map: f64 = summary[1][2].parse().unwrap();
+    assert_relative_eq!(mean_a_map, ((1.0 + 2.0 / 3.0) / 3.0 + 0.5) / 2.0, epsilon = 1e-12);
+    let per_query = read_csv(&out.join("per-query.csv"));
+    assert_eq!(per_query[0].join(","), "system,query_id,metric,value");
+    assert_eq!(per_query.len(), 1 + 2 * 2 * 2);
+    let cmp = read_csv(&out.join("comparisons.csv"));
+    assert_eq!(
+        cmp[0].join(","),
+        "baseline,system,metric,delta,p_ttest,p_randomization,p_holm,wins,losses,ties"
+    );
+    assert_eq!(cmp.len(), 3);
+    assert_eq!(&cmp[1][..3], ["a", "b", "map"]);
+    // With n = 2 queries the exact randomization test enumerates the 2^2 sign
+    // assignments (Fisher 1935). MAP differences b − a: q1 2/3 − 5/9 = +1/9,
+    // q2 0 − 1/2 = −1/2; observed |mean| = 7/36 ≈ 0.194. The four assignments
+    // give |mean| 7/36, 7/36, 11/36, 11/36, all ≥ observed → p = 4/4.
+    let p: f64 = cmp[1][5].parse().unwrap();
+    assert_relative_eq!(p, 1.0, epsilon = 1e-12);
+    let delta: f64 = cmp[1][3].parse().unwrap();
+    assert_relative_eq!(delta, -7.0 / 36.0, epsilon = 1e-12);
+    assert_eq!(&cmp[1][7..], ["1", "1", "0"]);
+    for f in ["report.json", "report.md"] {
+        assert!(out.join(f).is_file(), "{f}");
+    }
+    // Written atomically: no temporary file is left behind.
+    let leftovers: Vec<_> = std::fs::read_dir(&out)
+        .unwrap()
+        .filter_map(|e| e.ok())
+        .filter(|e| e.file_name().to_string_lossy().ends_with(".tmp"))
+        .collect();
+    assert!(leftovers.is_empty());
+}
+
+#[test]
+fn score_is_byte_identical_across_runs() {
+    let tmp = tempfile::tempdir().unwrap();
+    let (o1, o2) = (tmp.path().join("o1"), tmp.path().join("o2"));
+    assert_eq!(score(&o1, &[]).status.code(), Some(0));
+    assert_eq!(score(&o2, &[]).status.code(), Some(0));
+    for f in ["summary.csv", "per-query.csv", "comparisons.csv"] {
+        assert_eq!(std::fs::read(o1.join(f)).unwrap(), std::fs::read(o2.join(f)).unwrap(), "{f}");
+    }
+}

@@ -1,0 +1,42 @@
+//! Shared helpers: a fresh temporary directory per test, fixture paths and a
+//! runner for the built binary.
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+
+/// The repository root (where `corpora/` and `judgments/` live).
+pub fn root() -> PathBuf {
+    PathBuf::from(env!("CARGO_MANIFEST_DIR"))
+}
+
+/// A fixture file under `tests/fixtures/`.
+pub fn fixture(rel: &str) -> PathBuf {
+    root().join("tests/fixtures").join(rel)
+}
+
+/// Run the binary with `args` in directory `cwd`.
+pub fn postassay(cwd: &Path, args: &[&str]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_postassay"))
+        .current_dir(cwd)
+        .args(args)
+        .output()
+        .expect("the test binary runs")
+}
+
+/// Stdout and stderr as text.
+pub fn texts(out: &Output) -> (String, String) {
+    (String::from_utf8_lossy(&out.stdout).into_owned(), String::from_utf8_lossy(&out.stderr).into_owned())
+}
+
+/// Write `content` to `dir/name` and return the path.
+pub fn write(dir: &Path, name: &str, content: &str) -> PathBuf {
+    let p = dir.join(name);
+    std::fs::write(&p, content).expect("temp file written");
+    p
+}
+
+/// Read a CSV output into rows of fields (header included).
+pub fn read_csv(path: &Path) -> Vec<Vec<String>> {
+    let text = std::fs::read_to_string(path).expect("output exists");
+    text.lines().map(|l| l.split(',').map(str::to_string).collect()).collect()
+}
