@@ -133,7 +133,8 @@ fn inspect(path: &Path) -> Result<Inspection> {
         ));
     }
     let text = bytes.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(&bytes);
-    let mut lines = text.split(|&b| b == b'\n').enumerate().filter(|(_, l)| !l.trim_ascii().is_empty());
+    let mut lines =
+        text.split(|&b| b == b'\n').enumerate().filter(|(_, l)| !l.trim_ascii().is_empty());
     let Some((first_index, first)) = lines.next() else {
         return Ok(Inspection {
             layout: Layout::Csv { width: 3, query: 0, doc: 1, grade: 2 },
@@ -211,11 +212,8 @@ impl JudgmentsAppender {
             sync_parent(path);
         }
         let inspection = inspect(path)?;
-        let judgments = if inspection.has_judgments {
-            read_judgments(path)?.0
-        } else {
-            Judgments::default()
-        };
+        let judgments =
+            if inspection.has_judgments { read_judgments(path)?.0 } else { Judgments::default() };
         let appender = JudgmentsAppender {
             path: path.to_path_buf(),
             file,
@@ -235,7 +233,9 @@ impl JudgmentsAppender {
         match self.layout {
             Layout::Csv { width, query: qc, doc: dc, grade: gc } => {
                 let mut fields = vec![String::new(); width];
-                for (c, v) in [(qc, query.to_string()), (dc, doc.to_string()), (gc, grade.to_string())] {
+                for (c, v) in
+                    [(qc, query.to_string()), (dc, doc.to_string()), (gc, grade.to_string())]
+                {
                     if let Some(f) = fields.get_mut(c) {
                         *f = v;
                     }
@@ -245,7 +245,8 @@ impl JudgmentsAppender {
                 } else {
                     csv::Terminator::Any(b'\n')
                 };
-                let mut w = csv::WriterBuilder::new().terminator(terminator).from_writer(Vec::new());
+                let mut w =
+                    csv::WriterBuilder::new().terminator(terminator).from_writer(Vec::new());
                 w.write_record(&fields)
                     .map_err(|e| Error::usage(format!("formatting a judgment: {e}")))?;
                 w.into_inner().map_err(|e| Error::usage(format!("formatting a judgment: {e}")))
@@ -455,7 +456,8 @@ impl Session {
     /// prompt. `color` adds ANSI bold/dim (the caller checks the terminal
     /// and `NO_COLOR`).
     pub fn render(&self, note: &str, color: bool) -> String {
-        let (bold, dim, reset) = if color { ("\x1b[1m", "\x1b[2m", "\x1b[0m") } else { ("", "", "") };
+        let (bold, dim, reset) =
+            if color { ("\x1b[1m", "\x1b[2m", "\x1b[0m") } else { ("", "", "") };
         let mut s = String::new();
         if !note.is_empty() {
             let _ = writeln!(s, "{dim}{}{reset}", sanitize(note));
@@ -493,8 +495,11 @@ impl Session {
         if !item.systems.is_empty() {
             about.push(format!("from {}", sanitize(&item.systems.replace(';', ", "))));
         }
-        let about =
-            if about.is_empty() { String::new() } else { format!(" {dim}({}){reset}", about.join("; ")) };
+        let about = if about.is_empty() {
+            String::new()
+        } else {
+            format!(" {dim}({}){reset}", about.join("; "))
+        };
         let _ = writeln!(s, "post {}{about}:", sanitize(item.doc.as_str()));
         for line in item.post_text.lines() {
             let _ = writeln!(s, "    {}", sanitize(line));
@@ -589,7 +594,9 @@ mod tests {
         assert_eq!(s.current().unwrap().query.as_str(), "q2");
         s.apply(Key::Grade(0)).unwrap();
         assert!(s.current().is_none());
-        assert!(matches!(s.apply(Key::Grade(1)).unwrap(), Step::Continue(ref m) if m.starts_with("no more pairs")));
+        assert!(
+            matches!(s.apply(Key::Grade(1)).unwrap(), Step::Continue(ref m) if m.starts_with("no more pairs"))
+        );
         assert_eq!(s.apply(Key::Quit).unwrap(), Step::Finished);
         assert_eq!(
             std::fs::read_to_string(&path).unwrap(),
@@ -635,7 +642,8 @@ mod tests {
         let dir = tempfile::tempdir().unwrap();
         let s = session(dir.path(), None);
         let screen = s.render("", false);
-        assert!(screen.contains("── pair 1 of 3 ──\nquery q1: Fähre\npost d1 (best rank 1; from a, b):\n"));
+        assert!(screen
+            .contains("── pair 1 of 3 ──\nquery q1: Fähre\npost d1 (best rank 1; from a, b):\n"));
         assert!(screen.contains("    Die Fähre 🚢 ist spät\u{FFFD}[31m\n"), "{screen}");
         assert!(screen.contains("0 not relevant · 1 marginal · 2 relevant · 3 highly relevant"));
         assert!(!screen.contains('\x1b'));

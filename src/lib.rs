@@ -12,12 +12,13 @@ pub mod input;
 
 pub use error::{Error, ErrorKind, Result};
 pub mod analysis;
-pub mod eval;
-pub mod stats;
 pub mod bench;
+pub mod diagnose;
+pub mod eval;
+pub mod gate;
 pub mod index;
+pub mod judge;
+pub mod pool;
 pub mod report;
 pub mod search;
-pub mod gate;
-pub mod pool;
-pub mod judge;
+pub mod stats;

@@ -125,8 +125,10 @@ pub fn write_pool<W: std::io::Write>(
 ) -> Result<Vec<String>> {
     let query_text: HashMap<&QueryId, &str> =
         queries.iter().map(|q| (&q.id, q.text.as_str())).collect();
-    let post_text: HashMap<&PostId, &str> = posts.iter().map(|p| (&p.id, p.text.as_str())).collect();
-    let mut writer = csv::WriterBuilder::new().terminator(csv::Terminator::Any(b'\n')).from_writer(out);
+    let post_text: HashMap<&PostId, &str> =
+        posts.iter().map(|p| (&p.id, p.text.as_str())).collect();
+    let mut writer =
+        csv::WriterBuilder::new().terminator(csv::Terminator::Any(b'\n')).from_writer(out);
     let io = |e: csv::Error| Error::usage(format!("writing the pool: {e}"));
     writer.write_record(POOL_HEADER).map_err(io)?;
     let mut missing_queries: Vec<&str> = Vec::new();
@@ -196,9 +198,8 @@ pub fn sources_from_report(dir: &Path) -> Result<PoolSources> {
     let loaded = load_report(dir)?;
     let report = &loaded.report;
     let base = loaded.path.parent().map_or_else(PathBuf::new, Path::to_path_buf);
-    let input = |role: &str| {
-        report.inputs.iter().find(|i| i.role == role).map(|i| PathBuf::from(&i.path))
-    };
+    let input =
+        |role: &str| report.inputs.iter().find(|i| i.role == role).map(|i| PathBuf::from(&i.path));
     let mut runs = Vec::new();
     for system in &report.systems {
         let written = base.join("runs").join(format!("{}.csv", system.name));
@@ -288,7 +289,11 @@ pub fn read_pool(path: &Path) -> Result<Vec<PoolItem>> {
         if record.len() != header.len() {
             problems.push(
                 line,
-                format!("expected {} fields as in the header, found {}", header.len(), record.len()),
+                format!(
+                    "expected {} fields as in the header, found {}",
+                    header.len(),
+                    record.len()
+                ),
             );
             continue;
         }
@@ -322,8 +327,10 @@ mod tests {
             by_query: rows
                 .iter()
                 .map(|(q, docs)| {
-                    let ranked =
-                        docs.iter().map(|d| RankedDoc { doc: PostId::from(*d), score: 1.0 }).collect();
+                    let ranked = docs
+                        .iter()
+                        .map(|d| RankedDoc { doc: PostId::from(*d), score: 1.0 })
+                        .collect();
                     (QueryId::from(*q), ranked)
                 })
                 .collect(),
@@ -348,7 +355,8 @@ mod tests {
             got,
             [("q0", "d9", 1, 1), ("q1", "d3", 1, 2), ("q1", "d2", 2, 1), ("q1", "d4", 2, 1)]
         );
-        let c: Vec<(usize, usize)> = pool.contributions.iter().map(|c| (c.pairs, c.unique)).collect();
+        let c: Vec<(usize, usize)> =
+            pool.contributions.iter().map(|c| (c.pairs, c.unique)).collect();
         // a: d2, d3 (d2 only from a); b: d3, d4, d9 (d4, d9 only from b).
         assert_eq!(c, [(2, 1), (3, 2)]);
     }

@@ -126,7 +126,9 @@ impl Analyzer {
                 });
                 let detector =
                     LangDetector::new(Some(route.languages.clone()), route.min_confidence)
-                        .map_err(|e| Error::chain(format!("chain {:?}: {e}", spec.name.as_str())))?;
+                        .map_err(|e| {
+                            Error::chain(format!("chain {:?}: {e}", spec.name.as_str()))
+                        })?;
                 (fields, Some(detector))
             }
         };
@@ -157,7 +159,11 @@ impl Analyzer {
 
     /// The field a post is indexed in, from its declared language and its
     /// detection (see [`PostRouting`]). Always 0 for a plain chain.
-    pub fn field_for_post(&self, declared: Option<LangCode>, detected: Option<&Detection>) -> usize {
+    pub fn field_for_post(
+        &self,
+        declared: Option<LangCode>,
+        detected: Option<&Detection>,
+    ) -> usize {
         let Some(route) = self.spec.route() else { return 0 };
         match (route.posts, declared) {
             (PostRouting::Declared, Some(lang)) => self.field_of(route, lang),
@@ -208,7 +214,9 @@ pub(crate) fn build_prefix(
     let mut builder: TextAnalyzerBuilder = match pipeline.tokenizer {
         TokenizerKind::Words => TextAnalyzer::builder(WordTokenizer::default()).dynamic(),
         TokenizerKind::Posts => TextAnalyzer::builder(PostTokenizer::default()).dynamic(),
-        TokenizerKind::Whitespace => TextAnalyzer::builder(WhitespaceTokenizer::default()).dynamic(),
+        TokenizerKind::Whitespace => {
+            TextAnalyzer::builder(WhitespaceTokenizer::default()).dynamic()
+        }
     };
     for step in pipeline.steps.iter().take(steps) {
         builder = add_step(builder, step, ctx)?;
@@ -244,9 +252,13 @@ fn add_step(
             )
         }
         StepSpec::Elision { language } => builder.filter_dynamic(
-            Elision::new(*language).ok_or_else(|| unsupported("no prefix list for the language"))?,
+            Elision::new(*language)
+                .ok_or_else(|| unsupported("no prefix list for the language"))?,
         ),
         StepSpec::Length { min, max } => {
+            if *min == 0 || min > max {
+                return Err(unsupported("needs 1 ≤ min ≤ max"));
+            }
             builder.filter_dynamic(LengthLimit { min: *min, max: *max })
         }
         StepSpec::EdgeNgrams { min, max } => {
@@ -264,4 +276,172 @@ fn add_step(
             builder.filter_dynamic(HashtagSplit::new(freqs))
         }
     })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::analysis::spec::{builtin_chains, parse_chains};
+    use crate::analysis::stem::StemGeneration;
+    use crate::analysis::testutil::{assert_tokens, texts};
+
+    fn lang(code: &str) -> LangCode {
+        LangCode::parse(code).expect("code")
+    }
+
+    fn builtin(name: &str) -> Analyzer {
+        let chains = builtin_chains(lang("en")).expect("built-ins");
+        let spec = chains.iter().find(|c| c.name.as_str() == name).expect("known chain");
+        Analyzer::build(spec, &AnalysisContext::default()).expect("builds")
+    }
+
+    #[test]
+    fn every_builtin_builds_with_expected_fields() {
+        let keys = |a: &Analyzer| a.fields().iter().map(|f| f.key.clone()).collect::<Vec<_>>();
+        for name in ["standard", "stemmed", "hashtag"] {
+            let a = builtin(name);
+            assert_eq!(keys(&a), ["text"]);
+            assert!(a.detector().is_none());
+            assert_eq!(a.name().as_str(), name);
+        }
+        let routed = builtin("routed");
+        assert_eq!(
+            keys(&routed),
+            [
+                "text_en",
+                "text_de",
+                "text_fr",
+                "text_es",
+                "text_it",
+                "text_pt",
+                "text_nl",
+                "text_other"
+            ]
+        );
+        assert_eq!(routed.fields()[1].language, Some(lang("de")));
+        assert!(routed.detector().is_some());
+    }
+
+    #[test]
+    fn standard_chain() {
+        let mut a = builtin("standard").fields()[0].analyzer.clone();
+        assert_tokens(
+            &mut a,
+            "Grüße aus KÖLN, @Ana!",
+            &[("grüße", 0, 0, 7), ("aus", 1, 8, 11), ("köln", 2, 12, 17), ("ana", 3, 20, 23)],
+        );
+    }
+
+    /// Examples from Porter, "An algorithm for suffix stripping", Program
+    /// 14(3), 1980 (from memory): caresses → caress, ponies → poni,
+    /// relational → relat (after step 5), hopping → hop, motoring → motor,
+    /// conditional → condit, happy → happi, sky → sky. Snowball's English
+    /// ("Porter2") agrees on these; it differs from the 1980 algorithm on
+    /// ties → tie (1980: ti) and agreed → agre (the values here are those
+    /// of the Snowball English stemmer).
+    #[test]
+    fn stemmed_chain_porter_examples() {
+        let mut a = builtin("stemmed").fields()[0].analyzer.clone();
+        assert_eq!(
+            texts(
+                &mut a,
+                "Caresses ponies relational HOPPING motoring conditional happy sky ties agreed"
+            ),
+            ["caress", "poni", "relat", "hop", "motor", "condit", "happi", "sky", "tie", "agre"]
+        );
+    }
+
+    #[test]
+    fn hashtag_chain_splits_tags_drops_urls_keeps_mentions_and_emoji() {
+        let mut a = builtin("hashtag").fields()[0].analyzer.clone();
+        assert_tokens(
+            &mut a,
+            "Fresh fish at #HarbourMarket https://x.example @Ana 🐟",
+            &[
+                ("fresh", 0, 0, 5),
+                ("fish", 1, 6, 10),
+                ("at", 2, 11, 13),
+                ("harbourmarket", 3, 14, 28),
+                ("harbour", 3, 15, 22),
+                ("market", 4, 22, 28),
+                ("@ana", 6, 47, 51),
+                ("🐟", 7, 52, 56),
+            ],
+        );
+    }
+
+    #[test]
+    fn hashtag_chain_uses_corpus_words_from_the_context() {
+        let chains = builtin_chains(lang("en")).expect("built-ins");
+        let spec = chains.iter().find(|c| c.name.as_str() == "hashtag").expect("known");
+        let freqs = WordFreqs::learn(["the harbour market opens", "harbour and market news"]);
+        let ctx = AnalysisContext { word_freqs: Some(Arc::new(freqs)) };
+        let mut a = Analyzer::build(spec, &ctx).expect("builds").fields()[0].analyzer.clone();
+        assert_eq!(texts(&mut a, "#harbourmarket"), ["harbourmarket", "harbour", "market"]);
+        let mut plain =
+            Analyzer::build(spec, &AnalysisContext::default()).expect("builds").fields()[0]
+                .analyzer
+                .clone();
+        assert_eq!(texts(&mut plain, "#harbourmarket"), ["harbourmarket"]);
+    }
+
+    #[test]
+    fn routing_of_posts() {
+        let a = builtin("routed");
+        let other = a.fields().len() - 1;
+        let det = |code: &str, confidence: f64| Detection { lang: lang(code), confidence };
+        assert_eq!(a.field_for_post(Some(lang("de")), None), 1);
+        // A declared language wins over detection; an unrouted one goes to the fallback.
+        assert_eq!(a.field_for_post(Some(lang("de")), Some(&det("fr", 0.9))), 1);
+        assert_eq!(a.field_for_post(Some(lang("sv")), Some(&det("fr", 0.9))), other);
+        assert_eq!(a.field_for_post(None, Some(&det("fr", 0.9))), 2);
+        assert_eq!(a.field_for_post(None, Some(&det("fr", 0.4))), other);
+        assert_eq!(a.field_for_post(None, Some(&det("sv", 0.9))), other);
+        assert_eq!(a.field_for_post(None, None), other);
+        assert_eq!(builtin("standard").field_for_post(Some(lang("de")), None), 0);
+    }
+
+    #[test]
+    fn routing_of_queries() {
+        let a = builtin("routed");
+        let det = Detection { lang: lang("nl"), confidence: 0.8 };
+        assert_eq!(a.fields_for_query(Some(lang("es")), Some(&det)), [3]);
+        assert_eq!(a.fields_for_query(None, Some(&det)), [6]);
+        assert_eq!(a.fields_for_query(None, None), [7]);
+        assert_eq!(builtin("stemmed").fields_for_query(None, None), [0]);
+        let text = "[[chain]]\nname = \"e\"\n[chain.route]\nlanguages = [\"en\", \"de\"]\n\
+                    queries = \"every\"\nposts = \"detected\"\n";
+        let spec = &parse_chains(text, "e.toml", &[]).expect("valid")[0];
+        let every = Analyzer::build(spec, &AnalysisContext::default()).expect("builds");
+        assert_eq!(every.fields_for_query(Some(lang("en")), None), [0, 1, 2]);
+        // posts = "detected" ignores the declared language.
+        assert_eq!(every.field_for_post(Some(lang("en")), None), 2);
+    }
+
+    #[test]
+    fn routed_detector_detects_once_for_the_orchestrator() {
+        let a = builtin("routed");
+        let detector = a.detector().expect("routed");
+        let text = "Der schnelle braune Fuchs springt über den faulen Hund und läuft weiter";
+        let detection = detector.detect(text).expect("confident German");
+        assert_eq!(detection.lang, lang("de"));
+        let field = a.field_for_post(None, Some(&detection));
+        assert_eq!(a.fields()[field].key, "text_de");
+        let mut analyzer = a.fields()[field].analyzer.clone();
+        assert_eq!(texts(&mut analyzer, "Häuser springt")[..], ["haus", "springt"]);
+    }
+
+    #[test]
+    fn specs_built_in_code_fail_cleanly() {
+        let spec = ChainSpec {
+            name: ChainName::from("x"),
+            description: None,
+            body: ChainBody::Plain(Pipeline {
+                tokenizer: TokenizerKind::Words,
+                steps: vec![StepSpec::Stem { language: None, generation: StemGeneration::Current }],
+            }),
+        };
+        let e = Analyzer::build(&spec, &AnalysisContext::default()).expect_err("no language");
+        assert_eq!(e.to_string(), "step stem(current): needs a language");
+    }
 }

@@ -139,12 +139,28 @@ pub struct Detection {
 }
 
 /// A configured detector: whatlang restricted to an allowlist, answering
-/// only when its confidence reaches a floor.
-#[derive(Debug, Clone)]
+/// only when its confidence reaches a floor. Its `Debug` form shows only the
+/// settings (sorted allowlist, floor), so equal settings print equally.
+#[derive(Clone)]
 pub struct LangDetector {
     allowlist: Option<Vec<LangCode>>,
     min_confidence: f64,
     detector: Detector,
+}
+
+impl std::fmt::Debug for LangDetector {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.debug_struct("LangDetector")
+            .field(
+                "allowlist",
+                &self
+                    .allowlist
+                    .as_ref()
+                    .map(|v| v.iter().map(LangCode::as_str).collect::<Vec<_>>()),
+            )
+            .field("min_confidence", &self.min_confidence)
+            .finish()
+    }
 }
 
 impl LangDetector {
@@ -160,6 +176,11 @@ impl LangDetector {
                 "language detection: minimum confidence must be in [0, 1], found {min_confidence}"
             )));
         }
+        let allowlist = allowlist.map(|mut codes| {
+            codes.sort();
+            codes.dedup();
+            codes
+        });
         let detector = match &allowlist {
             None => Detector::new(),
             Some(codes) => {
@@ -180,16 +201,9 @@ impl LangDetector {
                         supported.join(" ")
                     )));
                 }
-                let mut langs: Vec<Lang> = codes.iter().filter_map(|c| whatlang_lang(*c)).collect();
-                langs.dedup();
-                Detector::with_allowlist(langs)
+                Detector::with_allowlist(codes.iter().filter_map(|c| whatlang_lang(*c)).collect())
             }
         };
-        let allowlist = allowlist.map(|mut codes| {
-            codes.sort();
-            codes.dedup();
-            codes
-        });
         Ok(LangDetector { allowlist, min_confidence, detector })
     }
 
@@ -316,7 +330,7 @@ mod tests {
         let err = LangDetector::new(Some(vec![code("en"), code("gd"), code("eu")]), 0.0)
             .expect_err("gd and eu are unknown to whatlang");
         let text = err.to_string();
-        assert!(text.contains("no detector for gd, eu"), "{text}");
+        assert!(text.contains("no detector for eu, gd"), "{text}");
         assert!(text.contains("supported codes: af ak am ar"), "{text}");
         assert!(LangDetector::new(Some(vec![]), 0.0).is_err());
         assert!(LangDetector::new(None, 1.5).is_err());
@@ -325,6 +339,12 @@ mod tests {
             .expect("valid settings");
         assert_eq!(d.allowlist(), Some(&[code("en"), code("fr")][..]));
         assert_eq!(d.min_confidence(), 0.25);
+        let same = LangDetector::new(Some(vec![code("en"), code("fr")]), 0.25).expect("valid");
+        assert_eq!(format!("{d:?}"), format!("{same:?}"));
+        assert_eq!(
+            format!("{same:?}"),
+            "LangDetector { allowlist: Some([\"en\", \"fr\"]), min_confidence: 0.25 }"
+        );
     }
 
     #[test]

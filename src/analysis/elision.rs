@@ -22,8 +22,8 @@ use crate::input::LangCode;
 const FRENCH: &[&str] =
     &["c", "d", "j", "l", "m", "n", "s", "t", "qu", "jusqu", "lorsqu", "puisqu", "quoiqu"];
 const ITALIAN: &[&str] = &[
-    "c", "d", "l", "m", "s", "t", "v", "un", "all", "dall", "dell", "nell", "sull", "coll",
-    "pell", "gl", "agl", "dagl", "degl", "negl", "sugl", "quest", "quell", "bell", "sant",
+    "c", "d", "l", "m", "s", "t", "v", "un", "all", "dall", "dell", "nell", "sull", "coll", "pell",
+    "gl", "agl", "dagl", "degl", "negl", "sugl", "quest", "quell", "bell", "sant",
 ];
 const CATALAN: &[&str] = &["d", "l", "m", "n", "s", "t"];
 
@@ -47,7 +47,8 @@ impl Elision {
             Some("ca") => &[CATALAN],
             Some(_) => return None,
         };
-        let mut prefixes: Vec<&'static str> = lists.iter().flat_map(|l| l.iter().copied()).collect();
+        let mut prefixes: Vec<&'static str> =
+            lists.iter().flat_map(|l| l.iter().copied()).collect();
         prefixes.sort_unstable();
         prefixes.dedup();
         Some(Elision { prefixes })

@@ -3,8 +3,8 @@
 //!
 //! Place in the data flow: `analysis` stage, a filter of a chain. Most
 //! Snowball stemmers rely on accented letters in their suffix rules, so
-//! `fold` must come after `stem` except for English and Dutch (see the chain
-//! rules in `spec.rs`). It is usually placed after `lowercase`; the order
+//! `fold` must come after `stem` except for English, German, Dutch and
+//! Russian (see the chain rules in `spec.rs`). It is usually placed after `lowercase`; the order
 //! between those two does not change the result.
 //!
 //! How: canonical decomposition (Unicode NFD, UAX #15) splits a letter from

@@ -80,13 +80,20 @@ pub const CACHE_CAPACITY: usize = 8192;
 pub const UNKNOWN_FLOOR: f64 = 1.0;
 
 /// Unigram word frequencies used to segment tags: lower-case word → count.
-#[derive(Debug, Clone, Default)]
+/// Its `Debug` form shows only the size (`len`, `total`), not the words.
+#[derive(Clone, Default)]
 pub struct WordFreqs {
     counts: HashMap<String, u64>,
     total: u64,
     max_chars: usize,
     /// `ln(total / smallest count)`: the cost of the rarest known word.
     ln_rarest: f64,
+}
+
+impl std::fmt::Debug for WordFreqs {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.debug_struct("WordFreqs").field("len", &self.len()).field("total", &self.total).finish()
+    }
 }
 
 impl WordFreqs {
@@ -812,6 +819,25 @@ mod tests {
     }
 
     #[test]
+    fn segments_lowercase_tags_in_other_scripts() {
+        let f = WordFreqs::learn([
+            "Der Fährhafen von Kiel.",
+            "Мой город — Москва, мой дом.",
+            "Ο νέος κόσμος, ο κόσμος μας.",
+        ]);
+        assert_eq!(parts("fährhafenkiel", Some(&f)), ["fährhafen", "kiel"]);
+        assert_eq!(parts("Fährhafenkiel", Some(&f)), ["Fährhafen", "kiel"]);
+        assert_eq!(parts("мойгород", Some(&f)), ["мой", "город"]);
+        assert_eq!(parts("МОЙГОРОД", Some(&f)), ["МОЙ", "ГОРОД"]);
+        // ALL CAPS Greek: a capital sigma that ends a word is looked up as
+        // the final form ς (Unicode SpecialCasing final-sigma rule).
+        assert_eq!(parts("ΝΈΟΣΚΌΣΜΟΣ", Some(&f)), ["ΝΈΟΣ", "ΚΌΣΜΟΣ"]);
+        // Uncased scripts are left whole.
+        let cjk = WordFreqs::from_counts([("東".to_string(), 5), ("京".to_string(), 5)]);
+        assert_eq!(parts("東京", Some(&cjk)), ["東京"]);
+    }
+
+    #[test]
     fn single_letters_other_than_a_and_i_are_penalised() {
         let f = WordFreqs::from_counts(
             [("day", 8), ("a", 4), ("s", 4), ("days", 1)].map(|(w, c)| (w.to_string(), c)),
@@ -850,6 +876,7 @@ mod tests {
             [("Day", 2), ("day", 3), ("", 5), ("zero", 0)].map(|(w, c)| (w.to_string(), c)),
         );
         assert_eq!((f.len(), f.total(), f.count("day")), (1, 5, 5));
+        assert_eq!(format!("{f:?}"), "WordFreqs { len: 1, total: 5 }");
     }
 
     #[test]

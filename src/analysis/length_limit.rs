@@ -49,12 +49,8 @@ impl<T: TokenStream> TokenStream for LengthLimitStream<T> {
     fn advance(&mut self) -> bool {
         while self.tail.advance() {
             let text = &self.tail.token().text;
-            // Byte length bounds the character count from both sides (1 to 4
-            // bytes per character), which settles most tokens without counting.
-            if text.len() >= self.limit.min && text.len() <= self.limit.max {
-                return true;
-            }
-            let chars = text.chars().count();
+            // ASCII tokens have one byte per character: no counting needed.
+            let chars = if text.is_ascii() { text.len() } else { text.chars().count() };
             if chars >= self.limit.min && chars <= self.limit.max {
                 return true;
             }
@@ -84,7 +80,8 @@ mod tests {
         let mut a = TextAnalyzer::builder(WhitespaceTokenizer::default())
             .filter(LengthLimit { min: 2, max: 3 })
             .build();
-        // "été" is 3 characters in 5 bytes: kept; "a" and "four" are dropped.
-        assert_tokens(&mut a, "a été four ok", &[("été", 1, 2, 7), ("ok", 3, 13, 15)]);
+        // "été" is 3 characters in 5 bytes: kept; "é" is 1 character in 2
+        // bytes: dropped, like "a" and "four".
+        assert_tokens(&mut a, "a été four é ok", &[("été", 1, 2, 7), ("ok", 4, 16, 18)]);
     }
 }

@@ -1,14 +1,52 @@
 //! Analysis chains: tokenizers and token filters (tantivy traits), chains
 //! built from data, hashtag segmentation and language detection.
-//! Second stage of the data flow (after `input`).
+//! Second stage of the data flow (after `input`, before `index`).
+//!
+//! A chain is data: a [`ChainSpec`] read from TOML ([`read_chain_file`],
+//! [`builtin_chains`]; the layout, every step and the rejected orders are
+//! documented in `spec.rs`), built into tantivy analyzers by
+//! [`Analyzer::build`]. A plain chain analyses one field; a routed chain has
+//! one field per language plus a fallback, and says which field a post goes
+//! to ([`Analyzer::field_for_post`]) and which fields a query searches
+//! ([`Analyzer::fields_for_query`]). [`inspect`] shows what a chain does to
+//! a text, stage by stage.
+//!
+//! Pieces, one file each (settings `X`, wrapper `XFilter<T>`, stream
+//! `XStream<'a, T>`; filters never change offsets):
+//! - tokenizers: [`WordTokenizer`] (`words`, UAX #29), [`PostTokenizer`]
+//!   (`posts`: tags, mentions, URLs, emoji whole), [`WhitespaceTokenizer`];
+//! - filters: [`Lowercase`], [`Fold`], [`StopWords`], [`Stem`] (two Snowball
+//!   generations), [`Elision`], [`LengthLimit`], [`EdgeNgrams`],
+//!   [`DropTokens`], and [`hashtag::HashtagSplit`].
+//!
+//! ```
+//! use postassay::analysis::{parse_chains, AnalysisContext, Analyzer};
+//!
+//! let toml = r#"
+//! [[chain]]
+//! name = "tags"
+//! tokenizer = "posts"
+//! steps = [{ step = "hashtags" }, { step = "lowercase" }, { step = "fold" }]
+//! "#;
+//! let chains = parse_chains(toml, "inline.toml", &[]).unwrap();
+//! let analyzer = Analyzer::build(&chains[0], &AnalysisContext::default()).unwrap();
+//! let mut text = analyzer.fields()[0].analyzer.clone();
+//! let mut stream = text.token_stream("Café #HarbourMarket 🐟");
+//! let mut tokens = Vec::new();
+//! while let Some(t) = stream.next() {
+//!     tokens.push(t.text.clone());
+//! }
+//! assert_eq!(tokens, ["cafe", "harbourmarket", "harbour", "market", "🐟"]);
+//! ```
 
-pub mod detect;
-pub mod hashtag;
 mod chain;
+pub mod detect;
 mod drop_tokens;
 mod edge_ngrams;
 mod elision;
 mod fold;
+pub mod hashtag;
+pub mod inspect;
 mod length_limit;
 mod lowercase;
 mod post_tokenizer;

@@ -154,14 +154,17 @@ fn tag_len(s: &str) -> Option<usize> {
 /// Byte length of an `@mention` (optionally `@user@host.tld`) at the start of `s`.
 fn mention_len(s: &str) -> Option<usize> {
     let body = s.strip_prefix('@')?;
-    let user = trim_trailing_dots(run_len(body, |c| c.is_alphanumeric() || c == '_' || c == '.'), body);
+    let user =
+        trim_trailing_dots(run_len(body, |c| c.is_alphanumeric() || c == '_' || c == '.'), body);
     if user == 0 || body.starts_with('.') {
         return None;
     }
     let mut len = 1 + user;
     if let Some(host) = body.get(user..).and_then(|r| r.strip_prefix('@')) {
-        let host_len =
-            trim_trailing_dots(run_len(host, |c| c.is_alphanumeric() || c == '-' || c == '.'), host);
+        let host_len = trim_trailing_dots(
+            run_len(host, |c| c.is_alphanumeric() || c == '-' || c == '.'),
+            host,
+        );
         let name = host.get(..host_len)?;
         if name.contains('.') && !name.starts_with('.') {
             len += 1 + host_len;
@@ -222,8 +225,7 @@ fn url_len(s: &str) -> Option<usize> {
         .find(|p| bytes.get(..p.len()).is_some_and(|b| b.eq_ignore_ascii_case(p.as_bytes())))?;
     let mut len = bytes.iter().position(|&b| !is_uri_char(b)).unwrap_or(bytes.len());
     // Cut trailing sentence punctuation and unbalanced closing brackets.
-    loop {
-        let Some(&last) = bytes.get(len.checked_sub(1)?) else { break };
+    while let Some(&last) = bytes.get(len.checked_sub(1)?) {
         let body = bytes.get(..len)?;
         let unbalanced = |open: u8, close: u8| {
             last == close

@@ -312,7 +312,10 @@ mod tests {
     #[test]
     fn post_elements_are_not_stemmed() {
         assert_eq!(
-            texts(&mut analyzer("en", StemGeneration::Current), "#running @running www.running.com running"),
+            texts(
+                &mut analyzer("en", StemGeneration::Current),
+                "#running @running www.running.com running"
+            ),
             ["#running", "@running", "www.running.com", "run"]
         );
     }
@@ -365,17 +368,23 @@ mod tests {
     }
 
     /// Agreement of the `current` generation with snowball-data at today's
-    /// commit (`snowball/head/`); measured values asserted as floors.
+    /// commit (`snowball/head/`): measured 100% on all ten languages, so
+    /// the test asserts an exact match. The 2018 generation's agreement with
+    /// the same lines is printed for comparison (it differs on many words).
     #[test]
     fn generation_current_agrees_with_snowball_head() {
         for (code, name) in LANGUAGE_FILES {
             let Some(pairs) = snowball_vocabulary("head", name) else { return };
-            let stem = Stem::new(lang(code), StemGeneration::Current).expect("supported");
-            let mut backend = Backend::new(&stem);
-            let agree = pairs.iter().filter(|(w, s)| backend.stem(w) == *s).count();
-            let share = agree as f64 / pairs.len() as f64;
-            eprintln!("current vs head {name}: {agree}/{} = {share:.4}", pairs.len());
-            assert!(share >= 0.999, "{name}: {share}");
+            let current = Stem::new(lang(code), StemGeneration::Current).expect("supported");
+            let old = Stem::new(lang(code), StemGeneration::V2018).expect("supported");
+            let (mut current, mut old) = (Backend::new(&current), Backend::new(&old));
+            let agree = pairs.iter().filter(|(w, s)| current.stem(w) == *s).count();
+            let agree_2018 = pairs.iter().filter(|(w, s)| old.stem(w) == *s).count();
+            eprintln!(
+                "{name}: current {agree}/{n}, 2018 {agree_2018}/{n} agree with head",
+                n = pairs.len()
+            );
+            assert_eq!(agree, pairs.len(), "{name}");
         }
     }
 
@@ -393,6 +402,38 @@ mod tests {
             checked += 1;
         }
         assert!(checked >= 50, "{checked}");
+    }
+
+    /// Why `fold` may precede `stem` only for some languages (the rule in
+    /// `spec.rs`): on the snowball-data `head/` vocabularies, the share of
+    /// words whose stem is the same whether folding runs first or last
+    /// (`stem(fold(w)) == fold(stem(w))`). Measured: en 100%, ru 100%, de
+    /// 99.85%, nl 99.85%; it 98.6%, sv 98.2%, es 96.2%, pt 95.9%, fr 92.1%,
+    /// tr 80.8%.
+    #[test]
+    fn fold_before_stem_is_harmless_only_for_the_allowed_languages() {
+        for (code, name) in LANGUAGE_FILES {
+            let Some(pairs) = snowball_vocabulary("head", name) else { return };
+            let stem = Stem::new(lang(code), StemGeneration::Current).expect("supported");
+            let mut backend = Backend::new(&stem);
+            let (mut folded, mut stem_folded) = (String::new(), String::new());
+            let same = pairs
+                .iter()
+                .filter(|(w, _)| {
+                    crate::analysis::fold::fold_into(w, &mut folded);
+                    let fold_first = backend.stem(&folded);
+                    crate::analysis::fold::fold_into(&backend.stem(w), &mut stem_folded);
+                    fold_first == stem_folded
+                })
+                .count();
+            let share = same as f64 / pairs.len() as f64;
+            eprintln!("fold then stem, {name}: {same}/{} = {share:.4}", pairs.len());
+            if crate::analysis::spec::FOLD_BEFORE_STEM_OK.contains(code) {
+                assert!(share >= 0.998, "{name}: {share}");
+            } else {
+                assert!(share < 0.99, "{name}: {share}");
+            }
+        }
     }
 
     const LANGUAGE_FILES: &[(&str, &str)] = &[

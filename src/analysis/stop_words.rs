@@ -86,8 +86,16 @@ mod tests {
     fn english_and_german_lists_keep_positions() {
         // "the", "of" are in the 33-word English list; "und", "die" in
         // Snowball's German stop list (snowballstem.org german/stop.txt).
-        assert_tokens(&mut analyzer("en"), "the art of war", &[("art", 1, 4, 7), ("war", 3, 11, 14)]);
-        assert_tokens(&mut analyzer("de"), "katzen und die hunde", &[("katzen", 0, 0, 6), ("hunde", 3, 15, 20)]);
+        assert_tokens(
+            &mut analyzer("en"),
+            "the art of war",
+            &[("art", 1, 4, 7), ("war", 3, 11, 14)],
+        );
+        assert_tokens(
+            &mut analyzer("de"),
+            "katzen und die hunde",
+            &[("katzen", 0, 0, 6), ("hunde", 3, 15, 20)],
+        );
     }
 
     #[test]

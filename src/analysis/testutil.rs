@@ -22,10 +22,8 @@ pub fn assert_tokens(
     expected: &[(&str, usize, usize, usize)],
 ) {
     let tokens = collect_tokens(analyzer, input);
-    let actual: Vec<(&str, usize, usize, usize)> = tokens
-        .iter()
-        .map(|t| (t.text.as_str(), t.position, t.offset_from, t.offset_to))
-        .collect();
+    let actual: Vec<(&str, usize, usize, usize)> =
+        tokens.iter().map(|t| (t.text.as_str(), t.position, t.offset_from, t.offset_to)).collect();
     for t in &tokens {
         assert!(input.get(t.offset_from..t.offset_to).is_some(), "bad offsets in {t:?}");
     }

@@ -7,6 +7,8 @@
 //! distinct detector configuration, never once per chain.
 
 pub mod compare;
+pub mod detect_cache;
+pub mod explain;
 
 use std::collections::{BTreeMap, BTreeSet};
 use std::io::Read;
@@ -15,6 +17,7 @@ use std::time::Instant;
 
 use sha2::{Digest, Sha256};
 
+use self::detect_cache::DetectCache;
 use crate::analysis::detect::{Detection, LangDetector};
 use crate::analysis::hashtag::WordFreqs;
 use crate::analysis::{AnalysisContext, Analyzer, ChainSpec};
@@ -303,13 +306,8 @@ impl Assembly<'_> {
         }
         let refs: Vec<(ChainName, &SystemScores)> =
             scores.iter().map(|(n, s)| (n.clone(), s)).collect();
-        let computed = compare::compare(
-            &refs,
-            self.baseline,
-            &options.metrics,
-            self.queries,
-            &options.stats,
-        );
+        let computed =
+            compare::compare(&refs, self.baseline, &options.metrics, self.queries, &options.stats);
         let per_query = scores
             .iter()
             .map(|(name, s)| PerQuery {
@@ -370,21 +368,50 @@ impl Assembly<'_> {
     }
 }
 
+/// One detector's results: posts, then queries, in input order (`None`
+/// where the text declared its language or nothing was detected).
+type DetectedLangs = (Vec<Option<Detection>>, Vec<Option<Detection>>);
+
 /// Detections of posts and queries, one set per distinct detector.
 struct Detections {
     /// Keyed by the detector's configuration.
-    by_detector: BTreeMap<String, (Vec<Option<Detection>>, Vec<Option<Detection>>)>,
+    by_detector: BTreeMap<String, DetectedLangs>,
 }
+
+/// How [`Detections::compute_with`] detects a list of texts.
+type DetectFn<'a> = &'a dyn Fn(&LangDetector, &[&str]) -> Vec<Option<Detection>>;
 
 impl Detections {
     fn key(d: &LangDetector) -> String {
         format!("{d:?}")
     }
 
+    /// Detect with each distinct detector, reusing the detection cache the
+    /// environment asks for ([`DetectCache::from_env`]).
     fn compute(
         analyzers: &[Analyzer],
         posts: &[Post],
         queries: &[Query],
+        progress: &mut dyn FnMut(&str),
+    ) -> Detections {
+        let cache = DetectCache::from_env();
+        Self::compute_with(
+            analyzers,
+            posts,
+            queries,
+            cache.as_ref(),
+            &|d, texts| d.detect_all(texts),
+            progress,
+        )
+    }
+
+    /// [`compute`](Self::compute) with an explicit cache and detection.
+    fn compute_with(
+        analyzers: &[Analyzer],
+        posts: &[Post],
+        queries: &[Query],
+        cache: Option<&DetectCache>,
+        detect: DetectFn<'_>,
         progress: &mut dyn FnMut(&str),
     ) -> Detections {
         let mut by_detector = BTreeMap::new();
@@ -402,13 +429,29 @@ impl Detections {
                 .iter()
                 .map(|q| if q.lang.is_some() { "" } else { q.text.as_str() })
                 .collect();
-            let post_det = d.detect_all(&post_texts);
-            let query_det = d.detect_all(&query_texts);
-            progress(&format!(
-                "detected languages of {} posts in {:.2} s",
-                post_texts.iter().filter(|t| !t.is_empty()).count(),
-                started.elapsed().as_secs_f64()
-            ));
+            let mut from_cache = false;
+            let mut lookup = |texts: &[&str]| match cache {
+                Some(c) => {
+                    let got = c.get_or_detect(d, texts, |t| detect(d, t));
+                    if let Some(e) = &got.write_error {
+                        progress(&format!("could not write the detection cache: {e}"));
+                    }
+                    from_cache |= got.from_cache;
+                    got.detections
+                }
+                None => detect(d, texts),
+            };
+            let post_det = lookup(&post_texts);
+            let query_det = lookup(&query_texts);
+            let undeclared = post_texts.iter().filter(|t| !t.is_empty()).count();
+            let seconds = started.elapsed().as_secs_f64();
+            progress(&match (from_cache, cache) {
+                (true, Some(c)) => format!(
+                    "read the language detections of {undeclared} posts from the cache {} in {seconds:.2} s",
+                    c.dir().display()
+                ),
+                _ => format!("detected languages of {undeclared} posts in {seconds:.2} s"),
+            });
             by_detector.insert(key, (post_det, query_det));
         }
         Detections { by_detector }
@@ -479,5 +522,74 @@ mod tests {
         assert!(err.to_string().contains("expected one of a, b"));
         let dup = vec![ChainName::from("a"), ChainName::from("a")];
         assert!(baseline_index(&dup, None).unwrap_err().to_string().contains("twice"));
+    }
+
+    /// A second compute with the cache gives the same detections without
+    /// calling the detector; without a cache the detector runs each time.
+    #[test]
+    fn detections_are_reused_from_the_cache() {
+        use std::cell::Cell;
+
+        use crate::analysis::builtin_chains;
+        use crate::ids::PostId;
+        use crate::input::LangCode;
+
+        let en = LangCode::parse("en").expect("code");
+        let chains = builtin_chains(en).expect("built-ins");
+        let analyzers: Vec<Analyzer> = chains
+            .iter()
+            .map(|c| Analyzer::build(c, &AnalysisContext::default()).expect("builds"))
+            .collect();
+        let base = [
+            "Der Hafen ist heute wegen des Sturms geschlossen.",
+            "The harbour is closed today because of the storm.",
+            "Le port est fermé aujourd'hui à cause de la tempête.",
+        ];
+        let posts: Vec<Post> = (0..30)
+            .map(|i| Post {
+                id: PostId(format!("p{i}")),
+                text: base[i % 3].to_string(),
+                lang: (i == 4).then_some(en),
+            })
+            .collect();
+        let queries = Vec::new();
+        let dir = tempfile::tempdir().expect("temp dir");
+        let cache = DetectCache::new(dir.path()).with_min_texts(1);
+        let calls = Cell::new(0);
+        let detect = |d: &LangDetector, texts: &[&str]| {
+            calls.set(calls.get() + 1);
+            d.detect_all(texts)
+        };
+        let mut lines = Vec::new();
+        let mut progress = |l: &str| lines.push(l.to_string());
+        let first = Detections::compute_with(
+            &analyzers,
+            &posts,
+            &queries,
+            Some(&cache),
+            &detect,
+            &mut progress,
+        );
+        // One detector (only `routed` has one): posts, then the (empty, uncached) queries.
+        assert_eq!(calls.get(), 2);
+        let second = Detections::compute_with(
+            &analyzers,
+            &posts,
+            &queries,
+            Some(&cache),
+            &detect,
+            &mut progress,
+        );
+        assert_eq!(calls.get(), 3, "posts came from the cache");
+        assert_eq!(second.by_detector, first.by_detector);
+        let routed = analyzers.iter().find(|a| a.detector().is_some()).expect("routed");
+        let (post_det, _) = second.for_analyzer(routed);
+        assert_eq!(post_det.len(), 30);
+        assert_eq!(post_det[0].map(|d| d.lang.as_str().to_string()).as_deref(), Some("de"));
+        assert_eq!(post_det[4], None, "a declared language is not detected");
+        assert!(lines[0].starts_with("detected languages of 29 posts"), "{lines:?}");
+        assert!(lines[1].starts_with("read the language detections of 29 posts"), "{lines:?}");
+        Detections::compute_with(&analyzers, &posts, &queries, None, &detect, &mut |_| {});
+        assert_eq!(calls.get(), 5, "no cache: detected again");
     }
 }

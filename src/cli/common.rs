@@ -5,10 +5,12 @@ use std::path::{Path, PathBuf};
 
 use clap::{Args, ValueEnum};
 
+use postassay::analysis::{self, ChainSpec};
 use postassay::bench::EvalOptions;
 use postassay::error::Error;
 use postassay::eval::{self, EvalSettings, Gain};
 use postassay::ids::ChainName;
+use postassay::input::LangCode;
 use postassay::stats::StatSettings;
 
 /// Where reports go when `--out` is not given.
@@ -116,4 +118,97 @@ pub fn check_out_dir(out: &Path) -> Result<(), Error> {
         )));
     }
     Ok(())
+}
+
+/// The bundled demo bench, relative to the repository root.
+pub const DEMO_CORPUS: &str = "corpora/demo/posts.jsonl";
+/// Demo queries.
+pub const DEMO_QUERIES: &str = "judgments/demo/queries.csv";
+/// Demo judgments.
+pub const DEMO_JUDGMENTS: &str = "judgments/demo/qrels.csv";
+
+/// The three bench inputs; all given, or none for the demo bench.
+#[derive(Debug, Args)]
+pub struct InputFlags {
+    /// Posts: JSON Lines (`id`, `text`, optional `lang`) or CSV with `id,text`.
+    #[arg(long, value_name = "FILE")]
+    pub corpus: Option<PathBuf>,
+    /// Queries: CSV `query_id,text[,lang][,tags]`.
+    #[arg(long, value_name = "FILE")]
+    pub queries: Option<PathBuf>,
+    /// Judgments: CSV `query_id,doc_id,grade` or the four-column layout.
+    #[arg(long, value_name = "FILE")]
+    pub judgments: Option<PathBuf>,
+}
+
+impl InputFlags {
+    /// `(corpus, queries, judgments)`: the three given files, or the demo
+    /// bench's when none is given.
+    pub fn resolve(&self) -> Result<(PathBuf, PathBuf, PathBuf), Error> {
+        match (&self.corpus, &self.queries, &self.judgments) {
+            (Some(c), Some(q), Some(j)) => Ok((c.clone(), q.clone(), j.clone())),
+            (None, None, None) => {
+                for f in [DEMO_CORPUS, DEMO_QUERIES, DEMO_JUDGMENTS] {
+                    if !Path::new(f).is_file() {
+                        return Err(Error::usage(format!(
+                            "no input flags given and the demo bench file {f} is not here: \
+                             run from the repository root, or give --corpus, --queries and \
+                             --judgments"
+                        )));
+                    }
+                }
+                Ok((DEMO_CORPUS.into(), DEMO_QUERIES.into(), DEMO_JUDGMENTS.into()))
+            }
+            _ => Err(Error::usage(
+                "give all three of --corpus, --queries and --judgments, or none of them (the \
+                 demo bench)",
+            )),
+        }
+    }
+}
+
+/// Which chains to use.
+#[derive(Debug, Args)]
+pub struct ChainFlags {
+    /// Comma-separated chain names (built-in: standard, stemmed, hashtag,
+    /// routed; plus those of --chain-file). Default: every built-in chain, or
+    /// every chain of --chain-file when one is given.
+    #[arg(long, value_name = "LIST")]
+    pub chains: Option<String>,
+    /// A TOML file of chain definitions.
+    #[arg(long, value_name = "FILE")]
+    pub chain_file: Option<PathBuf>,
+    /// Language of the built-in `stemmed` chain (ISO 639-1).
+    #[arg(long, value_name = "CODE", default_value = "en")]
+    pub stem_lang: String,
+}
+
+impl ChainFlags {
+    /// The selected chain definitions, in order.
+    pub fn resolve(&self) -> Result<Vec<ChainSpec>, Error> {
+        let stem_lang = LangCode::parse(&self.stem_lang).ok_or_else(|| {
+            Error::usage(format!(
+                "--stem-lang: expected an ISO 639-1 code, found {:?}",
+                self.stem_lang
+            ))
+        })?;
+        let builtins = analysis::builtin_chains(stem_lang)?;
+        let from_file = match &self.chain_file {
+            Some(f) => analysis::read_chain_file(f)?,
+            None => Vec::new(),
+        };
+        match (&self.chains, from_file.is_empty()) {
+            (Some(list), _) => {
+                let mut available = from_file;
+                for b in builtins {
+                    if !available.iter().any(|c| c.name == b.name) {
+                        available.push(b);
+                    }
+                }
+                analysis::select_chains(&available, list)
+            }
+            (None, true) => Ok(builtins),
+            (None, false) => Ok(from_file),
+        }
+    }
 }

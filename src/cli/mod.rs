@@ -4,11 +4,14 @@
 //! logic lives here.
 
 mod common;
+mod explain;
 mod gate;
 mod judge;
 mod pool;
 mod run;
 mod score;
+mod tokens;
+mod vet;
 
 use std::process::ExitCode;
 
@@ -35,6 +38,11 @@ enum Command {
     Run(run::RunArgs),
     /// Score existing ranked runs against judgments and compare them.
     Score(score::ScoreArgs),
+    /// Show the tokens a chain makes of a text (`--trace`: after each step).
+    Tokens(tokens::TokensArgs),
+    /// Show, for one query and one post, each chain's analysed terms, the
+    /// terms they share and the post's rank and BM25 score.
+    Explain(explain::ExplainArgs),
     /// Compare a current report with a baseline report and exit 1 when a
     /// metric dropped more than allowed (for CI).
     Gate(gate::GateArgs),
@@ -43,6 +51,9 @@ enum Command {
     Pool(pool::PoolArgs),
     /// Grade pooled pairs in the terminal, appending to a judgments file.
     Judge(judge::JudgeArgs),
+    /// Diagnose chains on open linguistic data: conflation against lemma
+    /// classes, routing accuracy by length, hashtag segmentation accuracy.
+    Vet(vet::VetArgs),
 }
 
 /// Run the parsed command line.
@@ -50,8 +61,11 @@ pub fn execute(cli: Cli) -> anyhow::Result<ExitCode> {
     match cli.command {
         Command::Run(args) => run::execute(args),
         Command::Score(args) => score::execute(args),
+        Command::Tokens(args) => tokens::execute(args),
+        Command::Explain(args) => explain::execute(args),
         Command::Gate(args) => gate::execute(args),
         Command::Pool(args) => pool::execute(args),
         Command::Judge(args) => judge::execute(args),
+        Command::Vet(args) => vet::execute(args),
     }
 }

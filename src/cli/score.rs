@@ -41,9 +41,9 @@ pub fn execute(args: ScoreArgs) -> anyhow::Result<ExitCode> {
 fn plan(args: &ScoreArgs) -> Result<ScorePlan, Error> {
     let mut runs: Vec<(ChainName, PathBuf)> = Vec::new();
     for spec in &args.runs {
-        let (name, file) = spec.split_once('=').ok_or_else(|| {
-            Error::usage(format!("--run: expected NAME=FILE, found {spec:?}"))
-        })?;
+        let (name, file) = spec
+            .split_once('=')
+            .ok_or_else(|| Error::usage(format!("--run: expected NAME=FILE, found {spec:?}")))?;
         if name.is_empty() || file.is_empty() {
             return Err(Error::usage(format!("--run: expected NAME=FILE, found {spec:?}")));
         }

@@ -31,8 +31,7 @@ pub fn render_junit(outcome: &GateOutcome) -> String {
         ("require_significance", outcome.require_significance.to_string()),
         ("alpha", outcome.alpha.to_string()),
     ] {
-        let _ =
-            writeln!(s, r#"      <property name="{name}" value="{}"/>"#, escape(&value));
+        let _ = writeln!(s, r#"      <property name="{name}" value="{}"/>"#, escape(&value));
     }
     let _ = writeln!(s, "    </properties>");
     for c in &outcome.checks {
@@ -50,7 +49,7 @@ pub fn render_junit(outcome: &GateOutcome) -> String {
                     s,
                     r#"      <failure type="regression" message="{}">{}</failure>"#,
                     escape(&message),
-                    escape(&details(c))
+                    escape_text(&details(c))
                 );
                 let _ = writeln!(s, "    </testcase>");
             }
@@ -69,7 +68,7 @@ pub fn render_junit(outcome: &GateOutcome) -> String {
     }
     if !outcome.warnings.is_empty() {
         let text: Vec<String> = outcome.warnings.iter().map(|w| format!("warning: {w}")).collect();
-        let _ = writeln!(s, "    <system-out>{}</system-out>", escape(&text.join("\n")));
+        let _ = writeln!(s, "    <system-out>{}</system-out>", escape_text(&text.join("\n")));
     }
     let _ = writeln!(s, "  </testsuite>");
     let _ = writeln!(s, "</testsuites>");
@@ -99,6 +98,12 @@ fn details(c: &Check) -> String {
         p(c.p_randomization),
         p(c.p_ttest)
     )
+}
+
+/// Escape element content: as [`escape`], but line ends stay literal (only
+/// attribute values need them as references).
+fn escape_text(text: &str) -> String {
+    escape(text).replace("&#10;", "\n")
 }
 
 /// Escape text for an XML attribute or element. Characters XML 1.0 does not
@@ -134,5 +139,6 @@ mod tests {
         assert_eq!(escape(r#"a<b&"c'>"#), "a&lt;b&amp;&quot;c&apos;&gt;");
         assert_eq!(escape("x\u{1}y\tz"), "x\u{FFFD}y\tz");
         assert_eq!(escape("l1\nl2"), "l1&#10;l2");
+        assert_eq!(escape_text("l1\n<l2>"), "l1\n&lt;l2&gt;");
     }
 }

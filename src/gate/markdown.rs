@@ -29,13 +29,12 @@ pub fn render_markdown(outcome: &GateOutcome) -> String {
             outcome.alpha, outcome.seed, outcome.permutations
         )
     } else {
-        "A drop beyond its limit fails; a metric without a limit may not drop at all."
-            .to_string()
+        "A drop beyond its limit fails; a metric without a limit may not drop at all.".to_string()
     };
     let _ = writeln!(s, "{rule}\n");
     let _ = writeln!(
         s,
-        "| system | metric | baseline | current | Δ | limit | p (randomization) | p (t-test) | verdict |"
+        "| system | metric | baseline | current | Δ | threshold | p (randomization) | p (t-test) | verdict |"
     );
     let _ = writeln!(s, "|---|---|--:|--:|--:|---|--:|--:|---|");
     for c in &outcome.checks {

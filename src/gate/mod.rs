@@ -516,7 +516,8 @@ pub fn run_gate(
     let mut checks = Vec::new();
     for system in &systems {
         for metric in &metrics {
-            let (Some(bm), Some(cm)) = (summary_mean(b, system, metric), summary_mean(c, system, metric))
+            let (Some(bm), Some(cm)) =
+                (summary_mean(b, system, metric), summary_mean(c, system, metric))
             else {
                 warnings.push(format!(
                     "{system} {metric}: a report has no mean for it in its summary; not checked"
@@ -649,7 +650,8 @@ fn gated_metrics(
 /// Systems of both reports, in the current report's order; the others
 /// become warnings.
 fn common_systems(b: &Report, c: &Report, warnings: &mut Vec<String>) -> Vec<ChainName> {
-    let names = |r: &Report| -> Vec<ChainName> { r.summary.iter().map(|s| s.system.clone()).collect() };
+    let names =
+        |r: &Report| -> Vec<ChainName> { r.summary.iter().map(|s| s.system.clone()).collect() };
     let (in_b, in_c) = (names(b), names(c));
     for s in in_b.iter().filter(|s| !in_c.contains(s)) {
         warnings.push(format!("system {s} is in the baseline report only"));

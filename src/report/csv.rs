@@ -17,9 +17,11 @@ fn opt(x: Option<f64>) -> String {
 }
 
 fn to_string(write: impl FnOnce(&mut csv::Writer<Vec<u8>>) -> csv::Result<()>) -> Result<String> {
-    let mut w = csv::WriterBuilder::new().terminator(csv::Terminator::Any(b'\n')).from_writer(Vec::new());
+    let mut w =
+        csv::WriterBuilder::new().terminator(csv::Terminator::Any(b'\n')).from_writer(Vec::new());
     write(&mut w).map_err(|e| crate::error::Error::usage(format!("writing CSV: {e}")))?;
-    let bytes = w.into_inner().map_err(|e| crate::error::Error::usage(format!("writing CSV: {e}")))?;
+    let bytes =
+        w.into_inner().map_err(|e| crate::error::Error::usage(format!("writing CSV: {e}")))?;
     String::from_utf8(bytes).map_err(|e| crate::error::Error::usage(format!("writing CSV: {e}")))
 }
 
@@ -50,7 +52,12 @@ pub fn per_query_csv(report: &Report) -> Result<String> {
         for s in &report.per_query {
             for q in &s.queries {
                 for (metric, value) in report.settings.metrics.iter().zip(&q.values) {
-                    w.write_record([s.system.as_str(), q.query_id.as_str(), metric, &number(*value)])?;
+                    w.write_record([
+                        s.system.as_str(),
+                        q.query_id.as_str(),
+                        metric,
+                        &number(*value),
+                    ])?;
                 }
             }
         }

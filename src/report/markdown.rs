@@ -4,57 +4,11 @@
 
 use std::fmt::Write;
 
-use crate::bench::compare::{BreakdownCell, ComparisonRow};
+use crate::bench::compare::BreakdownCell;
 use crate::report::model::Report;
-
-/// Format a metric value for reading (three decimals).
-pub fn fixed(x: f64) -> String {
-    format!("{x:.3}")
-}
-
-/// Format a signed difference (`+0.021`, `−0.004` with a true minus sign).
-pub fn signed(x: f64) -> String {
-    if x < 0.0 {
-        format!("−{:.3}", -x)
-    } else {
-        format!("+{x:.3}")
-    }
-}
-
-/// `p = 0.012`, or `p < 0.001` for very small values.
-pub fn p_equals(p: Option<f64>) -> String {
-    let text = pvalue(p);
-    if text.starts_with('<') {
-        format!("p {text}")
-    } else {
-        format!("p = {text}")
-    }
-}
-
-/// Format a p-value: `< 0.001` below a thousandth, else two significant digits.
-pub fn pvalue(p: Option<f64>) -> String {
-    match p {
-        None => "n/a".to_string(),
-        Some(p) if p < 0.001 => "< 0.001".to_string(),
-        Some(p) if p >= 0.1 => format!("{p:.2}"),
-        Some(p) => format!("{p:.3}"),
-    }
-}
-
-fn interval(lo: Option<f64>, hi: Option<f64>) -> String {
-    match (lo, hi) {
-        (Some(l), Some(h)) => format!("[{}, {}]", fixed(l).replace('-', "−"), fixed(h).replace('-', "−")),
-        _ => "n/a".to_string(),
-    }
-}
-
-fn bytes(b: u64) -> String {
-    if b >= 1 << 20 {
-        format!("{:.1} MiB", b as f64 / f64::from(1 << 20))
-    } else {
-        format!("{:.1} KiB", b as f64 / 1024.0)
-    }
-}
+use crate::report::text::{
+    bytes, fixed, interval, pvalue, reindex_case, sentence, signed, spans_markdown,
+};
 
 /// Render the whole Markdown report.
 pub fn render(r: &Report) -> String {
@@ -96,57 +50,12 @@ pub fn render(r: &Report) -> String {
     s
 }
 
+/// The reindex case (see [`crate::report::html::reindex_case`], shared with
+/// `report.html` so both say the same words).
 fn verdict(s: &mut String, r: &Report, headline: &str) {
-    let _ = writeln!(s, "## Verdict\n");
-    let mut best: Option<&ComparisonRow> = None;
-    for c in r.comparisons.iter().filter(|c| c.metric == headline && c.significant && c.delta > 0.0)
-    {
-        if best.is_none_or(|b| c.delta > b.delta) {
-            best = Some(c);
-        }
-    }
-    match best {
-        Some(c) => {
-            let _ = writeln!(
-                s,
-                "**Choose `{}`.** It beats `{}` on {} by {} (95% CI of the difference {}, \
-                 {} after Holm; {} queries won, {} lost, {} tied).\n",
-                c.system,
-                c.baseline,
-                headline,
-                signed(c.delta),
-                interval(c.delta_ci_low, c.delta_ci_high),
-                p_equals(c.p_holm),
-                c.wins,
-                c.losses,
-                c.ties
-            );
-        }
-        None => {
-            let _ = writeln!(
-                s,
-                "**No chain is detectably better than `{}` on {}** at α = {} with these {} \
-                 queries.\n",
-                r.settings.baseline, headline, r.settings.alpha, r.counts.queries_evaluated
-            );
-        }
-    }
-    if let Some(ui) = r.metric_index("unjudged@10") {
-        let worst = r
-            .summary
-            .iter()
-            .filter_map(|sys| sys.metrics.get(ui).map(|m| (sys.system.clone(), m.mean)))
-            .max_by(|a, b| a.1.total_cmp(&b.1));
-        if let Some((name, u)) = worst {
-            let _ = writeln!(
-                s,
-                "Judging holes: up to {:.0}% of the top 10 results are unjudged (`{}`); \
-                 unjudged posts count as not relevant, so a chain that surfaces new posts \
-                 may be under-rated.\n",
-                u * 100.0,
-                name
-            );
-        }
+    let _ = writeln!(s, "## Recommendation\n");
+    for paragraph in reindex_case(r, headline) {
+        let _ = writeln!(s, "{}\n", spans_markdown(&paragraph));
     }
 }
 
@@ -193,71 +102,13 @@ fn scores(s: &mut String, r: &Report) {
     s.push('\n');
 }
 
-fn sentence(r: &Report, c: &ComparisonRow, headline: &str) -> String {
-    let overall = if c.significant {
-        format!(
-            "scores {} than `{}` on {} overall ({}, {} after Holm)",
-            if c.delta > 0.0 { "higher" } else { "lower" },
-            c.baseline,
-            headline,
-            signed(c.delta),
-            p_equals(c.p_holm)
-        )
-    } else {
-        format!(
-            "shows no detectable difference from `{}` on {} overall ({}, {} after Holm{})",
-            c.baseline,
-            headline,
-            signed(c.delta),
-            p_equals(c.p_holm),
-            c.min_detectable
-                .map(|m| format!("; this query set detects differences of about {} or more", fixed(m)))
-                .unwrap_or_default()
-        )
-    };
-    let mut better = Vec::new();
-    let mut worse = Vec::new();
-    for cell in &r.breakdowns {
-        if let Some(cc) =
-            cell.comparisons.iter().find(|x| x.system == c.system && x.metric == headline)
-        {
-            if cc.significant {
-                let text = format!(
-                    "{} `{}` ({}, {})",
-                    cell.dimension,
-                    cell.value,
-                    signed(cc.delta),
-                    p_equals(cc.p_holm)
-                );
-                if cc.delta > 0.0 {
-                    better.push(text);
-                } else {
-                    worse.push(text);
-                }
-            }
-        }
-    }
-    let mut out = format!("`{}` {}", c.system, overall);
-    if !better.is_empty() {
-        let _ = write!(out, "; better for {}", better.join(", "));
-    }
-    if !worse.is_empty() {
-        let _ = write!(out, "; worse for {}", worse.join(", "));
-    }
-    if better.is_empty() && worse.is_empty() && !r.breakdowns.is_empty() {
-        out.push_str("; no query language or tag group differs detectably");
-    }
-    out.push('.');
-    out
-}
-
 fn against_baseline(s: &mut String, r: &Report, headline: &str) {
     if r.comparisons.is_empty() {
         return;
     }
     let _ = writeln!(s, "## Against the baseline\n");
     for c in r.comparisons.iter().filter(|c| c.metric == headline) {
-        let _ = writeln!(s, "- {}", sentence(r, c, headline));
+        let _ = writeln!(s, "- {}", spans_markdown(&sentence(r, c, headline)));
     }
     s.push('\n');
     let _ = writeln!(
@@ -397,19 +248,4 @@ fn timing(s: &mut String, r: &Report) {
         );
     }
     s.push('\n');
-}
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn formats() {
-        assert_eq!(signed(-0.0041), "−0.004");
-        assert_eq!(signed(0.21), "+0.210");
-        assert_eq!(pvalue(Some(0.0004)), "< 0.001");
-        assert_eq!(pvalue(Some(0.0123)), "0.012");
-        assert_eq!(pvalue(Some(0.5)), "0.50");
-        assert_eq!(pvalue(None), "n/a");
-    }
 }

@@ -1,13 +1,16 @@
 //! Reports: the model computed by the bench and its renderings (CSV, JSON,
-//! Markdown). Last stage of the data flow; nothing here computes a number.
+//! Markdown, HTML). Last stage of the data flow; nothing here computes a number.
 //!
 //! [`write_outputs`] writes every file of formats.md's output table into the
 //! `--out` directory, each one atomically (a temporary file in the same
 //! directory, then a rename), so a reader never sees a half-written file.
 
 pub mod csv;
+pub mod html;
 pub mod markdown;
 pub mod model;
+pub mod svg;
+pub mod text;
 
 use std::io::Write;
 use std::path::Path;
@@ -43,7 +46,7 @@ pub fn write_atomic(path: &Path, bytes: &[u8]) -> Result<()> {
 }
 
 /// Write every output file into `out` (created when missing): the CSVs,
-/// `report.json`, `report.md` and, for `run`, `runs/NAME.csv`.
+/// `report.json`, `report.md`, `report.html` and, for `run`, `runs/NAME.csv`.
 pub fn write_outputs(out: &Path, report: &Report, runs: &[(ChainName, &Run)]) -> Result<()> {
     // Render everything first so a rendering error writes nothing.
     let mut files: Vec<(std::path::PathBuf, Vec<u8>)> = vec![
@@ -52,6 +55,7 @@ pub fn write_outputs(out: &Path, report: &Report, runs: &[(ChainName, &Run)]) ->
         (out.join("comparisons.csv"), csv::comparisons_csv(report)?.into_bytes()),
         (out.join("report.json"), to_json(report)?.into_bytes()),
         (out.join("report.md"), markdown::render(report).into_bytes()),
+        (out.join("report.html"), html::render(report).into_bytes()),
     ];
     for (name, run) in runs {
         let mut bytes = Vec::new();

@@ -118,24 +118,6 @@ pub fn search_chain(
     Ok(outcome)
 }
 
-/// The rank (1-based) and score of `post` for `query` with the chain, if it is
-/// retrieved at all (searching the whole index, not only the top `depth`).
-pub fn rank_of(
-    index: &ChainIndex,
-    analyzer: &Analyzer,
-    terms: &[QueryTerm],
-    post: &PostId,
-) -> Result<Option<(usize, f32)>> {
-    if terms.is_empty() {
-        return Ok(None);
-    }
-    let searcher = index.reader().searcher();
-    let columns = ord_columns(&searcher)?;
-    let query = build_query(analyzer, index.fields(), terms);
-    let all = top_hits(&searcher, &columns, index, query.as_ref(), usize::MAX)?;
-    Ok(all.iter().position(|d| &d.doc == post).map(|i| (i + 1, all[i].score as f32)))
-}
-
 fn ord_columns(searcher: &Searcher) -> Result<Vec<Column<u64>>> {
     searcher
         .segment_readers()
@@ -181,4 +163,58 @@ fn top_hits(
     docs.sort_by(|a, b| b.0.total_cmp(&a.0).then_with(|| a.1.cmp(b.1)));
     docs.truncate(depth);
     Ok(docs.into_iter().map(|(s, id)| RankedDoc { doc: id.clone(), score: f64::from(s) }).collect())
+}
+
+/// Where one post stands for one query under one chain.
+#[derive(Debug, Clone, PartialEq)]
+pub struct PostMatch {
+    /// 1-based rank among every post the query retrieves (ties by post id),
+    /// `None` when the post is not retrieved at all.
+    pub rank: Option<usize>,
+    /// Its BM25 score.
+    pub score: Option<f64>,
+    /// tantivy's explanation of the score, as JSON.
+    pub explanation: Option<serde_json::Value>,
+}
+
+/// Rank, score and tantivy's score explanation of `post` for the analysed
+/// query `terms` (searching the whole index, not only the top `depth`).
+pub fn explain_post(
+    index: &ChainIndex,
+    analyzer: &Analyzer,
+    terms: &[QueryTerm],
+    post: &PostId,
+) -> Result<PostMatch> {
+    let none = PostMatch { rank: None, score: None, explanation: None };
+    if terms.is_empty() {
+        return Ok(none);
+    }
+    let searcher = index.reader().searcher();
+    let columns = ord_columns(&searcher)?;
+    let query = build_query(analyzer, index.fields(), terms);
+    let all = top_hits(&searcher, &columns, index, query.as_ref(), usize::MAX)?;
+    let Some(pos) = all.iter().position(|d| &d.doc == post) else {
+        return Ok(none);
+    };
+    let explanation = match doc_address(&columns, index, post) {
+        Some(addr) => {
+            let e = query.explain(&searcher, addr).map_err(tantivy_err)?;
+            serde_json::to_value(&e).ok()
+        }
+        None => None,
+    };
+    Ok(PostMatch { rank: Some(pos + 1), score: all.get(pos).map(|d| d.score), explanation })
+}
+
+/// The address of a post in the index (a scan of the ordinal column; used
+/// only to explain one post).
+fn doc_address(columns: &[Column<u64>], index: &ChainIndex, post: &PostId) -> Option<DocAddress> {
+    for (seg, col) in columns.iter().enumerate() {
+        for doc in 0..col.num_docs() {
+            if col.first(doc).and_then(|ord| index.post_id(ord)) == Some(post) {
+                return Some(DocAddress::new(seg as u32, doc));
+            }
+        }
+    }
+    None
 }

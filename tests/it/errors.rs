@@ -1,7 +1,7 @@
 //! Bad input of any kind: exit code 2, one message naming the file and line
 //! and what was expected, nothing written into `--out`, inputs untouched.
 
-use std::path::{Path, PathBuf};
+use std::path::Path;
 
 use crate::util::{fixture, postassay, texts, write};
 
@@ -18,11 +18,22 @@ fn expect_score_error(qrels: &str, run: &str, extra: &[&str], needles: &[&str]) 
     let before = (std::fs::read(&q).unwrap(), std::fs::read(&r).unwrap());
     let out = tmp.path().join("out");
     let run_arg = format!("x={}", r.display());
-    let mut args =
-        vec!["score", "--judgments", q.to_str().unwrap(), "--run", &run_arg, "--out", out.to_str().unwrap()];
+    let mut args = vec![
+        "score",
+        "--judgments",
+        q.to_str().unwrap(),
+        "--run",
+        &run_arg,
+        "--out",
+        out.to_str().unwrap(),
+    ];
     args.extend_from_slice(extra);
     check(tmp.path(), &args, &out, needles);
-    assert_eq!(before, (std::fs::read(&q).unwrap(), std::fs::read(&r).unwrap()), "inputs unchanged");
+    assert_eq!(
+        before,
+        (std::fs::read(&q).unwrap(), std::fs::read(&r).unwrap()),
+        "inputs unchanged"
+    );
 }
 
 /// Run `run` on the given three files; expect exit 2 with every needle.
@@ -48,7 +59,7 @@ fn expect_run_error(corpus: &str, queries: &str, qrels: &str, corpus_name: &str,
     check(tmp.path(), &args, &out, needles);
 }
 
-fn check(cwd: &Path, args: &[&str], out: &PathBuf, needles: &[&str]) {
+fn check(cwd: &Path, args: &[&str], out: &Path, needles: &[&str]) {
     let res = postassay(cwd, args);
     let (stdout, stderr) = texts(&res);
     assert_eq!(res.status.code(), Some(2), "args {args:?}\nstderr: {stderr}");
@@ -64,7 +75,12 @@ const RUN_OK: &str = "query_id,doc_id,rank,score\nq1,d1,1,1.0\n";
 
 #[test]
 fn judgments_negative_grade() {
-    expect_score_error("query_id,doc_id,grade\nq1,d1,2\nq1,d2,-1\n", RUN_OK, &[], &["qrels.csv:3", "grade"]);
+    expect_score_error(
+        "query_id,doc_id,grade\nq1,d1,2\nq1,d2,-1\n",
+        RUN_OK,
+        &[],
+        &["qrels.csv:3", "grade"],
+    );
 }
 
 #[test]
@@ -84,7 +100,12 @@ fn judgments_conflicting_grades_name_both_lines() {
 
 #[test]
 fn judgments_empty() {
-    expect_score_error("query_id,doc_id,grade\n", RUN_OK, &[], &["qrels.csv", "no judgments"]);
+    expect_score_error(
+        "query_id,doc_id,grade\n",
+        RUN_OK,
+        &[],
+        &["qrels.csv", "at least one judgment"],
+    );
 }
 
 #[test]
@@ -99,12 +120,22 @@ fn judgments_missing_column() {
 
 #[test]
 fn run_rank_not_integer() {
-    expect_score_error(GOOD_QRELS, "query_id,doc_id,rank,score\nq1,d1,first,1\n", &[], &["run.csv:2", "rank"]);
+    expect_score_error(
+        GOOD_QRELS,
+        "query_id,doc_id,rank,score\nq1,d1,first,1\n",
+        &[],
+        &["run.csv:2", "rank"],
+    );
 }
 
 #[test]
 fn run_score_not_finite() {
-    expect_score_error(GOOD_QRELS, "query_id,doc_id,rank,score\nq1,d1,1,NaN\n", &[], &["run.csv:2", "score"]);
+    expect_score_error(
+        GOOD_QRELS,
+        "query_id,doc_id,rank,score\nq1,d1,1,NaN\n",
+        &[],
+        &["run.csv:2", "score"],
+    );
 }
 
 #[test]
@@ -113,7 +144,7 @@ fn run_duplicate_document() {
         GOOD_QRELS,
         "query_id,doc_id,rank,score\nq1,d1,1,2\nq1,d2,2,1\nq1,d1,3,0.5\n",
         &[],
-        &["run.csv:4", "run.csv:2"],
+        &["run.csv:4", "line 2"],
     );
 }
 
@@ -149,7 +180,15 @@ fn run_argument_without_name() {
     let q = fixture("score/qrels.csv");
     check(
         tmp.path(),
-        &["score", "--judgments", q.to_str().unwrap(), "--run", "runfile.csv", "--out", out.to_str().unwrap()],
+        &[
+            "score",
+            "--judgments",
+            q.to_str().unwrap(),
+            "--run",
+            "runfile.csv",
+            "--out",
+            out.to_str().unwrap(),
+        ],
         &out,
         &["NAME=FILE"],
     );
@@ -163,7 +202,17 @@ fn same_run_name_twice() {
     let a = format!("a={}", fixture("score/run_a.csv").display());
     check(
         tmp.path(),
-        &["score", "--judgments", q.to_str().unwrap(), "--run", &a, "--run", &a, "--out", out.to_str().unwrap()],
+        &[
+            "score",
+            "--judgments",
+            q.to_str().unwrap(),
+            "--run",
+            &a,
+            "--run",
+            &a,
+            "--out",
+            out.to_str().unwrap(),
+        ],
         &out,
         &["twice"],
     );
@@ -175,7 +224,15 @@ fn missing_file_is_named() {
     let out = tmp.path().join("out");
     check(
         tmp.path(),
-        &["score", "--judgments", "nowhere.csv", "--run", "a=also-nowhere.csv", "--out", out.to_str().unwrap()],
+        &[
+            "score",
+            "--judgments",
+            "nowhere.csv",
+            "--run",
+            "a=also-nowhere.csv",
+            "--out",
+            out.to_str().unwrap(),
+        ],
         &out,
         &["nowhere.csv"],
     );
@@ -194,12 +251,24 @@ fn corpus_bad_json_line() {
 
 #[test]
 fn corpus_missing_text() {
-    expect_run_error("{\"id\": \"d1\"}\n", GOOD_QUERIES, GOOD_QRELS, "posts.jsonl", &["posts.jsonl:1", "text"]);
+    expect_run_error(
+        "{\"id\": \"d1\"}\n",
+        GOOD_QUERIES,
+        GOOD_QRELS,
+        "posts.jsonl",
+        &["posts.jsonl:1", "text"],
+    );
 }
 
 #[test]
 fn corpus_float_id() {
-    expect_run_error("{\"id\": 1.5, \"text\": \"x\"}\n", GOOD_QUERIES, GOOD_QRELS, "posts.jsonl", &["posts.jsonl:1", "id"]);
+    expect_run_error(
+        "{\"id\": 1.5, \"text\": \"x\"}\n",
+        GOOD_QUERIES,
+        GOOD_QRELS,
+        "posts.jsonl",
+        &["posts.jsonl:1", "id"],
+    );
 }
 
 #[test]
@@ -227,12 +296,24 @@ fn corpus_bad_language_code() {
 
 #[test]
 fn corpus_csv_missing_text_column() {
-    expect_run_error("id,body\nd1,hello\n", GOOD_QUERIES, GOOD_QRELS, "posts.csv", &["posts.csv:1", "text"]);
+    expect_run_error(
+        "id,body\nd1,hello\n",
+        GOOD_QUERIES,
+        GOOD_QRELS,
+        "posts.csv",
+        &["posts.csv:1", "text"],
+    );
 }
 
 #[test]
 fn queries_duplicate_id() {
-    expect_run_error(GOOD_CORPUS, "query_id,text\nq1,a\nq1,b\n", GOOD_QRELS, "posts.jsonl", &["queries.csv:3", "q1"]);
+    expect_run_error(
+        GOOD_CORPUS,
+        "query_id,text\nq1,a\nq1,b\n",
+        GOOD_QRELS,
+        "posts.jsonl",
+        &["queries.csv:3", "q1"],
+    );
 }
 
 #[test]
@@ -250,5 +331,10 @@ fn queries_bad_language() {
 fn partial_input_flags_are_a_usage_error() {
     let tmp = tempfile::tempdir().unwrap();
     let out = tmp.path().join("out");
-    check(tmp.path(), &["run", "--corpus", "x.jsonl", "--out", out.to_str().unwrap()], &out, &["--judgments"]);
+    check(
+        tmp.path(),
+        &["run", "--corpus", "x.jsonl", "--out", out.to_str().unwrap()],
+        &out,
+        &["--judgments"],
+    );
 }

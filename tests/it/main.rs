@@ -2,6 +2,13 @@
 //! check its outputs, messages and exit codes. One module per command.
 
 mod errors;
+mod explain;
+mod gate;
+mod html;
+mod judge;
+mod pool;
 mod run;
 mod score;
+mod tokens;
 mod util;
+mod vet;

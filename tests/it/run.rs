@@ -1,7 +1,7 @@
 //! `postassay run` end to end: the bundled demo bench, as the README's first
 //! command runs it, and a tiny bench where stemming makes the difference.
 
-use crate::util::{postassay, read_csv, root, texts, write};
+use crate::util::{fixture, postassay, read_csv, root, texts};
 
 #[test]
 fn demo_bench_end_to_end() {
@@ -30,7 +30,9 @@ fn demo_bench_end_to_end() {
         assert!(lo <= mean + 1e-12 && mean <= hi + 1e-12, "{r:?}");
     }
     let md = std::fs::read_to_string(out.join("report.md")).unwrap();
-    for section in ["## Verdict", "## Scores", "## Against the baseline", "## By query tag", "## Cost"] {
+    for section in
+        ["## Recommendation", "## Scores", "## Against the baseline", "## By query tag", "## Cost"]
+    {
         assert!(md.contains(section), "{section} in report.md");
     }
     let report: serde_json::Value =
@@ -43,22 +45,22 @@ fn demo_bench_end_to_end() {
     let res = postassay(&root(), &["run", "--quiet", "--out", again.to_str().unwrap()]);
     assert_eq!(res.status.code(), Some(0));
     for f in ["summary.csv", "per-query.csv", "comparisons.csv", "runs/routed.csv"] {
-        assert_eq!(std::fs::read(out.join(f)).unwrap(), std::fs::read(again.join(f)).unwrap(), "{f}");
+        assert_eq!(
+            std::fs::read(out.join(f)).unwrap(),
+            std::fs::read(again.join(f)).unwrap(),
+            "{f}"
+        );
     }
 }
 
 #[test]
 fn stemming_finds_inflected_forms() {
     let tmp = tempfile::tempdir().unwrap();
-    let corpus = write(
-        tmp.path(),
-        "posts.jsonl",
-        "{\"id\": \"p1\", \"text\": \"All ferries delayed this morning\"}\n\
-         {\"id\": \"p2\", \"text\": \"Tram line closed\"}\n\
-         {\"id\": \"p3\", \"text\": \"Bike lane repainted\"}\n",
+    let (corpus, queries, qrels) = (
+        fixture("stemming/posts.jsonl"),
+        fixture("stemming/queries.csv"),
+        fixture("stemming/qrels.csv"),
     );
-    let queries = write(tmp.path(), "queries.csv", "query_id,text\nq1,ferry delay\n");
-    let qrels = write(tmp.path(), "qrels.csv", "query_id,doc_id,grade\nq1,p1,2\nq1,p2,0\n");
     let out = tmp.path().join("out");
     let res = postassay(
         tmp.path(),
@@ -80,8 +82,7 @@ fn stemming_finds_inflected_forms() {
         ],
     );
     assert_eq!(res.status.code(), Some(0), "{}", texts(&res).1);
-    // English Snowball: ferries → ferri = ferry → ferri; delayed → delay
-    // (Porter 1980 / Snowball English; "ferries" from memory of the rules).
+    // English Snowball: ferries → ferri = ferry → ferri; delayed → delay.
     let standard = read_csv(&out.join("runs/standard.csv"));
     assert_eq!(standard.len(), 1, "standard finds nothing: {standard:?}");
     let stemmed = read_csv(&out.join("runs/stemmed.csv"));

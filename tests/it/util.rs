@@ -25,7 +25,10 @@ pub fn postassay(cwd: &Path, args: &[&str]) -> Output {
 
 /// Stdout and stderr as text.
 pub fn texts(out: &Output) -> (String, String) {
-    (String::from_utf8_lossy(&out.stdout).into_owned(), String::from_utf8_lossy(&out.stderr).into_owned())
+    (
+        String::from_utf8_lossy(&out.stdout).into_owned(),
+        String::from_utf8_lossy(&out.stderr).into_owned(),
+    )
 }
 
 /// Write `content` to `dir/name` and return the path.

@@ -1,0 +1,162 @@
+//! Why one chain finds a post and another does not: for one query and one
+//! post, each chain's analysed query terms, the post's analysed terms, the
+//! terms they share, the post's rank and BM25 score, and tantivy's
+//! explanation of that score.
+
+use std::collections::BTreeSet;
+use std::path::PathBuf;
+
+use serde::Serialize;
+
+use crate::analysis::{AnalysisContext, Analyzer, ChainSpec};
+use crate::error::{Error, Result};
+use crate::ids::{ChainName, PostId, QueryId};
+use crate::index::ChainIndex;
+use crate::input::{self, Post, Query};
+use crate::search::{self, QueryTerm};
+
+/// What `postassay explain` does.
+#[derive(Debug, Clone)]
+pub struct ExplainPlan {
+    /// Corpus file.
+    pub corpus: PathBuf,
+    /// Queries file.
+    pub queries: PathBuf,
+    /// Judgments file, to show the post's grade (optional).
+    pub judgments: Option<PathBuf>,
+    /// Chains to explain, in order.
+    pub chains: Vec<ChainSpec>,
+    /// The query.
+    pub query: QueryId,
+    /// The post.
+    pub post: PostId,
+}
+
+/// The explanation for one chain.
+#[derive(Debug, Clone, Serialize)]
+pub struct ChainExplanation {
+    /// Chain name.
+    pub chain: ChainName,
+    /// The query's analysed terms, `field:term`.
+    pub query_terms: Vec<String>,
+    /// The field the post was indexed in.
+    pub post_field: String,
+    /// The post's distinct analysed terms.
+    pub post_terms: Vec<String>,
+    /// Query terms the post contains (in the post's field).
+    pub matched_terms: Vec<String>,
+    /// Rank of the post among everything the query retrieves.
+    pub rank: Option<usize>,
+    /// BM25 score of the post.
+    pub score: Option<f64>,
+    /// tantivy's score explanation.
+    pub explanation: Option<serde_json::Value>,
+}
+
+/// The whole explanation.
+#[derive(Debug, Clone, Serialize)]
+pub struct Explanation {
+    /// Query id.
+    pub query_id: QueryId,
+    /// Query text.
+    pub query_text: String,
+    /// Post id.
+    pub post_id: PostId,
+    /// Post text.
+    pub post_text: String,
+    /// The post's grade for the query, when judged.
+    pub grade: Option<u32>,
+    /// One entry per chain.
+    pub chains: Vec<ChainExplanation>,
+}
+
+/// Build each chain's index and explain the post's standing for the query.
+pub fn explain(plan: &ExplainPlan) -> Result<Explanation> {
+    let queries = input::read_queries(&plan.queries)?;
+    let posts = input::read_corpus(&plan.corpus)?;
+    let grade = match &plan.judgments {
+        Some(j) => {
+            let (judgments, _) = input::read_judgments(j)?;
+            judgments.for_query(&plan.query).and_then(|m| m.get(&plan.post)).copied()
+        }
+        None => None,
+    };
+    let query = find_query(&queries, &plan.query, plan)?;
+    let post_pos = find_post(&posts, &plan.post, plan)?;
+    let post = &posts[post_pos];
+    let ctx = AnalysisContext {
+        word_freqs: if plan.chains.iter().any(ChainSpec::needs_word_freqs) {
+            Some(std::sync::Arc::new(crate::analysis::hashtag::WordFreqs::learn(
+                posts.iter().map(|p| p.text.as_str()),
+            )))
+        } else {
+            None
+        },
+    };
+    let mut chains = Vec::new();
+    for spec in &plan.chains {
+        let analyzer = Analyzer::build(spec, &ctx)?;
+        let (post_det, query_det) = match analyzer.detector() {
+            Some(d) => {
+                let texts: Vec<&str> = posts
+                    .iter()
+                    .map(|p| if p.lang.is_some() { "" } else { p.text.as_str() })
+                    .collect();
+                let q = if query.lang.is_some() { None } else { d.detect(&query.text) };
+                (d.detect_all(&texts), vec![q])
+            }
+            None => (Vec::new(), vec![None]),
+        };
+        let index = ChainIndex::build(&analyzer, &posts, &post_det, 1)?;
+        let slots = analyzer.fields_for_query(query.lang, query_det[0].as_ref());
+        let terms = search::analyze_query(&analyzer, &slots, &query.text);
+        let post_slot =
+            analyzer.field_for_post(post.lang, post_det.get(post_pos).and_then(Option::as_ref));
+        let post_field =
+            analyzer.fields().get(post_slot).map(|f| f.key.clone()).unwrap_or_default();
+        let post_terms: BTreeSet<String> =
+            search::analyze_query(&analyzer, &[post_slot], &post.text)
+                .into_iter()
+                .map(|t| t.text)
+                .collect();
+        let matched: Vec<String> = terms
+            .iter()
+            .filter(|t| t.field == post_field && post_terms.contains(&t.text))
+            .map(|t| t.text.clone())
+            .collect();
+        let m = search::explain_post(&index, &analyzer, &terms, &post.id)?;
+        chains.push(ChainExplanation {
+            chain: analyzer.name().clone(),
+            query_terms: terms
+                .iter()
+                .map(|t: &QueryTerm| format!("{}:{}", t.field, t.text))
+                .collect(),
+            post_field,
+            post_terms: post_terms.into_iter().collect(),
+            matched_terms: matched,
+            rank: m.rank,
+            score: m.score,
+            explanation: m.explanation,
+        });
+    }
+    Ok(Explanation {
+        query_id: query.id.clone(),
+        query_text: query.text.clone(),
+        post_id: post.id.clone(),
+        post_text: post.text.clone(),
+        grade,
+        chains,
+    })
+}
+
+fn find_query<'a>(queries: &'a [Query], id: &QueryId, plan: &ExplainPlan) -> Result<&'a Query> {
+    queries.iter().find(|q| &q.id == id).ok_or_else(|| {
+        Error::usage(format!("--query {id}: no such query in {}", plan.queries.display()))
+    })
+}
+
+fn find_post(posts: &[Post], id: &PostId, plan: &ExplainPlan) -> Result<usize> {
+    posts.iter().position(|p| &p.id == id).ok_or_else(|| {
+        Error::usage(format!("--doc {id}: no such post in {}", plan.corpus.display()))
+    })
+}

@@ -1,0 +1,83 @@
+//! `postassay explain`: why each chain finds (or misses) one post for one
+//! query.
+
+use std::io::Write;
+use std::process::ExitCode;
+
+use clap::{Args, ValueEnum};
+
+use postassay::bench::explain::{self, ExplainPlan, Explanation};
+use postassay::ids::{PostId, QueryId};
+
+use super::common::{ChainFlags, InputFlags};
+
+#[derive(Debug, Clone, Copy, ValueEnum)]
+enum Format {
+    Text,
+    Json,
+}
+
+#[derive(Debug, Args)]
+pub struct ExplainArgs {
+    /// The query id.
+    #[arg(long, value_name = "QID")]
+    query: String,
+    /// The post id.
+    #[arg(long, value_name = "DOC")]
+    doc: String,
+    #[command(flatten)]
+    inputs: InputFlags,
+    #[command(flatten)]
+    chains: ChainFlags,
+    /// Output format.
+    #[arg(long, value_enum, default_value = "text")]
+    format: Format,
+}
+
+pub fn execute(args: ExplainArgs) -> anyhow::Result<ExitCode> {
+    let (corpus, queries, judgments) = args.inputs.resolve()?;
+    let plan = ExplainPlan {
+        corpus,
+        queries,
+        judgments: Some(judgments),
+        chains: args.chains.resolve()?,
+        query: QueryId::from(args.query.as_str()),
+        post: PostId::from(args.doc.as_str()),
+    };
+    let explanation = explain::explain(&plan)?;
+    let text = match args.format {
+        Format::Json => serde_json::to_string_pretty(&explanation)? + "\n",
+        Format::Text => render(&explanation),
+    };
+    std::io::stdout().lock().write_all(text.as_bytes())?;
+    Ok(ExitCode::SUCCESS)
+}
+
+fn render(e: &Explanation) -> String {
+    let mut s = format!(
+        "query {} ({:?}) · post {} ({:?}) · grade {}\n",
+        e.query_id,
+        e.query_text,
+        e.post_id,
+        e.post_text,
+        e.grade.map_or_else(|| "unjudged".to_string(), |g| g.to_string())
+    );
+    for c in &e.chains {
+        s.push_str(&format!("\n{}\n", c.chain));
+        s.push_str(&format!("  query terms:   {}\n", c.query_terms.join(" ")));
+        s.push_str(&format!("  post terms:    {} ({})\n", c.post_terms.join(" "), c.post_field));
+        s.push_str(&format!(
+            "  matched:       {}\n",
+            if c.matched_terms.is_empty() {
+                "(none)".to_string()
+            } else {
+                c.matched_terms.join(" ")
+            }
+        ));
+        match (c.rank, c.score) {
+            (Some(r), Some(sc)) => s.push_str(&format!("  rank {r}, BM25 score {sc:.4}\n")),
+            _ => s.push_str("  not retrieved\n"),
+        }
+    }
+    s
+}

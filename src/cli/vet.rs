@@ -1,0 +1,156 @@
+//! `postassay vet`: diagnostics of analysis chains on open linguistic data
+//! (conflation against lemma classes, routing accuracy, hashtag
+//! segmentation), before any query is judged. Turns the flags into a
+//! [`DiagnosePlan`] and hands it to `postassay::diagnose`.
+
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+
+use clap::Args;
+
+use postassay::analysis::{self, ChainSpec};
+use postassay::diagnose::{self, render, DiagnosePlan, FreqSource, Sections};
+use postassay::error::Error;
+use postassay::input::LangCode;
+
+use super::common::check_out_dir;
+use super::common::DEMO_CORPUS;
+
+/// The data directory used when `--data` is not given (relative to the
+/// working directory), if it exists.
+pub const DEFAULT_DATA: &str = "../shared/data";
+
+#[derive(Debug, Args)]
+pub struct VetArgs {
+    /// Directory of open data: ud/LANG.lemmas.tsv, ud/LANG.sentences.tsv,
+    /// ud_pud/LANG.sentences.tsv, hashtags/NAME.tsv [default: ../shared/data
+    /// when it exists].
+    #[arg(long, value_name = "DIR")]
+    data: Option<PathBuf>,
+    /// Comma-separated chain names (built-in: standard, stemmed, hashtag,
+    /// routed; plus those of --chain-file). Default: every built-in chain, or
+    /// every chain of --chain-file when one is given. The built-in `stemmed`
+    /// stems each language with its own Snowball stemmer.
+    #[arg(long, value_name = "LIST")]
+    chains: Option<String>,
+    /// A TOML file of chain definitions.
+    #[arg(long, value_name = "FILE")]
+    chain_file: Option<PathBuf>,
+    /// Comma-separated sections: conflation, routing, segmentation.
+    #[arg(long, value_name = "LIST", default_value = "conflation,routing,segmentation")]
+    sections: String,
+    /// Only the data sets with these names or language codes
+    /// (comma-separated, e.g. `de,it-pud`). Default: all.
+    #[arg(long, value_name = "LIST")]
+    langs: Option<String>,
+    /// Corpus of posts (JSON Lines or CSV) to learn the hashtag segmenter's
+    /// word frequencies from [default: corpora/demo/posts.jsonl when it
+    /// exists].
+    #[arg(long, value_name = "FILE")]
+    freq_corpus: Option<PathBuf>,
+    /// A `word<TAB>count` list of word frequencies (repeatable); each is
+    /// measured as its own source.
+    #[arg(long, value_name = "FILE")]
+    freq_list: Vec<PathBuf>,
+    /// Worst offenders and misses listed per result.
+    #[arg(long, value_name = "N", default_value_t = 3)]
+    top: usize,
+    /// Directory for diagnostics.md, diagnostics.json and the CSVs (created
+    /// when missing). Without it, the Markdown goes to stdout.
+    #[arg(long, value_name = "DIR")]
+    out: Option<PathBuf>,
+    /// Print no progress on stderr.
+    #[arg(long, short)]
+    quiet: bool,
+}
+
+pub fn execute(args: VetArgs) -> anyhow::Result<ExitCode> {
+    let plan = plan(&args)?;
+    if let Some(out) = &args.out {
+        check_out_dir(out)?;
+    }
+    let quiet = args.quiet;
+    let mut progress = move |line: &str| {
+        if !quiet {
+            eprintln!("postassay: {line}");
+        }
+    };
+    let started = std::time::Instant::now();
+    let found = diagnose::run(&plan, &mut progress)?;
+    match &args.out {
+        Some(out) => {
+            render::write_outputs(out, &found)?;
+            progress(&format!(
+                "wrote {} in {:.1} s",
+                out.join(render::MARKDOWN_FILE).display(),
+                started.elapsed().as_secs_f64()
+            ));
+        }
+        None => {
+            use std::io::Write;
+            let mut stdout = std::io::stdout().lock();
+            stdout.write_all(render::markdown(&found).as_bytes())?;
+            stdout.flush()?;
+            progress(&format!("done in {:.1} s", started.elapsed().as_secs_f64()));
+        }
+    }
+    Ok(ExitCode::SUCCESS)
+}
+
+fn plan(args: &VetArgs) -> Result<DiagnosePlan, Error> {
+    let data = match &args.data {
+        Some(d) => d.clone(),
+        None if Path::new(DEFAULT_DATA).is_dir() => PathBuf::from(DEFAULT_DATA),
+        None => {
+            return Err(Error::usage(format!(
+                "no open data: give --data DIR, a directory with ud/LANG.lemmas.tsv (conflation), \
+                 ud/LANG.sentences.tsv and ud_pud/LANG.sentences.tsv (routing) and \
+                 hashtags/NAME.tsv (hashtag segmentation); the default {DEFAULT_DATA} does not exist"
+            )))
+        }
+    };
+    let sections = Sections::parse(&args.sections)?;
+    let languages = args.langs.as_ref().map(|list| {
+        list.split(',').map(str::trim).filter(|s| !s.is_empty()).map(String::from).collect()
+    });
+    let mut freq_sources = Vec::new();
+    match &args.freq_corpus {
+        Some(f) => freq_sources.push(FreqSource::Corpus(f.clone())),
+        None if Path::new(DEMO_CORPUS).is_file() => {
+            freq_sources.push(FreqSource::Corpus(DEMO_CORPUS.into()))
+        }
+        None => {}
+    }
+    freq_sources.extend(args.freq_list.iter().cloned().map(FreqSource::List));
+    Ok(DiagnosePlan {
+        data,
+        chains: diagnose::chains_under_test(chains(args)?)?,
+        sections,
+        languages,
+        freq_sources,
+        chain_file: args.chain_file.clone(),
+        top: args.top,
+    })
+}
+
+/// The chains, chosen as `run` chooses them.
+fn chains(args: &VetArgs) -> Result<Vec<ChainSpec>, Error> {
+    let builtins = analysis::builtin_chains(LangCode::parse("en").expect("en is ISO 639-1"))?;
+    let from_file = match &args.chain_file {
+        Some(f) => analysis::read_chain_file(f)?,
+        None => Vec::new(),
+    };
+    Ok(match (&args.chains, from_file.is_empty()) {
+        (Some(list), _) => {
+            let mut available = from_file.clone();
+            for b in builtins {
+                if !available.iter().any(|c| c.name == b.name) {
+                    available.push(b);
+                }
+            }
+            analysis::select_chains(&available, list)?
+        }
+        (None, true) => builtins,
+        (None, false) => from_file,
+    })
+}

@@ -1,0 +1,722 @@
+//! Diagnostics of analysis chains on open linguistic data, before any query
+//! is judged (`postassay vet`): how a chain conflates the forms of a word,
+//! how well a routed chain sends sentences of known language to the right
+//! field, and how well a chain's `hashtags` step segments gold hashtags.
+//!
+//! Place in the data flow: a side branch that uses `input` and `analysis`
+//! (no index, no search) and renders its own small report: Markdown, JSON
+//! and CSV, with the SHA-256 of every file read.
+//!
+//! Sections (each can be turned off):
+//! - `conflation`: Paice's understemming/overstemming indices against lemma
+//!   classes ([`conflation`]), per lemma list and chain;
+//! - `routing`: routing accuracy by length ([`routing`]), per sentence set
+//!   and routed chain;
+//! - `segmentation`: hashtag segmentation accuracy ([`segmentation`]), per
+//!   gold set, chain with a `hashtags` step, and word-frequency source.
+//!
+//! ```no_run
+//! use postassay::analysis::builtin_chains;
+//! use postassay::diagnose::{self, ChainUnderTest, DiagnosePlan, Sections};
+//! use postassay::input::LangCode;
+//!
+//! let chains = builtin_chains(LangCode::parse("en").unwrap()).unwrap();
+//! let plan = DiagnosePlan {
+//!     data: "../shared/data".into(),
+//!     chains: diagnose::chains_under_test(chains).unwrap(),
+//!     sections: Sections::all(),
+//!     languages: None,
+//!     freq_sources: Vec::new(),
+//!     chain_file: None,
+//!     top: 5,
+//! };
+//! let found = diagnose::run(&plan, &mut |line: &str| eprintln!("{line}")).unwrap();
+//! print!("{}", diagnose::render::markdown(&found));
+//! ```
+
+pub mod conflation;
+pub mod data;
+pub mod render;
+pub mod routing;
+pub mod segmentation;
+
+use std::path::PathBuf;
+use std::sync::Arc;
+
+use serde::{Deserialize, Serialize};
+
+use crate::analysis::hashtag::WordFreqs;
+use crate::analysis::{
+    build_pipeline, builtin_chains, AnalysisContext, Analyzer, ChainBody, ChainSpec, Pipeline,
+    StepSpec, TagVocabulary,
+};
+use crate::error::{Error, Result};
+use crate::ids::ChainName;
+use crate::input::{read_corpus, LangCode};
+use crate::report::model::{InputFile, ToolInfo};
+
+use conflation::{ConflationFigures, WordGroups};
+use data::DataSets;
+use routing::RoutingFigures;
+use segmentation::SegmentationFigures;
+
+/// Version of the `diagnostics.json` layout.
+pub const SCHEMA_VERSION: u32 = 1;
+
+/// Which sections to compute.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+pub struct Sections {
+    /// Conflation against lemma classes.
+    pub conflation: bool,
+    /// Routing accuracy.
+    pub routing: bool,
+    /// Hashtag segmentation.
+    pub segmentation: bool,
+}
+
+/// Section names as given on the command line, in report order.
+pub const SECTION_NAMES: [&str; 3] = ["conflation", "routing", "segmentation"];
+
+impl Sections {
+    /// Every section.
+    pub fn all() -> Sections {
+        Sections { conflation: true, routing: true, segmentation: true }
+    }
+
+    /// Parse a comma-separated list of [`SECTION_NAMES`].
+    pub fn parse(list: &str) -> Result<Sections> {
+        let mut s = Sections { conflation: false, routing: false, segmentation: false };
+        for name in list.split(',').map(str::trim).filter(|n| !n.is_empty()) {
+            match name {
+                "conflation" => s.conflation = true,
+                "routing" => s.routing = true,
+                "segmentation" => s.segmentation = true,
+                other => {
+                    return Err(Error::usage(format!(
+                        "--sections: unknown section {other:?}; accepted: {}",
+                        SECTION_NAMES.join(", ")
+                    )))
+                }
+            }
+        }
+        if s == (Sections { conflation: false, routing: false, segmentation: false }) {
+            return Err(Error::usage(format!(
+                "--sections: no section named; accepted: {}",
+                SECTION_NAMES.join(", ")
+            )));
+        }
+        Ok(s)
+    }
+}
+
+/// A chain as the diagnostics run it.
+#[derive(Debug, Clone, PartialEq)]
+pub enum ChainUnderTest {
+    /// Run as specified, whatever the language of the data.
+    Fixed(ChainSpec),
+    /// The built-in `stemmed` chain, whose stemming language is a setting:
+    /// for each language, its `stem` steps take that language (each
+    /// language's own Snowball stemmer).
+    StemPerLanguage(ChainSpec),
+}
+
+impl ChainUnderTest {
+    /// The chain's name.
+    pub fn name(&self) -> &ChainName {
+        match self {
+            ChainUnderTest::Fixed(spec) | ChainUnderTest::StemPerLanguage(spec) => &spec.name,
+        }
+    }
+
+    /// The chain's spec as given.
+    pub fn spec(&self) -> &ChainSpec {
+        match self {
+            ChainUnderTest::Fixed(spec) | ChainUnderTest::StemPerLanguage(spec) => spec,
+        }
+    }
+
+    /// The spec to run on data of `language`; `Err` with the reason when the
+    /// chain cannot serve it (no Snowball stemmer for the language).
+    pub fn for_language(&self, language: LangCode) -> std::result::Result<ChainSpec, String> {
+        match self {
+            ChainUnderTest::Fixed(spec) => Ok(spec.clone()),
+            ChainUnderTest::StemPerLanguage(spec) => {
+                let stemmed = builtin_chains(language).map_err(|e| e.to_string())?;
+                let found = stemmed.into_iter().find(|c| c.name == spec.name);
+                found.ok_or_else(|| format!("no built-in chain {:?}", spec.name.as_str()))
+            }
+        }
+    }
+}
+
+/// Mark the built-in `stemmed` chain (unchanged) among `chosen` to stem in
+/// each language's own stemmer; every other chain runs as specified.
+pub fn chains_under_test(chosen: Vec<ChainSpec>) -> Result<Vec<ChainUnderTest>> {
+    let en = LangCode::parse("en").expect("en is ISO 639-1");
+    let builtin = builtin_chains(en)?;
+    Ok(chosen
+        .into_iter()
+        .map(|spec| {
+            let is_builtin_stemmed = spec.name.as_str() == "stemmed"
+                && builtin.iter().any(|b| b.name == spec.name && *b == spec);
+            if is_builtin_stemmed {
+                ChainUnderTest::StemPerLanguage(spec)
+            } else {
+                ChainUnderTest::Fixed(spec)
+            }
+        })
+        .collect())
+}
+
+/// Where a hashtag segmenter's word frequencies come from.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub enum FreqSource {
+    /// Learned from a corpus of posts (JSON Lines or CSV, as `run` reads).
+    Corpus(PathBuf),
+    /// Read from a `word<TAB>count` list.
+    List(PathBuf),
+}
+
+/// Everything a diagnostics run needs.
+#[derive(Debug, Clone)]
+pub struct DiagnosePlan {
+    /// The data directory (see [`data`] for its layout).
+    pub data: PathBuf,
+    /// The chains, in report order.
+    pub chains: Vec<ChainUnderTest>,
+    /// Sections to compute.
+    pub sections: Sections,
+    /// Only data sets whose name or language is listed (`None` = all).
+    pub languages: Option<Vec<String>>,
+    /// Frequency sources for segmentation, in report order.
+    pub freq_sources: Vec<FreqSource>,
+    /// The chain file the chains came from, recorded with its hash.
+    pub chain_file: Option<PathBuf>,
+    /// Offenders and examples listed per result.
+    pub top: usize,
+}
+
+/// One chain on one lemma list.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct ConflationResult {
+    /// The chain.
+    pub chain: ChainName,
+    /// The list's name (`en`, `it-pud`).
+    pub set: String,
+    /// Its language.
+    pub language: LangCode,
+    /// What ran: the chain, or for a routed chain the field used.
+    pub analysis: String,
+    /// Distinct words measured.
+    pub words: usize,
+    /// Concept groups.
+    pub groups: usize,
+    /// Forms left out for having several lemmas.
+    pub ambiguous_forms: usize,
+    /// Rows without a lemma (`_`).
+    pub without_lemma: usize,
+    /// The figures (`None` when the chain cannot serve the language).
+    pub figures: Option<ConflationFigures>,
+    /// Why there are no figures.
+    pub note: Option<String>,
+}
+
+/// One routed chain on one sentence set.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct RoutingResult {
+    /// The chain.
+    pub chain: ChainName,
+    /// `ud` or `ud_pud`.
+    pub collection: String,
+    /// The set's name.
+    pub set: String,
+    /// Its language.
+    pub language: LangCode,
+    /// The figures.
+    pub figures: RoutingFigures,
+}
+
+/// One chain's `hashtags` step on one gold set with one frequency source.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct SegmentationResult {
+    /// The chain.
+    pub chain: ChainName,
+    /// The gold set's name.
+    pub gold: String,
+    /// The frequency source's label (`corpus:PATH`, `list:PATH` or `none`).
+    pub source: String,
+    /// Distinct words in its table.
+    pub source_words: usize,
+    /// The figures.
+    pub figures: SegmentationFigures,
+}
+
+/// A whole diagnostics report (`diagnostics.json` is this, serialised).
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct Diagnostics {
+    /// Layout version.
+    pub schema_version: u32,
+    /// The program.
+    pub tool: ToolInfo,
+    /// Always `vet`.
+    pub command: String,
+    /// Every file read, with its SHA-256.
+    pub inputs: Vec<InputFile>,
+    /// Chains in report order.
+    pub chains: Vec<ChainName>,
+    /// Chain definitions as data.
+    pub chain_specs: Vec<serde_json::Value>,
+    /// Sections computed.
+    pub sections: Sections,
+    /// Conflation results: by set, then chain order.
+    pub conflation: Vec<ConflationResult>,
+    /// Routing results: by chain, then collection, then set.
+    pub routing: Vec<RoutingResult>,
+    /// Segmentation results: by chain, then gold set, then source.
+    pub segmentation: Vec<SegmentationResult>,
+    /// What could not be measured, and why.
+    pub notes: Vec<String>,
+}
+
+/// Run the diagnostics of `plan`, reporting progress through `progress`.
+/// Every input is read (and checked) before anything is computed.
+pub fn run(plan: &DiagnosePlan, progress: &mut dyn FnMut(&str)) -> Result<Diagnostics> {
+    let found = data::discover(&plan.data)?;
+    let sets = filter_sets(found, plan.languages.as_deref())?;
+    let mut inputs: Vec<InputFile> = Vec::new();
+    let mut notes: Vec<String> = Vec::new();
+    if let Some(f) = &plan.chain_file {
+        inputs.push(input_file("chains", f)?);
+    }
+
+    let mut out = Diagnostics {
+        schema_version: SCHEMA_VERSION,
+        tool: ToolInfo { name: "postassay".into(), version: env!("CARGO_PKG_VERSION").into() },
+        command: "vet".into(),
+        inputs: Vec::new(),
+        chains: plan.chains.iter().map(|c| c.name().clone()).collect(),
+        chain_specs: plan
+            .chains
+            .iter()
+            .map(|c| serde_json::to_value(c.spec()).unwrap_or(serde_json::Value::Null))
+            .collect(),
+        sections: plan.sections,
+        conflation: Vec::new(),
+        routing: Vec::new(),
+        segmentation: Vec::new(),
+        notes: Vec::new(),
+    };
+
+    let mut wanted = 0;
+    if plan.sections.conflation {
+        if sets.lemma_lists.is_empty() {
+            notes.push(format!(
+                "conflation: no lemma lists ({}/{}/LANG.lemmas.tsv)",
+                plan.data.display(),
+                data::UD_DIR
+            ));
+        } else {
+            wanted += 1;
+            out.conflation = conflation_section(plan, &sets, &mut inputs, progress)?;
+        }
+    }
+    if plan.sections.routing {
+        let routed: Vec<&ChainUnderTest> =
+            plan.chains.iter().filter(|c| c.spec().route().is_some()).collect();
+        if sets.sentence_sets.is_empty() {
+            notes.push(format!(
+                "routing: no sentence sets ({0}/{1}/LANG.sentences.tsv, {0}/{2}/LANG.sentences.tsv)",
+                plan.data.display(),
+                data::UD_DIR,
+                data::PUD_DIR
+            ));
+        } else if routed.is_empty() {
+            notes.push("routing: none of the chains is language-routed".to_string());
+        } else {
+            wanted += 1;
+            out.routing = routing_section(&routed, &sets, &mut inputs, progress)?;
+        }
+    }
+    if plan.sections.segmentation {
+        let tagged: Vec<(&ChainUnderTest, Pipeline, TagVocabulary)> = plan
+            .chains
+            .iter()
+            .filter_map(|c| hashtag_prefix(c.spec()).map(|(p, v)| (c, p, v)))
+            .collect();
+        if sets.gold_sets.is_empty() {
+            notes.push(format!(
+                "segmentation: no hashtag gold sets ({}/{}/NAME.tsv)",
+                plan.data.display(),
+                data::HASHTAG_DIR
+            ));
+        } else if tagged.is_empty() {
+            notes.push("segmentation: none of the chains has a hashtags step".to_string());
+        } else {
+            wanted += 1;
+            out.segmentation =
+                segmentation_section(plan, &tagged, &sets, &mut inputs, &mut notes, progress)?;
+        }
+    }
+    if wanted == 0 {
+        let mut message = format!(
+            "nothing to diagnose in {}: it needs {}/LANG.lemmas.tsv (conflation), \
+             {}/LANG.sentences.tsv or {}/LANG.sentences.tsv (routing, with a routed chain) \
+             and/or {}/NAME.tsv (segmentation, with a chain that has a hashtags step)",
+            plan.data.display(),
+            data::UD_DIR,
+            data::UD_DIR,
+            data::PUD_DIR,
+            data::HASHTAG_DIR
+        );
+        for n in &notes {
+            message.push_str(&format!("\n  {n}"));
+        }
+        return Err(Error::usage(message));
+    }
+    notes.extend(same_content(&inputs));
+    out.inputs = inputs;
+    out.notes = notes;
+    Ok(out)
+}
+
+/// Keep the sets whose name or language is in `languages`; every listed
+/// value must match some set.
+fn filter_sets(sets: DataSets, languages: Option<&[String]>) -> Result<DataSets> {
+    let Some(wanted) = languages else { return Ok(sets) };
+    let keep = |f: &data::DataFile| {
+        wanted.iter().any(|w| *w == f.name || f.language.is_some_and(|l| l.as_str() == w))
+    };
+    for w in wanted {
+        let any = sets
+            .lemma_lists
+            .iter()
+            .chain(&sets.sentence_sets)
+            .any(|f| *w == f.name || f.language.is_some_and(|l| l.as_str() == w));
+        if !any {
+            let mut names: Vec<&str> = sets
+                .lemma_lists
+                .iter()
+                .chain(&sets.sentence_sets)
+                .map(|f| f.name.as_str())
+                .collect();
+            names.sort_unstable();
+            names.dedup();
+            return Err(Error::usage(format!(
+                "--langs: no data set named or in language {w:?}; available: {}",
+                names.join(", ")
+            )));
+        }
+    }
+    Ok(DataSets {
+        lemma_lists: sets.lemma_lists.into_iter().filter(keep).collect(),
+        sentence_sets: sets.sentence_sets.into_iter().filter(keep).collect(),
+        gold_sets: sets.gold_sets,
+    })
+}
+
+/// Notes naming data files with identical content (the same sentences
+/// measured twice), so a reader does not take them for independent evidence.
+fn same_content(inputs: &[InputFile]) -> Vec<String> {
+    let mut by_hash: std::collections::BTreeMap<&str, Vec<&str>> =
+        std::collections::BTreeMap::new();
+    for i in inputs {
+        by_hash.entry(i.sha256.as_str()).or_default().push(i.role.as_str());
+    }
+    let mut notes: Vec<String> = by_hash
+        .values()
+        .filter(|roles| roles.len() > 1)
+        .map(|roles| format!("{} have identical content (same SHA-256)", roles.join(", ")))
+        .collect();
+    notes.sort();
+    notes
+}
+
+fn input_file(role: &str, path: &std::path::Path) -> Result<InputFile> {
+    Ok(InputFile {
+        role: role.to_string(),
+        path: path.display().to_string(),
+        sha256: data::sha256_of(path)?,
+    })
+}
+
+/// The field of `analyzer` that serves `language`: the plain chain's only
+/// field, a routed chain's branch for it, else its fallback.
+fn field_for_language(analyzer: &Analyzer, language: LangCode) -> usize {
+    let fields = analyzer.fields();
+    fields
+        .iter()
+        .position(|f| f.language == Some(language))
+        .unwrap_or(fields.len().saturating_sub(1))
+}
+
+fn conflation_section(
+    plan: &DiagnosePlan,
+    sets: &DataSets,
+    inputs: &mut Vec<InputFile>,
+    progress: &mut dyn FnMut(&str),
+) -> Result<Vec<ConflationResult>> {
+    let mut lists = Vec::with_capacity(sets.lemma_lists.len());
+    for file in &sets.lemma_lists {
+        let list = data::read_lemmas(&file.path)?;
+        inputs.push(input_file(&format!("lemmas:{}", file.name), &file.path)?);
+        lists.push((file, WordGroups::from_list(&list)));
+    }
+    let mut out = Vec::new();
+    for (file, groups) in &lists {
+        let Some(language) = file.language else { continue };
+        progress(&format!("conflation: {} ({} words)", file.name, groups.words.len()));
+        for chain in &plan.chains {
+            let mut result = ConflationResult {
+                chain: chain.name().clone(),
+                set: file.name.clone(),
+                language,
+                analysis: chain.name().to_string(),
+                words: groups.words.len(),
+                groups: groups.lemmas.len(),
+                ambiguous_forms: groups.ambiguous_forms,
+                without_lemma: groups.without_lemma,
+                figures: None,
+                note: None,
+            };
+            match chain.for_language(language) {
+                Err(why) => result.note = Some(why),
+                Ok(spec) => {
+                    let analyzer = Analyzer::build(&spec, &AnalysisContext::default())?;
+                    let field = field_for_language(&analyzer, language);
+                    let Some(f) = analyzer.fields().get(field) else { continue };
+                    result.analysis = describe(&spec, &f.key);
+                    let mut text = f.analyzer.clone();
+                    result.figures = Some(conflation::assess(groups, &mut text, plan.top));
+                }
+            }
+            out.push(result);
+        }
+    }
+    Ok(out)
+}
+
+/// A short description of what ran: the stem language of a per-language
+/// chain, or the field of a routed one.
+fn describe(spec: &ChainSpec, field: &str) -> String {
+    match &spec.body {
+        ChainBody::Routed { .. } => format!("{} ({field})", spec.name),
+        ChainBody::Plain(p) => {
+            let stems: Vec<String> = p
+                .steps
+                .iter()
+                .filter(|s| matches!(s, StepSpec::Stem { .. }))
+                .map(StepSpec::label)
+                .collect();
+            if stems.is_empty() {
+                spec.name.to_string()
+            } else {
+                format!("{} ({})", spec.name, stems.join(", "))
+            }
+        }
+    }
+}
+
+fn routing_section(
+    routed: &[&ChainUnderTest],
+    sets: &DataSets,
+    inputs: &mut Vec<InputFile>,
+    progress: &mut dyn FnMut(&str),
+) -> Result<Vec<RoutingResult>> {
+    let mut texts = Vec::with_capacity(sets.sentence_sets.len());
+    for file in &sets.sentence_sets {
+        let sentences = data::read_sentences(&file.path)?;
+        inputs
+            .push(input_file(&format!("sentences:{}/{}", file.collection, file.name), &file.path)?);
+        texts.push((file, sentences));
+    }
+    let mut out = Vec::new();
+    for chain in routed {
+        let analyzer = Analyzer::build(chain.spec(), &AnalysisContext::default())?;
+        for (file, sentences) in &texts {
+            let Some(language) = file.language else { continue };
+            progress(&format!(
+                "routing: {} on {}/{} ({} sentences)",
+                chain.name(),
+                file.collection,
+                file.name,
+                sentences.len()
+            ));
+            let refs: Vec<&str> = sentences.iter().map(|s| s.text.as_str()).collect();
+            let Some(figures) = routing::route_sentences(&analyzer, language, &refs) else {
+                continue;
+            };
+            out.push(RoutingResult {
+                chain: chain.name().clone(),
+                collection: file.collection.clone(),
+                set: file.name.clone(),
+                language,
+                figures,
+            });
+        }
+    }
+    Ok(out)
+}
+
+/// The pipeline of a chain cut right after its `hashtags` step, with the
+/// step's vocabulary setting. A routed chain's English branch is preferred
+/// (the gold sets are English), else its first pipeline with the step.
+fn hashtag_prefix(spec: &ChainSpec) -> Option<(Pipeline, TagVocabulary)> {
+    let cut = |p: &Pipeline| {
+        let at = p.steps.iter().position(|s| matches!(s, StepSpec::Hashtags { .. }))?;
+        let vocabulary = match p.steps.get(at) {
+            Some(StepSpec::Hashtags { vocabulary }) => *vocabulary,
+            _ => return None,
+        };
+        Some((Pipeline { tokenizer: p.tokenizer, steps: p.steps.get(..=at)?.to_vec() }, vocabulary))
+    };
+    if let Some(route) = spec.route() {
+        let english = route.branches.iter().find(|b| b.language.as_str() == "en");
+        if let Some(found) = english.and_then(|b| cut(&b.pipeline)) {
+            return Some(found);
+        }
+    }
+    spec.pipelines().find_map(cut)
+}
+
+/// A loaded frequency source.
+struct LoadedSource {
+    label: String,
+    freqs: Option<Arc<WordFreqs>>,
+}
+
+fn load_sources(
+    plan: &DiagnosePlan,
+    inputs: &mut Vec<InputFile>,
+    progress: &mut dyn FnMut(&str),
+) -> Result<Vec<LoadedSource>> {
+    let mut loaded = Vec::with_capacity(plan.freq_sources.len());
+    for source in &plan.freq_sources {
+        let (label, freqs) = match source {
+            FreqSource::Corpus(path) => {
+                progress(&format!(
+                    "segmentation: learning word frequencies from {}",
+                    path.display()
+                ));
+                let posts = read_corpus(path)?;
+                inputs.push(input_file("freq-corpus", path)?);
+                (
+                    format!("corpus:{}", path.display()),
+                    WordFreqs::learn(posts.iter().map(|p| p.text.as_str())),
+                )
+            }
+            FreqSource::List(path) => {
+                let freqs = WordFreqs::read_counts(path)?;
+                inputs.push(input_file("freq-list", path)?);
+                (format!("list:{}", path.display()), freqs)
+            }
+        };
+        loaded.push(LoadedSource { label, freqs: Some(Arc::new(freqs)) });
+    }
+    Ok(loaded)
+}
+
+fn segmentation_section(
+    plan: &DiagnosePlan,
+    tagged: &[(&ChainUnderTest, Pipeline, TagVocabulary)],
+    sets: &DataSets,
+    inputs: &mut Vec<InputFile>,
+    notes: &mut Vec<String>,
+    progress: &mut dyn FnMut(&str),
+) -> Result<Vec<SegmentationResult>> {
+    let mut golds = Vec::with_capacity(sets.gold_sets.len());
+    for file in &sets.gold_sets {
+        let gold = data::read_gold(&file.path)?;
+        inputs.push(input_file(&format!("gold:{}", file.name), &file.path)?);
+        golds.push((file, gold));
+    }
+    let needs_freqs = tagged.iter().any(|(_, _, v)| *v == TagVocabulary::Corpus);
+    let mut sources = if needs_freqs { load_sources(plan, inputs, progress)? } else { Vec::new() };
+    if needs_freqs && sources.is_empty() {
+        notes.push(
+            "segmentation: no word-frequency source (--freq-corpus or --freq-list): \
+             tags split on case, digit and underscore boundaries only"
+                .to_string(),
+        );
+        sources.push(LoadedSource { label: "none".into(), freqs: None });
+    }
+    let none = [LoadedSource { label: "none".into(), freqs: None }];
+    let mut out = Vec::new();
+    for (chain, pipeline, vocabulary) in tagged {
+        let chain_sources: &[LoadedSource] =
+            if *vocabulary == TagVocabulary::Corpus { &sources } else { &none };
+        for source in chain_sources {
+            let ctx = AnalysisContext { word_freqs: source.freqs.clone() };
+            let mut analyzer = build_pipeline(pipeline, &ctx)?;
+            for (file, gold) in &golds {
+                progress(&format!(
+                    "segmentation: {} on {} with {} ({} tags)",
+                    chain.name(),
+                    file.name,
+                    source.label,
+                    gold.len()
+                ));
+                let mut figures = segmentation::assess(&mut analyzer, gold);
+                figures.errors.truncate(plan.top);
+                out.push(SegmentationResult {
+                    chain: chain.name().clone(),
+                    gold: file.name.clone(),
+                    source: source.label.clone(),
+                    source_words: source.freqs.as_ref().map_or(0, |f| f.len()),
+                    figures,
+                });
+            }
+        }
+    }
+    Ok(out)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn en() -> LangCode {
+        LangCode::parse("en").expect("valid")
+    }
+
+    #[test]
+    fn sections_parse_and_reject_unknown_names() {
+        let s = Sections::parse("routing, conflation").expect("known names");
+        assert_eq!(s, Sections { conflation: true, routing: true, segmentation: false });
+        let err = Sections::parse("routing,stems").expect_err("unknown").to_string();
+        assert!(err.contains("\"stems\"") && err.contains("conflation, routing, segmentation"));
+        assert!(Sections::parse(" , ").is_err());
+    }
+
+    #[test]
+    fn only_the_builtin_stemmed_chain_follows_the_language() {
+        let chains = chains_under_test(builtin_chains(en()).expect("built-ins")).expect("ok");
+        let kinds: Vec<(&str, bool)> = chains
+            .iter()
+            .map(|c| (c.name().as_str(), matches!(c, ChainUnderTest::StemPerLanguage(_))))
+            .collect();
+        assert_eq!(
+            kinds,
+            [("standard", false), ("stemmed", true), ("hashtag", false), ("routed", false)]
+        );
+        let stemmed = &chains[1];
+        let de = stemmed.for_language(LangCode::parse("de").expect("valid")).expect("German");
+        assert_eq!(describe(&de, "text"), "stemmed (stem(de, current))");
+        // A chain-file chain of the same name but other steps is run as written.
+        let mut other = stemmed.spec().clone();
+        other.description = Some("mine".into());
+        let chains = chains_under_test(vec![other]).expect("ok");
+        assert!(matches!(chains[0], ChainUnderTest::Fixed(_)));
+    }
+
+    #[test]
+    fn the_hashtag_prefix_ends_with_the_step() {
+        let chains = builtin_chains(en()).expect("built-ins");
+        let hashtag = chains.iter().find(|c| c.name.as_str() == "hashtag").expect("built-in");
+        let (prefix, vocabulary) = hashtag_prefix(hashtag).expect("has the step");
+        let names: Vec<&str> = prefix.steps.iter().map(StepSpec::name).collect();
+        assert_eq!(names, ["drop", "hashtags"]);
+        assert_eq!(vocabulary, TagVocabulary::Corpus);
+        let standard = chains.iter().find(|c| c.name.as_str() == "standard").expect("built-in");
+        assert!(hashtag_prefix(standard).is_none());
+    }
+}

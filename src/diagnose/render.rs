@@ -1,0 +1,651 @@
+//! Renderings of a [`Diagnostics`] report: `diagnostics.md` (for a person),
+//! `diagnostics.json` (the model itself) and one CSV per table. Nothing here
+//! computes a figure; shares are only formatted.
+//!
+//! Place in the data flow: the report end of `diagnose`. Files are written
+//! atomically with [`write_atomic`], all rendered before the first is
+//! written. CSV numbers are the shortest text that parses back to the same
+//! f64 ([`format_shortest`]); an absent value is an empty field. Markdown
+//! uses fixed precision: 4 decimals for UI, 3 significant digits in
+//! scientific notation for OI and SW (their values are small: pairs across
+//! concepts vastly outnumber pairs within), one decimal for percentages.
+
+use std::fmt::Write as _;
+use std::path::{Path, PathBuf};
+
+use super::conflation::ConflationFigures;
+use super::routing::{buckets, FALLBACK_LABEL};
+use super::{Diagnostics, RoutingResult};
+use crate::error::{Error, Result};
+use crate::input::format_shortest;
+use crate::report::write_atomic;
+
+/// File names written into `--out`.
+pub const MARKDOWN_FILE: &str = "diagnostics.md";
+/// The JSON model.
+pub const JSON_FILE: &str = "diagnostics.json";
+/// Conflation table.
+pub const CONFLATION_CSV: &str = "diagnostics-conflation.csv";
+/// Routing accuracy table (overall and per length bucket).
+pub const ROUTING_CSV: &str = "diagnostics-routing.csv";
+/// Routing confusion counts.
+pub const CONFUSION_CSV: &str = "diagnostics-confusion.csv";
+/// Segmentation table.
+pub const SEGMENTATION_CSV: &str = "diagnostics-segmentation.csv";
+
+/// Every output file, rendered: `(file name, bytes)`.
+pub fn render_all(d: &Diagnostics) -> Result<Vec<(&'static str, Vec<u8>)>> {
+    Ok(vec![
+        (MARKDOWN_FILE, markdown(d).into_bytes()),
+        (JSON_FILE, json(d)?.into_bytes()),
+        (CONFLATION_CSV, conflation_csv(d)?.into_bytes()),
+        (ROUTING_CSV, routing_csv(d)?.into_bytes()),
+        (CONFUSION_CSV, confusion_csv(d)?.into_bytes()),
+        (SEGMENTATION_CSV, segmentation_csv(d)?.into_bytes()),
+    ])
+}
+
+/// Write every output file into `out` (created when missing); returns the
+/// paths written.
+pub fn write_outputs(out: &Path, d: &Diagnostics) -> Result<Vec<PathBuf>> {
+    let files = render_all(d)?;
+    std::fs::create_dir_all(out).map_err(|e| Error::io(out, e))?;
+    let mut written = Vec::with_capacity(files.len());
+    for (name, bytes) in files {
+        let path = out.join(name);
+        write_atomic(&path, &bytes)?;
+        written.push(path);
+    }
+    Ok(written)
+}
+
+/// `diagnostics.json`: the model, pretty-printed, with a final newline.
+pub fn json(d: &Diagnostics) -> Result<String> {
+    serde_json::to_string_pretty(d)
+        .map(|s| s + "\n")
+        .map_err(|e| Error::usage(format!("serialising diagnostics.json: {e}")))
+}
+
+fn csv_text(write: impl FnOnce(&mut csv::Writer<Vec<u8>>) -> csv::Result<()>) -> Result<String> {
+    let fail = |e: String| Error::usage(format!("writing CSV: {e}"));
+    let mut w =
+        csv::WriterBuilder::new().terminator(csv::Terminator::Any(b'\n')).from_writer(Vec::new());
+    write(&mut w).map_err(|e| fail(e.to_string()))?;
+    let bytes = w.into_inner().map_err(|e| fail(e.to_string()))?;
+    String::from_utf8(bytes).map_err(|e| fail(e.to_string()))
+}
+
+fn num(x: Option<f64>) -> String {
+    x.map(format_shortest).unwrap_or_default()
+}
+
+/// `diagnostics-conflation.csv`, one row per chain and lemma list.
+pub fn conflation_csv(d: &Diagnostics) -> Result<String> {
+    csv_text(|w| {
+        w.write_record([
+            "chain",
+            "set",
+            "language",
+            "analysis",
+            "words",
+            "groups",
+            "multi_word_groups",
+            "ambiguous_forms",
+            "without_lemma",
+            "words_without_terms",
+            "gdmt",
+            "gumt",
+            "gdnt",
+            "gwmt",
+            "ui",
+            "oi",
+            "sw",
+            "fully_conflated",
+            "mean_stems_per_group",
+            "note",
+        ])?;
+        for r in &d.conflation {
+            let f = r.figures.as_ref();
+            let c = f.map(|f| f.counts);
+            let count = |x: Option<u64>| x.map(|v| v.to_string()).unwrap_or_default();
+            w.write_record([
+                r.chain.as_str(),
+                &r.set,
+                r.language.as_str(),
+                &r.analysis,
+                &r.words.to_string(),
+                &r.groups.to_string(),
+                &f.map(|f| f.multi_word_groups.to_string()).unwrap_or_default(),
+                &r.ambiguous_forms.to_string(),
+                &r.without_lemma.to_string(),
+                &f.map(|f| f.words_without_terms.to_string()).unwrap_or_default(),
+                &count(c.map(|c| c.gdmt)),
+                &count(c.map(|c| c.gumt)),
+                &count(c.map(|c| c.gdnt)),
+                &count(c.map(|c| c.gwmt)),
+                &num(f.and_then(|f| f.understemming)),
+                &num(f.and_then(|f| f.overstemming)),
+                &num(f.and_then(|f| f.stemming_weight)),
+                &num(f.and_then(|f| f.fully_conflated)),
+                &num(f.and_then(|f| f.mean_stems_per_group)),
+                r.note.as_deref().unwrap_or_default(),
+            ])?;
+        }
+        Ok(())
+    })
+}
+
+/// `diagnostics-routing.csv`: per chain and set, a row `all` then one per
+/// length bucket.
+pub fn routing_csv(d: &Diagnostics) -> Result<String> {
+    csv_text(|w| {
+        w.write_record([
+            "chain",
+            "collection",
+            "set",
+            "language",
+            "routable",
+            "bucket",
+            "sentences",
+            "correct",
+            "accuracy",
+        ])?;
+        for r in &d.routing {
+            let f = &r.figures;
+            let head = [r.chain.as_str(), &r.collection, &r.set, r.language.as_str()];
+            let routable = if f.routable { "yes" } else { "no" };
+            let all = [routable, "all", &f.sentences.to_string(), &f.correct.to_string()];
+            w.write_record(head.iter().chain(&all).copied().chain([num(f.accuracy).as_str()]))?;
+            for b in &f.by_length {
+                let row = [routable, &b.bucket, &b.sentences.to_string(), &b.correct.to_string()];
+                w.write_record(head.iter().chain(&row).copied().chain([num(b.accuracy).as_str()]))?;
+            }
+        }
+        Ok(())
+    })
+}
+
+/// `diagnostics-confusion.csv`: where each set's sentences were routed.
+pub fn confusion_csv(d: &Diagnostics) -> Result<String> {
+    csv_text(|w| {
+        w.write_record(["chain", "collection", "set", "language", "routed_to", "sentences"])?;
+        for r in &d.routing {
+            for (label, n) in &r.figures.confusion {
+                w.write_record([
+                    r.chain.as_str(),
+                    &r.collection,
+                    &r.set,
+                    r.language.as_str(),
+                    label,
+                    &n.to_string(),
+                ])?;
+            }
+        }
+        Ok(())
+    })
+}
+
+/// `diagnostics-segmentation.csv`, one row per chain, gold set and source.
+pub fn segmentation_csv(d: &Diagnostics) -> Result<String> {
+    csv_text(|w| {
+        w.write_record([
+            "chain",
+            "gold",
+            "source",
+            "source_words",
+            "tags",
+            "exact",
+            "exact_accuracy",
+            "unaligned",
+            "predicted_boundaries",
+            "gold_boundaries",
+            "correct_boundaries",
+            "precision",
+            "recall",
+            "f1",
+        ])?;
+        for r in &d.segmentation {
+            let f = &r.figures;
+            w.write_record([
+                r.chain.as_str(),
+                &r.gold,
+                &r.source,
+                &r.source_words.to_string(),
+                &f.tags.to_string(),
+                &f.exact.to_string(),
+                &num(f.exact_accuracy),
+                &f.unaligned.to_string(),
+                &f.predicted_boundaries.to_string(),
+                &f.gold_boundaries.to_string(),
+                &f.correct_boundaries.to_string(),
+                &num(f.precision),
+                &num(f.recall),
+                &num(f.f1),
+            ])?;
+        }
+        Ok(())
+    })
+}
+
+fn fixed(x: Option<f64>, decimals: usize) -> String {
+    x.map_or("–".to_string(), |v| format!("{v:.decimals$}"))
+}
+
+fn scientific(x: Option<f64>) -> String {
+    match x {
+        None => "–".to_string(),
+        Some(0.0) => "0".to_string(),
+        Some(v) => format!("{v:.2e}"),
+    }
+}
+
+fn percent(x: Option<f64>) -> String {
+    x.map_or("–".to_string(), |v| format!("{:.1}%", 100.0 * v))
+}
+
+/// Escape text for a Markdown table cell or inline code.
+fn cell(text: &str) -> String {
+    text.replace('|', "\\|").replace('`', "'").replace('\n', " ")
+}
+
+/// `diagnostics.md`.
+pub fn markdown(d: &Diagnostics) -> String {
+    let mut s = String::new();
+    let chains: Vec<String> = d.chains.iter().map(|c| format!("`{c}`")).collect();
+    let _ = writeln!(s, "# Chain diagnostics\n");
+    let _ = writeln!(
+        s,
+        "Chains: {}. Every data file read is listed with its SHA-256 under Inputs.\n",
+        chains.join(", ")
+    );
+    if d.sections.conflation && !d.conflation.is_empty() {
+        conflation_md(&mut s, d);
+    }
+    if d.sections.routing && !d.routing.is_empty() {
+        routing_md(&mut s, d);
+    }
+    if d.sections.segmentation && !d.segmentation.is_empty() {
+        segmentation_md(&mut s, d);
+    }
+    if !d.notes.is_empty() {
+        let _ = writeln!(s, "## Notes\n");
+        for n in &d.notes {
+            let _ = writeln!(s, "- {}", n.replace('\n', " "));
+        }
+        s.push('\n');
+    }
+    let _ = writeln!(s, "## Inputs\n");
+    let _ = writeln!(s, "| role | file | SHA-256 |\n|---|---|---|");
+    for i in &d.inputs {
+        let _ = writeln!(s, "| {} | `{}` | `{}` |", cell(&i.role), cell(&i.path), i.sha256);
+    }
+    s
+}
+
+fn conflation_md(s: &mut String, d: &Diagnostics) {
+    let _ = writeln!(s, "## Conflation against lemma classes\n");
+    let _ = writeln!(
+        s,
+        "Words are the distinct forms of each lemma list; words sharing a lemma form a \
+         concept group (forms with two lemmas are left out). Paice (SIGIR 1994): UI = share \
+         of desired merges (pairs of words with one lemma) the chain misses, OI = share of \
+         desired non-merges (pairs with different lemmas) it merges, SW = OI / UI. Over \
+         groups of 2+ words: *whole* = share conflated to one term sequence, *terms* = mean \
+         distinct term sequences per group.\n"
+    );
+    let _ = writeln!(
+        s,
+        "| set | chain | analysis | words | groups 2+ | UI | OI | SW | whole | terms |"
+    );
+    let _ = writeln!(s, "|---|---|---|--:|--:|--:|--:|--:|--:|--:|");
+    for r in &d.conflation {
+        match &r.figures {
+            Some(f) => {
+                let _ = writeln!(
+                    s,
+                    "| {} | {} | {} | {} | {} | {} | {} | {} | {} | {} |",
+                    r.set,
+                    r.chain,
+                    cell(&r.analysis),
+                    r.words,
+                    f.multi_word_groups,
+                    fixed(f.understemming, 4),
+                    scientific(f.overstemming),
+                    scientific(f.stemming_weight),
+                    percent(f.fully_conflated),
+                    fixed(f.mean_stems_per_group, 2),
+                );
+            }
+            None => {
+                let why = r.note.as_deref().unwrap_or("not measured");
+                let _ = writeln!(
+                    s,
+                    "| {} | {} | {} | {} | – | – | – | – | – | – |",
+                    r.set,
+                    r.chain,
+                    cell(why),
+                    r.words
+                );
+            }
+        }
+    }
+    s.push('\n');
+    let with_examples: Vec<_> = d
+        .conflation
+        .iter()
+        .filter_map(|r| r.figures.as_ref().map(|f| (r, f)))
+        .filter(|(_, f)| !f.worst_splits.is_empty() || !f.worst_merges.is_empty())
+        .collect();
+    if with_examples.is_empty() {
+        return;
+    }
+    let _ = writeln!(s, "### Worst offenders\n");
+    let _ = writeln!(
+        s,
+        "*split*: lemma groups spread over most terms (term → forms); *merged*: terms \
+         that join most unrelated lemmas (lemma: forms). `∅` = the chain outputs nothing.\n"
+    );
+    let mut shown: Vec<(&str, &str, &ConflationFigures)> = Vec::new();
+    for (r, f) in with_examples {
+        // A chain that conflates exactly like one already shown on this set
+        // (a routed chain's branch and the stemmed chain, say) is named, not repeated.
+        if let Some((_, same, _)) = shown.iter().find(|(set, _, g)| *set == r.set && *g == f) {
+            let _ = writeln!(s, "**{} · {}**: same as {}.\n", r.set, cell(&r.analysis), cell(same));
+            continue;
+        }
+        shown.push((&r.set, &r.analysis, f));
+        let _ = writeln!(s, "**{} · {}**\n", r.set, cell(&r.analysis));
+        for g in &f.worst_splits {
+            let parts: Vec<String> = g
+                .stems
+                .iter()
+                .map(|t| format!("`{}` {}", stem_label(&t.stem), forms(&t.forms, t.count)))
+                .collect();
+            let _ = writeln!(
+                s,
+                "- split `{}` ({} words, {} terms): {}",
+                cell(&g.lemma),
+                g.words,
+                g.stems.len(),
+                parts.join("; ")
+            );
+        }
+        for m in &f.worst_merges {
+            let parts: Vec<String> = m
+                .lemmas
+                .iter()
+                .map(|l| format!("{}: {}", cell(&l.stem), forms(&l.forms, l.count)))
+                .collect();
+            let _ = writeln!(
+                s,
+                "- merged `{}` ({} lemmas): {}",
+                cell(&m.stem),
+                m.lemmas.len(),
+                parts.join("; ")
+            );
+        }
+        s.push('\n');
+    }
+}
+
+fn stem_label(stem: &str) -> String {
+    if stem.is_empty() {
+        "∅".to_string()
+    } else {
+        cell(stem)
+    }
+}
+
+fn forms(shown: &[String], count: usize) -> String {
+    let mut text = shown.iter().map(|f| cell(f)).collect::<Vec<_>>().join(", ");
+    if count > shown.len() {
+        let _ = write!(text, ", … ({count})");
+    }
+    text
+}
+
+fn routing_md(s: &mut String, d: &Diagnostics) {
+    let _ = writeln!(s, "## Routing by language\n");
+    let _ = writeln!(
+        s,
+        "Each sentence is routed like a post without a declared language (the chain's \
+         detector, then its field). Correct = the field of the sentence's own language; \
+         `{FALLBACK_LABEL}` (the fallback field) is wrong. A language the route does not \
+         list cannot be routed correctly and is marked *not routed*. Length buckets in \
+         characters; cells show accuracy (sentences).\n"
+    );
+    let labels = buckets();
+    let mut chains: Vec<&str> = d.routing.iter().map(|r| r.chain.as_str()).collect();
+    chains.dedup();
+    for chain in chains {
+        let rows: Vec<&RoutingResult> =
+            d.routing.iter().filter(|r| r.chain.as_str() == chain).collect();
+        let _ = writeln!(s, "### `{chain}`\n");
+        let _ = write!(s, "| data | set | sentences | accuracy |");
+        for b in labels {
+            let _ = write!(s, " {} |", b.replace("<=", "≤ "));
+        }
+        let _ = writeln!(s, " to fallback |");
+        let _ = writeln!(s, "|---|---|--:|--:|--:|--:|--:|--:|--:|");
+        for r in &rows {
+            let f = &r.figures;
+            let accuracy = if f.routable { percent(f.accuracy) } else { "not routed".to_string() };
+            let _ = write!(s, "| {} | {} | {} | {} |", r.collection, r.set, f.sentences, accuracy);
+            for b in &f.by_length {
+                if b.sentences == 0 {
+                    let _ = write!(s, " – |");
+                } else if f.routable {
+                    let _ = write!(s, " {} ({}) |", percent(b.accuracy), b.sentences);
+                } else {
+                    let _ = write!(s, " – ({}) |", b.sentences);
+                }
+            }
+            let share = (f.sentences > 0).then(|| f.to_fallback as f64 / f.sentences as f64);
+            let _ = writeln!(s, " {} |", percent(share));
+        }
+        s.push('\n');
+        confusion_md(s, &rows);
+    }
+}
+
+/// One confusion matrix per collection: rows the sets, columns the fields.
+fn confusion_md(s: &mut String, rows: &[&RoutingResult]) {
+    let mut collections: Vec<&str> = rows.iter().map(|r| r.collection.as_str()).collect();
+    collections.dedup();
+    for collection in collections {
+        let part: Vec<&&RoutingResult> =
+            rows.iter().filter(|r| r.collection == collection).collect();
+        let mut labels: Vec<&str> = part
+            .iter()
+            .flat_map(|r| r.figures.confusion.keys().map(String::as_str))
+            .filter(|l| *l != FALLBACK_LABEL)
+            .collect();
+        labels.sort_unstable();
+        labels.dedup();
+        labels.push(FALLBACK_LABEL);
+        let _ = writeln!(s, "Routed to (rows: {collection} sets; columns: fields):\n");
+        let _ = write!(s, "| set |");
+        for l in &labels {
+            let _ = write!(s, " {l} |");
+        }
+        let _ = write!(s, "\n|---|");
+        for _ in &labels {
+            let _ = write!(s, "--:|");
+        }
+        s.push('\n');
+        for r in part {
+            let _ = write!(s, "| {} |", r.set);
+            for l in &labels {
+                let n = r.figures.confusion.get(*l).copied().unwrap_or(0);
+                if n == 0 {
+                    let _ = write!(s, " · |");
+                } else if Some(*l) == Some(r.language.as_str()) {
+                    let _ = write!(s, " **{n}** |");
+                } else {
+                    let _ = write!(s, " {n} |");
+                }
+            }
+            s.push('\n');
+        }
+        s.push('\n');
+    }
+}
+
+fn segmentation_md(s: &mut String, d: &Diagnostics) {
+    let _ = writeln!(s, "## Hashtag segmentation\n");
+    let _ = writeln!(
+        s,
+        "Each tag is fed as `#tag` through the chain up to its `hashtags` step. Words are \
+         compared lower-cased with non-alphanumerics removed (gold sets restore apostrophes \
+         a tag cannot hold). *exact* = the words equal the gold or an accepted alternative; \
+         P/R/F1 = micro-averaged word-boundary precision, recall and F1 against the best \
+         accepted segmentation; *unaligned* = tags whose gold spells other letters (left \
+         out of P/R).\n"
+    );
+    let _ = writeln!(
+        s,
+        "| chain | gold set | frequencies | words | tags | exact | P | R | F1 | unaligned |"
+    );
+    let _ = writeln!(s, "|---|---|---|--:|--:|--:|--:|--:|--:|--:|");
+    for r in &d.segmentation {
+        let f = &r.figures;
+        let _ = writeln!(
+            s,
+            "| {} | {} | {} | {} | {} | {} | {} | {} | {} | {} |",
+            r.chain,
+            cell(&r.gold),
+            cell(&r.source),
+            r.source_words,
+            f.tags,
+            percent(f.exact_accuracy),
+            fixed(f.precision, 3),
+            fixed(f.recall, 3),
+            fixed(f.f1, 3),
+            f.unaligned,
+        );
+    }
+    s.push('\n');
+    let misses: Vec<_> = d.segmentation.iter().filter(|r| !r.figures.errors.is_empty()).collect();
+    if misses.is_empty() {
+        return;
+    }
+    let _ = writeln!(s, "### First misses\n");
+    for r in misses {
+        let examples: Vec<String> = r
+            .figures
+            .errors
+            .iter()
+            .map(|e| {
+                format!("`{}` → {} (gold: {})", cell(&e.tag), cell(&e.predicted), cell(&e.gold))
+            })
+            .collect();
+        let _ = writeln!(
+            s,
+            "- {} · {} · {}: {}",
+            r.chain,
+            cell(&r.gold),
+            cell(&r.source),
+            examples.join("; ")
+        );
+    }
+    s.push('\n');
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::diagnose::conflation::{figures, WordGroups};
+    use crate::diagnose::data::LemmaList;
+    use crate::diagnose::routing::tally;
+    use crate::diagnose::{ConflationResult, Sections, SCHEMA_VERSION};
+    use crate::ids::ChainName;
+    use crate::input::LangCode;
+    use crate::report::model::{InputFile, ToolInfo};
+
+    fn sample() -> Diagnostics {
+        let en = LangCode::parse("en").expect("valid");
+        let list = LemmaList {
+            rows: [("runs", "run"), ("ran", "run"), ("cat", "cat")]
+                .iter()
+                .map(|(f, l)| (f.to_string(), l.to_string()))
+                .collect(),
+            without_lemma: 0,
+        };
+        let groups = WordGroups::from_list(&list);
+        let stems = ["run", "ran", "cat"].map(String::from);
+        Diagnostics {
+            schema_version: SCHEMA_VERSION,
+            tool: ToolInfo { name: "postassay".into(), version: "0".into() },
+            command: "vet".into(),
+            inputs: vec![InputFile {
+                role: "lemmas:en".into(),
+                path: "en.tsv".into(),
+                sha256: "ab".into(),
+            }],
+            chains: vec![ChainName::from("stemmed")],
+            chain_specs: Vec::new(),
+            sections: Sections::all(),
+            conflation: vec![ConflationResult {
+                chain: ChainName::from("stemmed"),
+                set: "en".into(),
+                language: en,
+                analysis: "stemmed (stem(en, current))".into(),
+                words: 3,
+                groups: 2,
+                ambiguous_forms: 0,
+                without_lemma: 0,
+                figures: Some(figures(&groups, &stems, 3)),
+                note: None,
+            }],
+            routing: vec![RoutingResult {
+                chain: ChainName::from("routed"),
+                collection: "ud".into(),
+                set: "en".into(),
+                language: en,
+                figures: tally(en, true, &[(10, Some(en)), (80, None)]),
+            }],
+            segmentation: Vec::new(),
+            notes: vec!["segmentation: none of the chains has a hashtags step".into()],
+        }
+    }
+
+    #[test]
+    fn csv_rows_carry_the_figures() {
+        let d = sample();
+        let conflation = conflation_csv(&d).expect("renders");
+        let row = conflation.lines().nth(1).expect("one row");
+        // 3 words; GDMT 1 (runs–ran), GUMT 1, GDNT 2, GWMT 0: UI 1, OI 0.
+        assert_eq!(
+            row,
+            "stemmed,en,en,\"stemmed (stem(en, current))\",3,2,1,0,0,0,1,1,2,0,1,0,0,0,2,"
+        );
+        let routing = routing_csv(&d).expect("renders");
+        let lines: Vec<&str> = routing.lines().collect();
+        assert_eq!(lines[1], "routed,ud,en,en,yes,all,2,1,0.5");
+        assert_eq!(lines[2], "routed,ud,en,en,yes,<=20,1,1,1");
+        assert_eq!(lines[3], "routed,ud,en,en,yes,21-60,0,0,");
+        let confusion = confusion_csv(&d).expect("renders");
+        assert_eq!(
+            confusion.lines().skip(1).collect::<Vec<_>>(),
+            ["routed,ud,en,en,en,1", "routed,ud,en,en,other,1"]
+        );
+    }
+
+    #[test]
+    fn markdown_shows_tables_offenders_and_inputs() {
+        let md = markdown(&sample());
+        let row =
+            "| en | stemmed | stemmed (stem(en, current)) | 3 | 1 | 1.0000 | 0 | 0 | 0.0% | 2.00 |";
+        assert!(md.contains(row), "{md}");
+        assert!(md.contains("- split `run` (2 words, 2 terms): `ran` ran; `run` runs"), "{md}");
+        // Two sentences: 10 chars → en (right), 80 chars → fallback (wrong).
+        let row = "| ud | en | 2 | 50.0% | 100.0% (1) | – | 0.0% (1) | – | 50.0% |";
+        assert!(md.contains(row), "{md}");
+        assert!(md.contains("| en | **1** | 1 |"), "{md}");
+        assert!(md.contains("| lemmas:en | `en.tsv` | `ab` |"), "{md}");
+        assert!(md.contains("## Notes"));
+        let json = json(&sample()).expect("serialises");
+        let back: Diagnostics = serde_json::from_str(&json).expect("parses back");
+        assert_eq!(back.conflation, sample().conflation);
+    }
+}

@@ -1,0 +1,210 @@
+//! Routing accuracy of a language-routed chain on sentences of known
+//! language: the share sent to that language's field, a confusion row, and
+//! the accuracy by text length.
+//!
+//! Place in the data flow: `diagnose`, fed by sentence files
+//! ([`read_sentences`](super::data::read_sentences)) and a routed chain's
+//! [`Analyzer`]. A sentence is routed as a post without a declared language
+//! would be: the chain's detector (restricted to the route's languages, with
+//! its confidence floor) and then [`Analyzer::field_for_post`].
+//!
+//! A sentence is routed correctly when it lands in the field of its own
+//! language; the fallback field counts as wrong. A language outside the
+//! route's list can never be routed correctly: it is reported as not
+//! routable (its accuracy is 0 by construction and its confusion row shows
+//! where its sentences go), not left out.
+//!
+//! Lengths are counted in Unicode scalar values and bucketed by
+//! [`length_bucket`] (≤ 20, 21–60, 61–140, > 140).
+
+use std::collections::BTreeMap;
+
+use serde::{Deserialize, Serialize};
+
+use crate::analysis::detect::length_bucket;
+use crate::analysis::Analyzer;
+use crate::input::LangCode;
+
+/// Label of the fallback field in confusion rows.
+pub const FALLBACK_LABEL: &str = "other";
+
+/// The length buckets in increasing order (labels of [`length_bucket`]).
+pub fn buckets() -> [&'static str; 4] {
+    [length_bucket(0), length_bucket(21), length_bucket(61), length_bucket(141)]
+}
+
+/// Accuracy on the sentences of one length bucket.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct BucketFigures {
+    /// The bucket's label.
+    pub bucket: String,
+    /// Sentences in it.
+    pub sentences: usize,
+    /// Routed to their language's field.
+    pub correct: usize,
+    /// `correct / sentences` (`None` for an empty bucket).
+    pub accuracy: Option<f64>,
+}
+
+/// Routing of one set of sentences of one language.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct RoutingFigures {
+    /// Whether the route has a field for the language.
+    pub routable: bool,
+    /// Sentences.
+    pub sentences: usize,
+    /// Routed to their language's field.
+    pub correct: usize,
+    /// `correct / sentences` (`None` without sentences).
+    pub accuracy: Option<f64>,
+    /// Sentences sent to the fallback field.
+    pub to_fallback: usize,
+    /// Per length bucket, in [`buckets`] order (every bucket listed).
+    pub by_length: Vec<BucketFigures>,
+    /// Field label (a language code or [`FALLBACK_LABEL`]) → sentences.
+    pub confusion: BTreeMap<String, usize>,
+}
+
+fn share(num: usize, den: usize) -> Option<f64> {
+    (den > 0).then(|| num as f64 / den as f64)
+}
+
+/// Tally routing decisions of sentences of `language`: each item is a
+/// sentence's length in chars and the language of the field it went to
+/// (`None` = the fallback).
+pub fn tally(
+    language: LangCode,
+    routable: bool,
+    routed: &[(usize, Option<LangCode>)],
+) -> RoutingFigures {
+    let labels = buckets();
+    let mut per_bucket = [(0usize, 0usize); 4];
+    let mut confusion: BTreeMap<String, usize> = BTreeMap::new();
+    let (mut correct, mut to_fallback) = (0, 0);
+    for &(chars, field) in routed {
+        let ok = routable && field == Some(language);
+        correct += usize::from(ok);
+        to_fallback += usize::from(field.is_none());
+        let label = field.map_or(FALLBACK_LABEL.to_string(), |l| l.to_string());
+        *confusion.entry(label).or_insert(0) += 1;
+        let bucket = length_bucket(chars);
+        if let Some(i) = labels.iter().position(|b| *b == bucket) {
+            if let Some(cell) = per_bucket.get_mut(i) {
+                cell.0 += 1;
+                cell.1 += usize::from(ok);
+            }
+        }
+    }
+    let by_length = labels
+        .iter()
+        .zip(per_bucket)
+        .map(|(bucket, (n, ok))| BucketFigures {
+            bucket: bucket.to_string(),
+            sentences: n,
+            correct: ok,
+            accuracy: share(ok, n),
+        })
+        .collect();
+    RoutingFigures {
+        routable,
+        sentences: routed.len(),
+        correct,
+        accuracy: share(correct, routed.len()),
+        to_fallback,
+        by_length,
+        confusion,
+    }
+}
+
+/// Route `texts` of `language` with a routed chain and tally the result;
+/// `None` for a plain chain (it has no route).
+pub fn route_sentences(
+    analyzer: &Analyzer,
+    language: LangCode,
+    texts: &[&str],
+) -> Option<RoutingFigures> {
+    let detector = analyzer.detector()?;
+    let route = analyzer.spec().route()?;
+    let routable = route.languages.contains(&language);
+    let detections = detector.detect_all(texts);
+    let routed: Vec<(usize, Option<LangCode>)> = texts
+        .iter()
+        .zip(&detections)
+        .map(|(text, detection)| {
+            let field = analyzer.field_for_post(None, detection.as_ref());
+            (text.chars().count(), analyzer.fields().get(field).and_then(|f| f.language))
+        })
+        .collect();
+    Some(tally(language, routable, &routed))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::analysis::{builtin_chains, AnalysisContext};
+    use approx::assert_relative_eq;
+
+    fn code(s: &str) -> LangCode {
+        LangCode::parse(s).expect("valid code in test")
+    }
+
+    #[test]
+    fn tally_on_hand_made_decisions() {
+        // Hand-made: six German sentences.
+        //   len 10 → de ✓   len 20 → other ✗      (bucket ≤20: 1/2)
+        //   len 21 → nl ✗   len 60 → de ✓         (bucket 21–60: 1/2)
+        //   len 61 → de ✓                         (bucket 61–140: 1/1)
+        //   len 141 → de ✓                        (bucket >140: 1/1)
+        // accuracy 4/6; fallback 1; confusion de 4, nl 1, other 1.
+        let (de, nl) = (code("de"), code("nl"));
+        let routed = [
+            (10, Some(de)),
+            (20, None),
+            (21, Some(nl)),
+            (60, Some(de)),
+            (61, Some(de)),
+            (141, Some(de)),
+        ];
+        let f = tally(de, true, &routed);
+        assert_eq!((f.sentences, f.correct, f.to_fallback), (6, 4, 1));
+        assert_relative_eq!(f.accuracy.expect("sentences"), 4.0 / 6.0);
+        let buckets: Vec<(&str, usize, usize)> =
+            f.by_length.iter().map(|b| (b.bucket.as_str(), b.sentences, b.correct)).collect();
+        assert_eq!(buckets, [("<=20", 2, 1), ("21-60", 2, 1), ("61-140", 1, 1), (">140", 1, 1)]);
+        let confusion: Vec<(&str, usize)> =
+            f.confusion.iter().map(|(k, v)| (k.as_str(), *v)).collect();
+        assert_eq!(confusion, [("de", 4), ("nl", 1), ("other", 1)]);
+    }
+
+    #[test]
+    fn an_unroutable_language_is_never_correct_and_empty_buckets_have_no_accuracy() {
+        let sv = code("sv");
+        let f = tally(sv, false, &[(30, Some(code("nl"))), (30, None)]);
+        assert!(!f.routable);
+        assert_eq!((f.correct, f.accuracy), (0, Some(0.0)));
+        assert_eq!(f.by_length[0].accuracy, None);
+        assert_eq!(tally(sv, false, &[]).accuracy, None);
+    }
+
+    #[test]
+    fn the_builtin_routed_chain_routes_clear_sentences() {
+        // Hand-written sentences, long enough for any trigram detector.
+        let chains = builtin_chains(code("en")).expect("built-ins parse");
+        let routed = chains.iter().find(|c| c.route().is_some()).expect("a routed built-in");
+        let analyzer = Analyzer::build(routed, &AnalysisContext::default()).expect("builds");
+        let de = [
+            "Der Hafen von Kiel ist im Sommer voller Schiffe und die Fischer verkaufen ihren Fang.",
+            "Morgen früh fahren wir mit dem Zug nach München und besuchen unsere Großeltern dort.",
+        ];
+        let f = route_sentences(&analyzer, code("de"), &de).expect("a routed chain");
+        assert_eq!((f.sentences, f.correct), (2, 2));
+        // Russian is not among the routed languages: not routable.
+        let ru = ["Мы поехали на вокзал рано утром, чтобы успеть на первый поезд в Москву."];
+        let f = route_sentences(&analyzer, code("ru"), &ru).expect("a routed chain");
+        assert!(!f.routable);
+        assert_eq!(f.correct, 0);
+        let plain = chains.iter().find(|c| c.route().is_none()).expect("a plain built-in");
+        let plain = Analyzer::build(plain, &AnalysisContext::default()).expect("builds");
+        assert!(route_sentences(&plain, code("de"), &de).is_none());
+    }
+}

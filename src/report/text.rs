@@ -1,0 +1,515 @@
+//! Shared wording of the reports: number formats, the one-line finding per
+//! compared system and the reindex case, built once as [`Span`]s so that
+//! `report.md` and `report.html` say the same words. Rendering only: every
+//! number comes from the report model (ratios of two model numbers are
+//! formatted for display, never stored).
+
+use crate::bench::compare::ComparisonRow;
+use crate::report::model::{Cost, Report};
+use crate::report::svg::esc;
+
+/// Format a metric value for reading (three decimals; never `-0.000`).
+pub fn fixed(x: f64) -> String {
+    let s = format!("{x:.3}");
+    if s == "-0.000" {
+        "0.000".to_string()
+    } else {
+        s
+    }
+}
+
+/// Format a signed difference (`+0.021`, `−0.004` with a true minus sign).
+pub fn signed(x: f64) -> String {
+    if x < 0.0 && fixed(-x) != "0.000" {
+        format!("−{}", fixed(-x))
+    } else {
+        format!("+{}", fixed(x.max(0.0)))
+    }
+}
+
+/// `p = 0.012`, or `p < 0.001` for very small values.
+pub fn p_equals(p: Option<f64>) -> String {
+    let text = pvalue(p);
+    if text.starts_with('<') {
+        format!("p {text}")
+    } else {
+        format!("p = {text}")
+    }
+}
+
+/// Format a p-value: `< 0.001` below a thousandth, else two significant digits.
+pub fn pvalue(p: Option<f64>) -> String {
+    match p {
+        None => "n/a".to_string(),
+        Some(p) if p < 0.001 => "< 0.001".to_string(),
+        Some(p) if p >= 0.1 => format!("{p:.2}"),
+        Some(p) => format!("{p:.3}"),
+    }
+}
+
+/// Inline text of the reindex case, rendered alike by Markdown and HTML.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Span {
+    /// Plain text.
+    Text(String),
+    /// A name (chain, metric, command): code in both renderings.
+    Code(String),
+    /// Emphasised text.
+    Strong(Vec<Span>),
+}
+
+/// Plain text span.
+pub fn t(s: impl Into<String>) -> Span {
+    Span::Text(s.into())
+}
+
+/// Code span (a name).
+pub fn code(s: impl Into<String>) -> Span {
+    Span::Code(s.into())
+}
+
+/// Render spans as Markdown.
+pub fn spans_markdown(spans: &[Span]) -> String {
+    spans
+        .iter()
+        .map(|s| match s {
+            Span::Text(x) => x.clone(),
+            Span::Code(x) => format!("`{x}`"),
+            Span::Strong(inner) => format!("**{}**", spans_markdown(inner)),
+        })
+        .collect()
+}
+
+/// Render spans as HTML (escaped).
+pub fn spans_html(spans: &[Span]) -> String {
+    spans
+        .iter()
+        .map(|s| match s {
+            Span::Text(x) => esc(x),
+            Span::Code(x) => format!("<code>{}</code>", esc(x)),
+            Span::Strong(inner) => format!("<strong>{}</strong>", spans_html(inner)),
+        })
+        .collect()
+}
+
+/// Whether a smaller value of `metric` is the better one (`unjudged@k`).
+pub fn lower_is_better(metric: &str) -> bool {
+    metric.starts_with("unjudged@")
+}
+
+/// Whether a comparison row shows a difference in the metric's good direction.
+pub fn improves(c: &ComparisonRow) -> bool {
+    if lower_is_better(&c.metric) {
+        c.delta < 0.0
+    } else {
+        c.delta > 0.0
+    }
+}
+
+/// The chain to reindex with: among the significant improvements on the
+/// headline metric, the largest. `None` when no chain is detectably better.
+pub fn recommended<'a>(r: &'a Report, headline: &str) -> Option<&'a ComparisonRow> {
+    let mut best: Option<&ComparisonRow> = None;
+    for c in r.comparisons.iter().filter(|c| c.metric == headline && c.significant && improves(c)) {
+        if best.is_none_or(|b| c.delta.abs() > b.delta.abs()) {
+            best = Some(c);
+        }
+    }
+    best
+}
+
+/// The `unjudged@k` metric the judging-hole figures come from: `unjudged@10`
+/// when measured, else the first `unjudged@k` of the metric list.
+fn holes_metric(r: &Report) -> Option<(usize, &str)> {
+    r.metric_index("unjudged@10")
+        .or_else(|| r.settings.metrics.iter().position(|m| m.starts_with("unjudged@")))
+        .and_then(|i| r.settings.metrics.get(i).map(|m| (i, m.as_str())))
+}
+
+fn mean_of(r: &Report, system: &str, metric: usize) -> Option<f64> {
+    r.summary.iter().find(|s| s.system.as_str() == system)?.metrics.get(metric).map(|m| m.mean)
+}
+
+fn cost_of<'a>(r: &'a Report, system: &str) -> Option<&'a Cost> {
+    r.systems.iter().find(|s| s.name.as_str() == system)?.cost.as_ref()
+}
+
+/// `[0.123, 0.456]` with true minus signs, or `n/a`.
+pub fn interval(lo: Option<f64>, hi: Option<f64>) -> String {
+    match (lo, hi) {
+        (Some(l), Some(h)) => {
+            format!("[{}, {}]", fixed(l).replace('-', "−"), fixed(h).replace('-', "−"))
+        }
+        _ => "n/a".to_string(),
+    }
+}
+
+/// `1 compared system`, `3 compared systems`.
+fn compared(n: usize) -> String {
+    format!("{n} compared system{}", if n == 1 { "" } else { "s" })
+}
+
+/// Bytes for reading (KiB below one MiB).
+pub fn bytes(b: u64) -> String {
+    if b >= 1 << 20 {
+        format!("{:.1} MiB", b as f64 / f64::from(1 << 20))
+    } else {
+        format!("{:.1} KiB", b as f64 / 1024.0)
+    }
+}
+
+/// `a / b` as `0.98×` (a ratio of two model numbers, for display).
+pub fn ratio(a: f64, b: f64) -> String {
+    if b > 0.0 {
+        format!("{:.2}×", a / b)
+    } else {
+        "n/a".to_string()
+    }
+}
+
+fn percent(x: f64) -> String {
+    format!("{:.1}%", x * 100.0)
+}
+
+/// The reindex case as paragraphs: the recommendation (or why there is
+/// none), the gain with its interval and adjusted p, the cost against the
+/// baseline, what it rests on and the judging holes that could change it.
+pub fn reindex_case(r: &Report, headline: &str) -> Vec<Vec<Span>> {
+    let base = r.settings.baseline.as_str();
+    let mut out: Vec<Vec<Span>> = Vec::new();
+    let rows: Vec<&ComparisonRow> = r.comparisons.iter().filter(|c| c.metric == headline).collect();
+    if rows.is_empty() {
+        out.push(vec![
+            Span::Strong(vec![t("Nothing to compare.")]),
+            t(format!(
+                " Only one system was scored on {} queries, so there is no case for or against \
+                 reindexing.",
+                r.counts.queries_evaluated
+            )),
+        ]);
+        return out;
+    }
+    let rests_on = vec![t(format!(
+        "This rests on {} evaluated queries ({} skipped for having no relevant post) and {} \
+         judgments; significance is a two-sided paired randomization test, Holm-adjusted across \
+         {}, at α = {}.",
+        r.counts.queries_evaluated,
+        r.counts.queries_skipped,
+        r.counts.judgments,
+        compared(rows.len()),
+        r.settings.alpha
+    ))];
+    match recommended(r, headline) {
+        Some(c) => {
+            out.push(vec![
+                Span::Strong(vec![
+                    t(if r.command == "run" { "Reindex with " } else { "Switch to " }),
+                    code(c.system.as_str()),
+                    t("."),
+                ]),
+                t(format!(" On {headline} it beats ")),
+                code(base),
+                t(format!(
+                    " by {} (95% CI of the difference {}, {} after Holm; {} queries won, {} lost, \
+                     {} tied).",
+                    signed(c.delta),
+                    interval(c.delta_ci_low, c.delta_ci_high),
+                    p_equals(c.p_holm),
+                    c.wins,
+                    c.losses,
+                    c.ties
+                )),
+            ]);
+            out.push(other_metrics(r, c, headline));
+            out.push(cost_case(r, c.system.as_str(), base));
+            let mut rests = rests_on;
+            if let Some(m) = c.min_detectable {
+                rests.push(t(format!(
+                    " With this query set, differences of about {} or more are detectable.",
+                    fixed(m)
+                )));
+            }
+            out.push(rests);
+            out.push(holes_case(r, Some(c.system.as_str()), base));
+        }
+        None => {
+            out.push(vec![
+                Span::Strong(vec![
+                    t(format!(
+                        "No {} is detectably better than the baseline ",
+                        if r.command == "run" { "chain" } else { "run" }
+                    )),
+                    code(base),
+                    t(format!(" on {headline}.")),
+                ]),
+                t(format!(
+                    " At α = {} with these {} queries {}, so this report does not recommend \
+                     {}: keep ",
+                    r.settings.alpha,
+                    r.counts.queries_evaluated,
+                    if rows.len() == 1 {
+                        "the compared system shows no significant gain".to_string()
+                    } else {
+                        format!("none of the {} shows a significant gain", compared(rows.len()))
+                    },
+                    if r.command == "run" { "reindexing" } else { "a switch" }
+                )),
+                code(base),
+                t("."),
+            ]);
+            let closest = rows.iter().copied().max_by(|a, b| {
+                let (x, y) = if lower_is_better(headline) {
+                    (-a.delta, -b.delta)
+                } else {
+                    (a.delta, b.delta)
+                };
+                x.total_cmp(&y)
+            });
+            let mut p = Vec::new();
+            if let Some(c) = closest {
+                p.push(t("Closest: "));
+                p.push(code(c.system.as_str()));
+                p.push(t(format!(
+                    ", {} (95% CI of the difference {}, {} after Holm){}.",
+                    signed(c.delta),
+                    interval(c.delta_ci_low, c.delta_ci_high),
+                    p_equals(c.p_holm),
+                    c.min_detectable
+                        .map(|m| format!(
+                            "; this query set detects differences of about {} or more",
+                            fixed(m)
+                        ))
+                        .unwrap_or_default()
+                )));
+            }
+            for c in rows.iter().filter(|c| c.significant && !improves(c)) {
+                p.push(t(" "));
+                p.push(code(c.system.as_str()));
+                p.push(t(format!(
+                    " is detectably worse ({}, {} after Holm).",
+                    signed(c.delta),
+                    p_equals(c.p_holm)
+                )));
+            }
+            out.push(p);
+            out.push(rests_on);
+            out.push(holes_case(r, closest.map(|c| c.system.as_str()), base));
+        }
+    }
+    out
+}
+
+/// Where else the recommended chain differs detectably from the baseline.
+fn other_metrics(r: &Report, c: &ComparisonRow, headline: &str) -> Vec<Span> {
+    let others: Vec<&ComparisonRow> = r
+        .comparisons
+        .iter()
+        .filter(|o| o.system == c.system && o.metric != headline && o.significant)
+        .collect();
+    let better: Vec<String> =
+        others.iter().filter(|o| improves(o)).map(|o| o.metric.clone()).collect();
+    let worse: Vec<String> = others
+        .iter()
+        .filter(|o| !improves(o))
+        .map(|o| format!("{} ({}, {} after Holm)", o.metric, signed(o.delta), p_equals(o.p_holm)))
+        .collect();
+    let mut p = vec![t("On the other metrics it is detectably better on ")];
+    p.push(t(if better.is_empty() { "none".to_string() } else { better.join(", ") }));
+    if worse.is_empty() {
+        p.push(t(" and detectably worse on none."));
+    } else {
+        p.push(t(format!(" but detectably worse on {}.", worse.join(", "))));
+    }
+    p
+}
+
+/// Index cost of `system` against the baseline.
+fn cost_case(r: &Report, system: &str, base: &str) -> Vec<Span> {
+    match (cost_of(r, system), cost_of(r, base)) {
+        (Some(c), Some(b)) => vec![
+            t("Cost against "),
+            code(base),
+            t(format!(
+                ": index size {} ({} against {}), vocabulary {} ({} against {} distinct terms), \
+                 {:.1} against {:.1} tokens per post. Build time is wall-clock and varies from \
+                 run to run; it is under Timing.",
+                ratio(c.index_bytes as f64, b.index_bytes as f64),
+                bytes(c.index_bytes),
+                bytes(b.index_bytes),
+                ratio(c.distinct_terms as f64, b.distinct_terms as f64),
+                c.distinct_terms,
+                b.distinct_terms,
+                c.mean_tokens_per_post,
+                b.mean_tokens_per_post
+            )),
+        ],
+        _ => vec![t(
+            "Cost: not measured — these systems were scored from run files, not indexed by this \
+             bench, so index size, vocabulary and build time are unknown.",
+        )],
+    }
+}
+
+/// The judging holes of `system` (the recommended or closest chain) and the baseline.
+fn holes_case(r: &Report, system: Option<&str>, base: &str) -> Vec<Span> {
+    let Some((mi, key)) = holes_metric(r) else {
+        return vec![
+            t("Judging holes: unknown, because no "),
+            code("unjudged@k"),
+            t(" is among the metrics; add "),
+            code("unjudged@10"),
+            t(" to "),
+            code("--metrics"),
+            t(" to see how much of each top 10 was never judged."),
+        ];
+    };
+    let k = key.trim_start_matches("unjudged@");
+    let base_holes = mean_of(r, base, mi).map(percent).unwrap_or_else(|| "n/a".into());
+    let sys_holes = system.and_then(|s| mean_of(r, s, mi).map(|h| (s, h)));
+    let mut p = vec![t(format!("Judging holes ({key}): "))];
+    match sys_holes {
+        Some((s, h)) => {
+            p.push(t(format!("{} of ", percent(h))));
+            p.push(code(s));
+            p.push(t(format!("'s top {k} is unjudged, against {base_holes} of ")));
+            p.push(code(base));
+            p.push(t("'s."));
+        }
+        None => {
+            p.push(t(format!("{base_holes} of ")));
+            p.push(code(base));
+            p.push(t(format!("'s top {k} is unjudged.")));
+        }
+    }
+    p.push(t(
+        " Unjudged posts count as not relevant, and judging them can only raise a system's score",
+    ));
+    match (sys_holes, mean_of(r, base, mi)) {
+        (Some((_, h)), Some(b)) if b > h => {
+            p.push(t(
+                ": the baseline has more holes, so judging them could narrow the difference.",
+            ));
+        }
+        (Some((s, h)), Some(b)) if h > b => {
+            p.push(t(": "));
+            p.push(code(s));
+            p.push(t(" has more holes, so its score is the more likely to be understated."));
+        }
+        _ => p.push(t(".")),
+    }
+    p.push(t(" "));
+    p.push(code(format!("postassay pool --depth {k}")));
+    p.push(t(" gathers the unjudged pairs to judge."));
+    p
+}
+
+/// One sentence per compared system: the overall finding on the headline
+/// metric with its Holm-adjusted p, then the query groups (languages, tags)
+/// where it is detectably better or worse.
+pub fn sentence(r: &Report, c: &ComparisonRow, headline: &str) -> Vec<Span> {
+    let mut out = vec![code(c.system.as_str()), t(" ")];
+    if c.significant {
+        out.push(t(format!("scores {} than ", if c.delta > 0.0 { "higher" } else { "lower" })));
+        out.push(code(c.baseline.as_str()));
+        out.push(t(format!(
+            " on {headline} overall ({}, {} after Holm)",
+            signed(c.delta),
+            p_equals(c.p_holm)
+        )));
+    } else {
+        out.push(t("shows no detectable difference from "));
+        out.push(code(c.baseline.as_str()));
+        out.push(t(format!(
+            " on {headline} overall ({}, {} after Holm{})",
+            signed(c.delta),
+            p_equals(c.p_holm),
+            c.min_detectable
+                .map(|m| format!(
+                    "; this query set detects differences of about {} or more",
+                    fixed(m)
+                ))
+                .unwrap_or_default()
+        )));
+    }
+    let mut better: Vec<Vec<Span>> = Vec::new();
+    let mut worse: Vec<Vec<Span>> = Vec::new();
+    for cell in &r.breakdowns {
+        let Some(cc) =
+            cell.comparisons.iter().find(|x| x.system == c.system && x.metric == headline)
+        else {
+            continue;
+        };
+        if cc.significant {
+            let group = vec![
+                t(format!("{} ", cell.dimension)),
+                code(cell.value.as_str()),
+                t(format!(" ({}, {})", signed(cc.delta), p_equals(cc.p_holm))),
+            ];
+            if cc.delta > 0.0 {
+                better.push(group);
+            } else {
+                worse.push(group);
+            }
+        }
+    }
+    for (label, groups) in [("; better for ", &better), ("; worse for ", &worse)] {
+        if groups.is_empty() {
+            continue;
+        }
+        out.push(t(label));
+        for (i, g) in groups.iter().enumerate() {
+            if i > 0 {
+                out.push(t(", "));
+            }
+            out.extend(g.iter().cloned());
+        }
+    }
+    if better.is_empty() && worse.is_empty() && !r.breakdowns.is_empty() {
+        out.push(t("; no query language or tag group differs detectably"));
+    }
+    out.push(t("."));
+    out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn spans_render_alike_with_escaping() {
+        let p = vec![Span::Strong(vec![t("Reindex with "), code("a<b"), t(".")]), t(" p < 0.001")];
+        assert_eq!(spans_markdown(&p), "**Reindex with `a<b`.** p < 0.001");
+        assert_eq!(
+            spans_html(&p),
+            "<strong>Reindex with <code>a&lt;b</code>.</strong> p &lt; 0.001"
+        );
+    }
+
+    #[test]
+    fn formats() {
+        assert_eq!(signed(-0.0041), "−0.004");
+        assert_eq!(signed(-0.0001), "+0.000");
+        assert_eq!(signed(0.21), "+0.210");
+        assert_eq!(fixed(-0.0002), "0.000");
+        assert_eq!(pvalue(Some(0.0004)), "< 0.001");
+        assert_eq!(p_equals(Some(0.0004)), "p < 0.001");
+        assert_eq!(pvalue(Some(0.0123)), "0.012");
+        assert_eq!(p_equals(Some(0.5)), "p = 0.50");
+        assert_eq!(pvalue(None), "n/a");
+    }
+
+    #[test]
+    fn negative_zero_reads_as_zero() {
+        assert_eq!(fixed(-0.0), "0.000");
+        assert_eq!(fixed(-0.0004), "0.000");
+        assert_eq!(fixed(-0.0005001), "-0.001");
+    }
+
+    #[test]
+    fn ratios_and_percentages() {
+        assert_eq!(ratio(166.0, 200.0), "0.83×");
+        assert_eq!(ratio(1.0, 0.0), "n/a");
+        assert_eq!(percent(0.1492), "14.9%");
+        assert!(lower_is_better("unjudged@10") && !lower_is_better("ndcg@10"));
+    }
+}

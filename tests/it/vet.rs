@@ -1,0 +1,324 @@
+//! `postassay vet` end to end: hand-computed figures on a tiny data
+//! directory (`tests/fixtures/diagnose/data`), the usage errors, and a full
+//! pass over the shared open data when it is present (skipped otherwise).
+
+use std::collections::BTreeMap;
+use std::path::{Path, PathBuf};
+use std::time::Instant;
+
+use crate::util::{fixture, postassay, root, texts};
+
+/// Rows of a CSV output as header → value maps.
+fn rows(path: &Path) -> Vec<BTreeMap<String, String>> {
+    let mut reader = csv::Reader::from_path(path).expect("output CSV exists");
+    let header: Vec<String> = reader.headers().expect("header").iter().map(String::from).collect();
+    reader
+        .records()
+        .map(|r| {
+            let r = r.expect("valid CSV record");
+            header.iter().cloned().zip(r.iter().map(String::from)).collect()
+        })
+        .collect()
+}
+
+fn find<'a>(
+    rows: &'a [BTreeMap<String, String>],
+    keys: &[(&str, &str)],
+) -> &'a BTreeMap<String, String> {
+    rows.iter()
+        .find(|r| keys.iter().all(|(k, v)| r.get(*k).map(String::as_str) == Some(*v)))
+        .unwrap_or_else(|| panic!("no row with {keys:?} in {rows:#?}"))
+}
+
+fn num(row: &BTreeMap<String, String>, key: &str) -> f64 {
+    row[key].parse().unwrap_or_else(|_| panic!("{key} = {:?} is a number", row[key]))
+}
+
+fn tiny_run(extra: &[&str]) -> (tempfile::TempDir, PathBuf) {
+    let tmp = tempfile::tempdir().expect("temp dir");
+    let out = tmp.path().join("out");
+    let data = fixture("diagnose/data");
+    let freqs = fixture("diagnose/freqs.tsv");
+    let mut args = vec![
+        "vet",
+        "--quiet",
+        "--data",
+        data.to_str().expect("UTF-8 path"),
+        "--freq-list",
+        freqs.to_str().expect("UTF-8 path"),
+        "--out",
+        out.to_str().expect("UTF-8 path"),
+    ];
+    args.extend_from_slice(extra);
+    // Run in the temp dir: no demo corpus there, so the list is the only source.
+    let res = postassay(tmp.path(), &args);
+    let (stdout, stderr) = texts(&res);
+    assert_eq!(res.status.code(), Some(0), "stderr: {stderr}");
+    assert!(stdout.is_empty(), "with --out nothing goes to stdout: {stdout}");
+    (tmp, out)
+}
+
+#[test]
+fn conflation_figures_on_a_tiny_lemma_list() {
+    let (_tmp, out) = tiny_run(&["--sections", "conflation"]);
+    let conflation = rows(&out.join("diagnostics-conflation.csv"));
+    // tests/fixtures/diagnose/data/ud/en.lemmas.tsv, by hand: `saw` has two
+    // lemmas (left out), `plenty` has lemma `_` (no lemma). Words W = 8:
+    //   run: runs, running, ran, Run   cat: cats, cat
+    //   relation: relations            relatively: relatively
+    // GDMT = ½·4·3 + ½·2·1 = 7;  GDNT = ½(8² − (16 + 4 + 1 + 1)) = 21.
+    let standard = find(&conflation, &[("chain", "standard")]);
+    assert_eq!(standard["words"], "8");
+    assert_eq!(standard["ambiguous_forms"], "1");
+    assert_eq!(standard["without_lemma"], "1");
+    // standard (lower-casing only): runs, running, ran, run, cats, cat are
+    // six different terms: every desired merge is missed (GUMT = 6 + 1 = 7,
+    // UI = 1), nothing is merged wrongly (OI = 0). Terms per group (4 + 2)/2 = 3.
+    assert_eq!((standard["gdmt"].as_str(), standard["gumt"].as_str()), ("7", "7"));
+    assert_eq!((standard["gdnt"].as_str(), standard["gwmt"].as_str()), ("21", "0"));
+    assert_eq!(num(standard, "ui"), 1.0);
+    assert_eq!(num(standard, "mean_stems_per_group"), 3.0);
+    // stemmed, English Snowball: runs, running, Run → run and ran → ran
+    // (steps 1a/1b of the English algorithm, from memory); cats, cat → cat;
+    // relations → relat (../shared/data/snowball/head/english.tsv) and
+    // relatively → relat (../shared/data/snowball/v2018/english.tsv).
+    // GUMT: run {run: 3, ran: 1} → ½(16 − 10) = 3; UI = 3/7.
+    // GWMT: relat {relation, relatively} → 1; OI = 1/21; SW = (1/21)/(3/7) = 1/9.
+    let stemmed = find(&conflation, &[("chain", "stemmed")]);
+    assert_eq!(stemmed["analysis"], "stemmed (stem(en, current))");
+    assert_eq!((stemmed["gumt"].as_str(), stemmed["gwmt"].as_str()), ("3", "1"));
+    approx::assert_relative_eq!(num(stemmed, "ui"), 3.0 / 7.0);
+    approx::assert_relative_eq!(num(stemmed, "oi"), 1.0 / 21.0);
+    approx::assert_relative_eq!(num(stemmed, "sw"), 1.0 / 9.0);
+    approx::assert_relative_eq!(num(stemmed, "fully_conflated"), 0.5);
+    // The routed chain's English branch stems like `stemmed`.
+    let routed = find(&conflation, &[("chain", "routed")]);
+    assert_eq!(routed["analysis"], "routed (text_en)");
+    assert_eq!(routed["ui"], stemmed["ui"]);
+
+    let md = std::fs::read_to_string(out.join("diagnostics.md")).expect("markdown written");
+    assert!(
+        md.contains("- merged `relat` (2 lemmas): relation: relations; relatively: relatively"),
+        "{md}"
+    );
+    assert!(
+        md.contains("- split `run` (4 words, 2 terms): `run` Run, running, runs; `ran` ran"),
+        "{md}"
+    );
+    assert!(!md.contains("## Routing"), "only the conflation section was asked for");
+}
+
+#[test]
+fn routing_and_segmentation_on_tiny_sets() {
+    let (_tmp, out) = tiny_run(&[]);
+    let routing = rows(&out.join("diagnostics-routing.csv"));
+    // data/ud/en.sentences.tsv: 7, 40, 99 and 173 chars, one per bucket.
+    for (bucket, n) in [("all", "4"), ("<=20", "1"), ("21-60", "1"), ("61-140", "1"), (">140", "1")]
+    {
+        let row = find(&routing, &[("set", "en"), ("bucket", bucket)]);
+        assert_eq!(row["sentences"], n, "{bucket}");
+    }
+    // The three longer sentences are plain English and reach text_en (measured;
+    // whatlang decides). "Thanks!" is too short to matter here either way.
+    let long = ["21-60", "61-140", ">140"];
+    for bucket in long {
+        assert_eq!(
+            find(&routing, &[("set", "en"), ("bucket", bucket)])["correct"],
+            "1",
+            "{bucket}"
+        );
+    }
+    // Russian is not among the routed chain's languages: not routable, never correct.
+    let ru = find(&routing, &[("set", "ru"), ("bucket", "all")]);
+    assert_eq!((ru["collection"].as_str(), ru["routable"].as_str()), ("ud_pud", "no"));
+    assert_eq!((ru["sentences"].as_str(), ru["correct"].as_str()), ("2", "0"));
+    let confusion = rows(&out.join("diagnostics-confusion.csv"));
+    let ru_rows: u32 = confusion
+        .iter()
+        .filter(|r| r["set"] == "ru")
+        .map(|r| r["sentences"].parse::<u32>().expect("count"))
+        .sum();
+    assert_eq!(ru_rows, 2);
+
+    let seg = rows(&out.join("diagnostics-segmentation.csv"));
+    assert_eq!(seg.len(), 1, "one chain with a hashtags step, one gold set, one source");
+    let row = &seg[0];
+    assert_eq!((row["chain"].as_str(), row["gold"].as_str()), ("hashtag", "tiny"));
+    assert!(row["source"].starts_with("list:") && row["source"].ends_with("freqs.tsv"));
+    // Hand-computed with freqs.tsv (a, what, dream, harbour, market):
+    //   whatadream → what a dream (2 boundaries, both right, exact)
+    //   HarbourMarket → Harbour Market (case boundary, exact)
+    //   runit → runit (unknown, kept whole; gold "run it": 1 boundary missed)
+    // exact 2/3; P = 3/3; R = 3/4; F1 = 2·1·0.75/1.75 = 6/7.
+    assert_eq!((row["tags"].as_str(), row["exact"].as_str()), ("3", "2"));
+    approx::assert_relative_eq!(num(row, "exact_accuracy"), 2.0 / 3.0);
+    approx::assert_relative_eq!(num(row, "precision"), 1.0);
+    approx::assert_relative_eq!(num(row, "recall"), 0.75);
+    approx::assert_relative_eq!(num(row, "f1"), 6.0 / 7.0);
+
+    let json: serde_json::Value = serde_json::from_str(
+        &std::fs::read_to_string(out.join("diagnostics.json")).expect("json written"),
+    )
+    .expect("valid JSON");
+    assert_eq!(json["command"], "vet");
+    let roles: Vec<&str> = json["inputs"]
+        .as_array()
+        .expect("inputs")
+        .iter()
+        .filter_map(|i| i["role"].as_str())
+        .collect();
+    assert_eq!(
+        roles,
+        ["lemmas:en", "sentences:ud/en", "sentences:ud_pud/ru", "gold:tiny", "freq-list"]
+    );
+    for input in json["inputs"].as_array().expect("inputs") {
+        assert_eq!(input["sha256"].as_str().map(str::len), Some(64));
+    }
+}
+
+#[test]
+fn markdown_goes_to_stdout_without_out() {
+    let tmp = tempfile::tempdir().expect("temp dir");
+    let data = fixture("diagnose/data");
+    let res = postassay(
+        tmp.path(),
+        &[
+            "vet",
+            "--data",
+            data.to_str().expect("UTF-8"),
+            "--chains",
+            "standard",
+            "--sections",
+            "conflation",
+        ],
+    );
+    let (stdout, stderr) = texts(&res);
+    assert_eq!(res.status.code(), Some(0), "{stderr}");
+    assert!(stdout.starts_with("# Chain diagnostics"), "{stdout}");
+    assert!(
+        stdout.contains("| en | standard | standard | 8 | 2 | 1.0000 | 0 | 0 | 0.0% | 3.00 |"),
+        "{stdout}"
+    );
+    assert!(stderr.contains("postassay: conflation: en"), "progress on stderr: {stderr}");
+    assert_eq!(std::fs::read_dir(tmp.path()).expect("dir").count(), 0, "nothing written");
+}
+
+#[test]
+fn without_data_it_says_what_it_needs() {
+    // Run two levels down in a temp dir, so ../shared/data does not exist.
+    let tmp = tempfile::tempdir().expect("temp dir");
+    let cwd = tmp.path().join("a");
+    std::fs::create_dir_all(&cwd).expect("dir");
+    let res = postassay(&cwd, &["vet"]);
+    let (stdout, stderr) = texts(&res);
+    assert_eq!(res.status.code(), Some(2));
+    assert!(stdout.is_empty());
+    assert!(stderr.contains("no open data: give --data DIR"), "{stderr}");
+    assert!(stderr.contains("ud/LANG.lemmas.tsv"), "{stderr}");
+    // A directory without any data file: exit 2, naming the expected layout.
+    let res = postassay(&cwd, &["vet", "--data", "."]);
+    let (_, stderr) = texts(&res);
+    assert_eq!(res.status.code(), Some(2));
+    assert!(stderr.contains("nothing to diagnose in ."), "{stderr}");
+    let res = postassay(&cwd, &["vet", "--data", ".", "--sections", "stems"]);
+    assert_eq!(res.status.code(), Some(2));
+    assert!(texts(&res).1.contains("unknown section \"stems\""));
+}
+
+#[test]
+fn a_bad_gold_line_is_named_and_nothing_is_written() {
+    let tmp = tempfile::tempdir().expect("temp dir");
+    let data = tmp.path().join("data");
+    std::fs::create_dir_all(data.join("hashtags")).expect("dir");
+    std::fs::write(data.join("hashtags/bad.tsv"), "runit\trun it\nnogold\n").expect("file");
+    let out = tmp.path().join("out");
+    let res = postassay(
+        tmp.path(),
+        &["vet", "--quiet", "--data", "data", "--out", out.to_str().expect("UTF-8")],
+    );
+    let (_, stderr) = texts(&res);
+    assert_eq!(res.status.code(), Some(2));
+    assert!(stderr.contains("bad.tsv:2: expected hashtag<TAB>gold"), "{stderr}");
+    assert!(!out.exists(), "nothing written into --out on failure");
+}
+
+/// The shared open data, when present.
+fn shared_data() -> Option<PathBuf> {
+    let dir = root().join("../shared/data");
+    dir.join("ud").is_dir().then_some(dir)
+}
+
+#[test]
+fn full_pass_over_the_shared_data() {
+    let Some(data) = shared_data() else {
+        eprintln!("skipped: ../shared/data (the shared open data) is not present");
+        return;
+    };
+    let wordfreq = root().join("tests/fixtures/analysis/hashtag/wordfreq_en.tsv");
+    if !wordfreq.is_file() {
+        eprintln!("skipped: tests/fixtures/analysis/hashtag/wordfreq_en.tsv is not present");
+        return;
+    }
+    let tmp = tempfile::tempdir().expect("temp dir");
+    let out = tmp.path().join("out");
+    let started = Instant::now();
+    let res = postassay(
+        &root(),
+        &[
+            "vet",
+            "--quiet",
+            "--data",
+            data.to_str().expect("UTF-8"),
+            "--freq-list",
+            wordfreq.to_str().expect("UTF-8"),
+            "--out",
+            out.to_str().expect("UTF-8"),
+        ],
+    );
+    let seconds = started.elapsed().as_secs_f64();
+    let (_, stderr) = texts(&res);
+    assert_eq!(res.status.code(), Some(0), "{stderr}");
+    eprintln!("vet over the shared data: {seconds:.1} s");
+
+    let conflation = rows(&out.join("diagnostics-conflation.csv"));
+    let routing = rows(&out.join("diagnostics-routing.csv"));
+    for set in ["en", "de", "fr", "es", "it-pud", "pt", "nl", "sv", "ru", "tr"] {
+        let standard = find(&conflation, &[("set", set), ("chain", "standard")]);
+        let stemmed = find(&conflation, &[("set", set), ("chain", "stemmed")]);
+        let all = find(&routing, &[("collection", "ud"), ("set", set), ("bucket", "all")]);
+        eprintln!(
+            "{set:>6}: UI {:.4} → {:.4}, OI {:.2e} → {:.2e}; routed {} {}",
+            num(standard, "ui"),
+            num(stemmed, "ui"),
+            num(standard, "oi"),
+            num(stemmed, "oi"),
+            all["routable"],
+            all["accuracy"],
+        );
+        // Measured properties: each language's own stemmer conflates more
+        // (lower UI) at the price of more wrong merges (higher OI).
+        assert!(num(stemmed, "ui") < num(standard, "ui"), "{set}");
+        assert!(num(stemmed, "oi") > num(standard, "oi"), "{set}");
+        let routable = !matches!(set, "sv" | "ru" | "tr");
+        assert_eq!(all["routable"], if routable { "yes" } else { "no" }, "{set}");
+    }
+    let seg = rows(&out.join("diagnostics-segmentation.csv"));
+    for row in &seg {
+        eprintln!(
+            "{} · {}: exact {:.3}, F1 {:.3}",
+            row["gold"],
+            row["source"],
+            num(row, "exact_accuracy"),
+            num(row, "f1")
+        );
+    }
+    // Measured: the English frequency list beats the demo corpus on every gold set.
+    for row in seg.iter().filter(|r| r["source"].starts_with("list:")) {
+        let corpus = seg
+            .iter()
+            .find(|r| r["gold"] == row["gold"] && r["source"].starts_with("corpus:"))
+            .expect("the demo corpus is a source too");
+        assert!(num(row, "exact_accuracy") > num(corpus, "exact_accuracy"), "{}", row["gold"]);
+    }
+    assert!(seconds < 60.0, "a full pass must take under a minute, took {seconds:.1} s");
+}
