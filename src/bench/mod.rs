@@ -9,6 +9,7 @@
 pub mod compare;
 pub mod detect_cache;
 pub mod explain;
+pub mod moved;
 
 use std::collections::{BTreeMap, BTreeSet};
 use std::io::Read;
@@ -65,6 +66,8 @@ pub struct RunPlan {
     pub chains: Vec<ChainSpec>,
     /// Results kept per query.
     pub depth: usize,
+    /// Leave post texts out of the reports (ids only).
+    pub redact: bool,
     /// Evaluation settings.
     pub options: EvalOptions,
 }
@@ -200,6 +203,36 @@ pub fn run(plan: &RunPlan, progress: &mut dyn FnMut(&str)) -> Result<BenchOutput
         warnings,
     };
     let mut out = assembled.finish(&plan.options)?;
+    let chain_runs = analyzers
+        .iter()
+        .zip(&out.runs)
+        .map(|(analyzer, (_, run))| {
+            let (post_detections, query_detections) = detections.for_analyzer(analyzer);
+            moved::ChainRun { analyzer, run, post_detections, query_detections }
+        })
+        .collect();
+    let headline = out
+        .report
+        .per_query
+        .iter()
+        .map(|s| {
+            s.queries
+                .iter()
+                .filter_map(|q| q.values.first().map(|v| (q.query_id.clone(), *v)))
+                .collect()
+        })
+        .collect();
+    out.report.moved = moved::moved_queries(&moved::MovedInputs {
+        chains: chain_runs,
+        baseline,
+        headline,
+        queries: &queries,
+        posts: &posts,
+        judgments: &judgments,
+        relevant_from: plan.options.eval.relevant_from,
+        redact: plan.redact,
+    });
+    out.report.settings.redact = plan.redact;
     out.report.timing = Timing { total_seconds: started.elapsed().as_secs_f64(), chains: timings };
     Ok(out)
 }
@@ -346,6 +379,7 @@ impl Assembly<'_> {
                 bootstrap_resamples: options.stats.bootstrap_resamples,
                 alpha: options.stats.alpha,
                 depth: self.depth,
+                redact: false,
                 chains: self.chains,
             },
             counts: Counts {
@@ -361,6 +395,7 @@ impl Assembly<'_> {
             comparisons: computed.comparisons,
             breakdowns: computed.breakdowns,
             skipped_queries: self.population.skipped.clone(),
+            moved: Vec::new(),
             warnings,
             timing: Timing::default(),
         };

@@ -19,6 +19,10 @@ pub struct RunArgs {
     /// Results kept per query.
     #[arg(long, value_name = "N", default_value_t = 100)]
     depth: usize,
+    /// Leave post texts out of the reports (post ids only), for reports that
+    /// leave the team.
+    #[arg(long)]
+    redact: bool,
     #[command(flatten)]
     eval: EvalFlags,
 }
@@ -46,6 +50,7 @@ fn plan(args: &RunArgs) -> Result<RunPlan, Error> {
         chain_file: args.chains.chain_file.clone(),
         chains: args.chains.resolve()?,
         depth: args.depth,
+        redact: args.redact,
         options: args.eval.options()?,
     })
 }

@@ -52,6 +52,7 @@ pub fn render(r: &Report) -> String {
     s.push_str("</section>\n");
     scores(&mut s, r);
     against_baseline(&mut s, r, &headline);
+    moved(&mut s, r, &headline);
     breakdowns(&mut s, r, &headline);
     cost(&mut s, r, &headline);
     if !r.skipped_queries.is_empty() {
@@ -233,6 +234,70 @@ fn scores(s: &mut String, r: &Report) {
         s.push_str("</tr>\n");
     }
     s.push_str("</tbody>\n</table></div>\n</section>\n");
+}
+
+/// The queries that moved most, one table per chain, with example posts.
+fn moved(s: &mut String, r: &Report, headline: &str) {
+    if r.moved.is_empty() {
+        return;
+    }
+    let base = esc(r.settings.baseline.as_str());
+    let _ = writeln!(
+        s,
+        "<section id=\"moved\">\n<h2>Queries that moved most</h2>\n<p>Per chain, the queries \
+         whose {} gained or lost most against <code>{base}</code>, each with a relevant post \
+         whose rank moved the same way{}. <code>postassay explain --query Q --doc D</code> \
+         shows the full detail.</p>",
+        esc(headline),
+        if r.settings.redact { " (post texts redacted)" } else { "" }
+    );
+    let rank = |x: Option<usize>| x.map_or_else(|| "–".to_string(), |v| v.to_string());
+    let terms = |t: &[String]| {
+        if t.is_empty() {
+            "(none)".to_string()
+        } else {
+            t.iter().map(|x| format!("<code>{}</code>", esc(x))).collect::<Vec<_>>().join(" ")
+        }
+    };
+    let mut current: Option<&str> = None;
+    for m in &r.moved {
+        if current != Some(m.system.as_str()) {
+            if current.is_some() {
+                s.push_str("</tbody></table></div>\n");
+            }
+            current = Some(m.system.as_str());
+            let sys = esc(m.system.as_str());
+            let _ = writeln!(
+                s,
+                "<h3><code>{sys}</code></h3>\n<div class=\"scroll\"><table>\n<thead><tr>\
+                 <th scope=\"col\">query</th><th scope=\"col\">Δ {}</th>\
+                 <th scope=\"col\">example post</th><th scope=\"col\">grade</th>\
+                 <th scope=\"col\">rank <code>{base}</code> → <code>{sys}</code></th>\
+                 <th scope=\"col\">matched by <code>{base}</code></th>\
+                 <th scope=\"col\">matched by <code>{sys}</code></th></tr></thead>\n<tbody>",
+                esc(headline)
+            );
+        }
+        let post = match (&m.post_id, &m.post_text) {
+            (Some(id), Some(text)) => format!("<code>{}</code> {}", esc(id.as_str()), esc(text)),
+            (Some(id), None) => format!("<code>{}</code>", esc(id.as_str())),
+            _ => "(no relevant post moved)".to_string(),
+        };
+        let _ = writeln!(
+            s,
+            "<tr><td><code>{}</code> {}</td><td>{}</td><td>{post}</td><td>{}</td>\
+             <td>{} → {}</td><td>{}</td><td>{}</td></tr>",
+            esc(m.query_id.as_str()),
+            esc(&m.query_text),
+            signed(m.delta),
+            m.grade.map_or_else(String::new, |g| g.to_string()),
+            rank(m.rank_baseline),
+            rank(m.rank_system),
+            terms(&m.matched_baseline),
+            terms(&m.matched_system)
+        );
+    }
+    s.push_str("</tbody></table></div>\n</section>\n");
 }
 
 /// Per-query differences of `system` against the baseline on metric `mi`,

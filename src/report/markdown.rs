@@ -32,6 +32,7 @@ pub fn render(r: &Report) -> String {
     verdict(&mut s, r, &headline);
     scores(&mut s, r);
     against_baseline(&mut s, r, &headline);
+    moved(&mut s, r, &headline);
     breakdowns(&mut s, r, &headline);
     cost(&mut s, r);
     if !r.skipped_queries.is_empty() {
@@ -133,6 +134,74 @@ fn against_baseline(s: &mut String, r: &Report, headline: &str) {
             c.losses,
             c.ties,
             c.min_detectable.map(fixed).unwrap_or_else(|| "n/a".into())
+        );
+    }
+    s.push('\n');
+}
+
+/// Rank for reading: `12`, or `–` when not retrieved in the top `depth`.
+fn rank(r: Option<usize>) -> String {
+    r.map_or_else(|| "–".to_string(), |r| r.to_string())
+}
+
+/// Terms for reading: `ferri delay`, or `(none)`.
+fn terms(t: &[String]) -> String {
+    if t.is_empty() {
+        "(none)".to_string()
+    } else {
+        t.iter().map(|x| format!("`{x}`")).collect::<Vec<_>>().join(" ")
+    }
+}
+
+/// Markdown table cells cannot hold `|` or line breaks.
+fn cell(text: &str) -> String {
+    text.replace('|', "\\|").replace(['\n', '\r'], " ")
+}
+
+fn moved(s: &mut String, r: &Report, headline: &str) {
+    if r.moved.is_empty() {
+        return;
+    }
+    let _ = writeln!(s, "## Queries that moved most\n");
+    let _ = writeln!(
+        s,
+        "Per chain, the queries whose {headline} gained or lost most against `{}`, each with a \
+         relevant post whose rank moved the same way{}. `postassay explain --query Q --doc D` \
+         shows the full detail.\n",
+        r.settings.baseline,
+        if r.settings.redact { " (post texts redacted)" } else { "" }
+    );
+    let mut current: Option<&str> = None;
+    for m in &r.moved {
+        if current != Some(m.system.as_str()) {
+            if current.is_some() {
+                s.push('\n');
+            }
+            current = Some(m.system.as_str());
+            let _ = writeln!(
+                s,
+                "### `{}`\n\n| query | Δ {headline} | example post | grade | rank `{}` → `{}` | \
+                 matched by `{}` | matched by `{}` |\n|---|---|---|---|---|---|---|",
+                m.system, r.settings.baseline, m.system, r.settings.baseline, m.system
+            );
+        }
+        let post = match (&m.post_id, &m.post_text) {
+            (Some(id), Some(text)) => format!("`{id}` {}", cell(text)),
+            (Some(id), None) => format!("`{id}`"),
+            _ => "(no relevant post moved)".to_string(),
+        };
+        let _ = writeln!(
+            s,
+            "| `{}` {} | {} | {} | {} | {} → {} | {} | {} |",
+            m.query_id,
+            cell(&m.query_text),
+            signed(m.delta),
+            post,
+            m.grade.map_or_else(String::new, |g| g.to_string()),
+            rank(m.rank_baseline),
+            rank(m.rank_system),
+            terms(&m.matched_baseline),
+            terms(&m.matched_system)
         );
     }
     s.push('\n');

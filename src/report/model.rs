@@ -5,6 +5,7 @@
 use serde::{Deserialize, Serialize};
 
 use crate::bench::compare::{BreakdownCell, ComparisonRow, SystemSummary};
+use crate::bench::moved::MovedQuery;
 use crate::ids::{ChainName, QueryId};
 use crate::index::BuildCost;
 
@@ -39,6 +40,10 @@ pub struct Report {
     pub breakdowns: Vec<BreakdownCell>,
     /// Judged queries with no relevant post (not evaluated).
     pub skipped_queries: Vec<QueryId>,
+    /// Per chain, the queries whose headline metric moved most against the
+    /// baseline, each with an example post (`run` only).
+    #[serde(default)]
+    pub moved: Vec<MovedQuery>,
     /// Warnings raised while reading and scoring.
     pub warnings: Vec<String>,
     /// Wall-clock figures; the only part that differs between identical runs.
@@ -88,6 +93,9 @@ pub struct Settings {
     pub alpha: f64,
     /// Results kept per query (`run` only).
     pub depth: Option<usize>,
+    /// Whether post texts were left out of the report.
+    #[serde(default)]
+    pub redact: bool,
     /// Chain definitions (`run` only), as data.
     pub chains: Vec<serde_json::Value>,
 }

@@ -1,0 +1,195 @@
+//! The queries that moved most: for each chain against the baseline, the few
+//! queries whose headline metric gained or lost most, each with one example
+//! post — a relevant post whose rank changed in the same direction — its rank
+//! under both chains and the query terms it matched under each. This is the
+//! "see an example of why" of the report; `postassay explain` shows the full
+//! detail for any pair.
+
+use std::collections::{BTreeMap, BTreeSet};
+
+use serde::{Deserialize, Serialize};
+
+use crate::analysis::detect::Detection;
+use crate::analysis::Analyzer;
+use crate::ids::{ChainName, PostId, QueryId};
+use crate::input::{Judgments, Post, Query, Run};
+use crate::search;
+
+/// Queries shown per chain and direction (gains, losses).
+pub const MOVED_PER_SIDE: usize = 3;
+
+/// One query that moved, with an example post.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
+pub struct MovedQuery {
+    /// The compared chain.
+    pub system: ChainName,
+    /// The query.
+    pub query_id: QueryId,
+    /// The query text.
+    pub query_text: String,
+    /// Headline metric of the chain minus the baseline's on this query.
+    pub delta: f64,
+    /// A relevant post whose rank moved the same way, when there is one.
+    pub post_id: Option<PostId>,
+    /// Its text (absent when the report is redacted).
+    pub post_text: Option<String>,
+    /// Its grade.
+    pub grade: Option<u32>,
+    /// Its rank under the baseline (absent: not in the top `depth`).
+    pub rank_baseline: Option<usize>,
+    /// Its rank under the chain.
+    pub rank_system: Option<usize>,
+    /// Query terms the post matched under the baseline.
+    pub matched_baseline: Vec<String>,
+    /// Query terms the post matched under the chain.
+    pub matched_system: Vec<String>,
+}
+
+/// A chain as it ran: its analyzer, run and the language detections it used.
+pub struct ChainRun<'a> {
+    /// The built chain.
+    pub analyzer: &'a Analyzer,
+    /// Its ranked results.
+    pub run: &'a Run,
+    /// Detected language per post (empty for unrouted chains).
+    pub post_detections: &'a [Option<Detection>],
+    /// Detected language per query (empty for unrouted chains).
+    pub query_detections: &'a [Option<Detection>],
+}
+
+/// Everything the example search reads.
+pub struct MovedInputs<'a> {
+    /// Chains in report order.
+    pub chains: Vec<ChainRun<'a>>,
+    /// Index of the baseline in `chains`.
+    pub baseline: usize,
+    /// Headline metric value per chain, per evaluated query.
+    pub headline: Vec<BTreeMap<QueryId, f64>>,
+    /// The queries.
+    pub queries: &'a [Query],
+    /// The posts.
+    pub posts: &'a [Post],
+    /// The judgments.
+    pub judgments: &'a Judgments,
+    /// Relevance threshold.
+    pub relevant_from: u32,
+    /// Leave post texts out.
+    pub redact: bool,
+}
+
+/// Pick the queries that moved most for every non-baseline chain.
+pub fn moved_queries(inputs: &MovedInputs<'_>) -> Vec<MovedQuery> {
+    let Some(base) = inputs.chains.get(inputs.baseline) else { return Vec::new() };
+    let Some(base_values) = inputs.headline.get(inputs.baseline) else { return Vec::new() };
+    let query_pos: BTreeMap<&QueryId, usize> =
+        inputs.queries.iter().enumerate().map(|(i, q)| (&q.id, i)).collect();
+    let post_pos: BTreeMap<&PostId, usize> =
+        inputs.posts.iter().enumerate().map(|(i, p)| (&p.id, i)).collect();
+    let mut out = Vec::new();
+    for (ci, chain) in inputs.chains.iter().enumerate() {
+        if ci == inputs.baseline {
+            continue;
+        }
+        let Some(values) = inputs.headline.get(ci) else { continue };
+        let mut deltas: Vec<(f64, &QueryId)> = values
+            .iter()
+            .filter_map(|(q, v)| base_values.get(q).map(|b| (v - b, q)))
+            .filter(|(d, _)| d.abs() > 1e-12)
+            .collect();
+        deltas.sort_by(|a, b| b.0.total_cmp(&a.0).then_with(|| a.1.cmp(b.1)));
+        let gains = deltas.iter().filter(|d| d.0 > 0.0).take(MOVED_PER_SIDE);
+        let losses = deltas.iter().rev().filter(|d| d.0 < 0.0).take(MOVED_PER_SIDE);
+        for &(delta, qid) in gains.chain(losses) {
+            let Some(query) = query_pos.get(qid).and_then(|&i| inputs.queries.get(i)) else {
+                continue;
+            };
+            let qi = query_pos.get(qid).copied().unwrap_or(0);
+            let mut m = MovedQuery {
+                system: chain.analyzer.name().clone(),
+                query_id: qid.clone(),
+                query_text: query.text.clone(),
+                delta,
+                post_id: None,
+                post_text: None,
+                grade: None,
+                rank_baseline: None,
+                rank_system: None,
+                matched_baseline: Vec::new(),
+                matched_system: Vec::new(),
+            };
+            if let Some((post, grade, rb, rs)) = example_post(inputs, base, chain, qid, delta) {
+                let pi = post_pos.get(&post.id).copied().unwrap_or(0);
+                m.matched_baseline = matched(base, query, qi, post, pi);
+                m.matched_system = matched(chain, query, qi, post, pi);
+                m.post_text = (!inputs.redact).then(|| post.text.clone());
+                m.post_id = Some(post.id.clone());
+                m.grade = Some(grade);
+                m.rank_baseline = rb;
+                m.rank_system = rs;
+            }
+            out.push(m);
+        }
+    }
+    out
+}
+
+/// The relevant post whose rank moved most in the direction of `delta`
+/// (highest grade first, then the largest move, then post id).
+fn example_post<'a>(
+    inputs: &MovedInputs<'a>,
+    base: &ChainRun<'_>,
+    chain: &ChainRun<'_>,
+    query: &QueryId,
+    delta: f64,
+) -> Option<(&'a Post, u32, Option<usize>, Option<usize>)> {
+    let judged = inputs.judgments.for_query(query)?;
+    let rank = |run: &Run, post: &PostId| {
+        run.by_query
+            .get(query)
+            .and_then(|docs| docs.iter().position(|d| &d.doc == post))
+            .map(|r| r + 1)
+    };
+    let mut best: Option<(u32, usize, &PostId, Option<usize>, Option<usize>)> = None;
+    for (post, &grade) in judged {
+        if grade < inputs.relevant_from {
+            continue;
+        }
+        let (rb, rs) = (rank(base.run, post), rank(chain.run, post));
+        // Not retrieved counts as one past the deepest rank.
+        let far = usize::MAX / 2;
+        let (b, s) = (rb.unwrap_or(far), rs.unwrap_or(far));
+        let moved = if delta > 0.0 { b.saturating_sub(s) } else { s.saturating_sub(b) };
+        if moved == 0 {
+            continue;
+        }
+        let moved = moved.min(far);
+        let better = match &best {
+            None => true,
+            Some((g, mv, id, _, _)) => {
+                (grade, moved, std::cmp::Reverse(post)) > (*g, *mv, std::cmp::Reverse(*id))
+            }
+        };
+        if better {
+            best = Some((grade, moved, post, rb, rs));
+        }
+    }
+    let (grade, _, id, rb, rs) = best?;
+    let post = inputs.posts.iter().find(|p| &p.id == id)?;
+    Some((post, grade, rb, rs))
+}
+
+/// Query terms of `chain` that the post contains in the field it is indexed in.
+fn matched(chain: &ChainRun<'_>, query: &Query, qi: usize, post: &Post, pi: usize) -> Vec<String> {
+    let a = chain.analyzer;
+    let qdet = chain.query_detections.get(qi).and_then(Option::as_ref);
+    let pdet = chain.post_detections.get(pi).and_then(Option::as_ref);
+    let slot = a.field_for_post(post.lang, pdet);
+    let field = a.fields().get(slot).map(|f| f.key.as_str()).unwrap_or_default();
+    let post_terms: BTreeSet<String> =
+        search::analyze_query(a, &[slot], &post.text).into_iter().map(|t| t.text).collect();
+    search::analyze_query(a, &a.fields_for_query(query.lang, qdet), &query.text)
+        .into_iter()
+        .filter(|t| t.field == field && post_terms.contains(&t.text))
+        .map(|t| t.text)
+        .collect()
+}
