@@ -133,8 +133,17 @@ pub fn moved_queries(inputs: &MovedInputs<'_>) -> Vec<MovedQuery> {
     out
 }
 
+/// A relevant post whose rank moved, as a candidate example.
+struct Candidate<'a> {
+    grade: u32,
+    moved: usize,
+    post: &'a PostId,
+    rank_baseline: Option<usize>,
+    rank_system: Option<usize>,
+}
+
 /// The relevant post whose rank moved most in the direction of `delta`
-/// (highest grade first, then the largest move, then post id).
+/// (highest grade first, then the largest move, then the smallest post id).
 fn example_post<'a>(
     inputs: &MovedInputs<'a>,
     base: &ChainRun<'_>,
@@ -149,33 +158,29 @@ fn example_post<'a>(
             .and_then(|docs| docs.iter().position(|d| &d.doc == post))
             .map(|r| r + 1)
     };
-    let mut best: Option<(u32, usize, &PostId, Option<usize>, Option<usize>)> = None;
+    // Not retrieved counts as farther than any rank.
+    let far = usize::MAX / 2;
+    let mut best: Option<Candidate<'_>> = None;
     for (post, &grade) in judged {
         if grade < inputs.relevant_from {
             continue;
         }
-        let (rb, rs) = (rank(base.run, post), rank(chain.run, post));
-        // Not retrieved counts as one past the deepest rank.
-        let far = usize::MAX / 2;
-        let (b, s) = (rb.unwrap_or(far), rs.unwrap_or(far));
+        let (rank_baseline, rank_system) = (rank(base.run, post), rank(chain.run, post));
+        let (b, s) = (rank_baseline.unwrap_or(far), rank_system.unwrap_or(far));
         let moved = if delta > 0.0 { b.saturating_sub(s) } else { s.saturating_sub(b) };
         if moved == 0 {
             continue;
         }
-        let moved = moved.min(far);
-        let better = match &best {
-            None => true,
-            Some((g, mv, id, _, _)) => {
-                (grade, moved, std::cmp::Reverse(post)) > (*g, *mv, std::cmp::Reverse(*id))
-            }
-        };
+        let better = best.as_ref().is_none_or(|c| {
+            (grade, moved, std::cmp::Reverse(post)) > (c.grade, c.moved, std::cmp::Reverse(c.post))
+        });
         if better {
-            best = Some((grade, moved, post, rb, rs));
+            best = Some(Candidate { grade, moved, post, rank_baseline, rank_system });
         }
     }
-    let (grade, _, id, rb, rs) = best?;
-    let post = inputs.posts.iter().find(|p| &p.id == id)?;
-    Some((post, grade, rb, rs))
+    let c = best?;
+    let post = inputs.posts.iter().find(|p| &p.id == c.post)?;
+    Some((post, c.grade, c.rank_baseline, c.rank_system))
 }
 
 /// Query terms of `chain` that the post contains in the field it is indexed in.
