@@ -116,7 +116,7 @@ pub fn compare(
     settings: &StatSettings,
 ) -> Comparisons {
     let all: Vec<QueryId> = evaluated_ids(systems);
-    let summaries = summarise(systems, metrics, &all, settings);
+    let summaries = summarise(systems, metrics, &all, Some(settings));
     let comparisons = compare_subset(systems, baseline, metrics, &all, settings);
     let breakdowns = match queries {
         Some(qs) => breakdown(systems, baseline, metrics, &all, qs, settings),
@@ -142,11 +142,13 @@ fn mean(v: &[f64]) -> f64 {
     stats::mean(v).unwrap_or(0.0)
 }
 
+/// Each system's mean per metric over `ids`, with bootstrap intervals when
+/// `settings` is given (breakdown cells show means only).
 fn summarise(
     systems: &[(ChainName, &SystemScores)],
     metrics: &[Metric],
     ids: &[QueryId],
-    settings: &StatSettings,
+    settings: Option<&StatSettings>,
 ) -> Vec<SystemSummary> {
     systems
         .iter()
@@ -158,8 +160,9 @@ fn summarise(
                 .enumerate()
                 .map(|(m, metric)| {
                     let values = column(scores, m, ids);
-                    let ci =
-                        stats::bootstrap_ci(&values, settings.bootstrap_resamples, settings.seed);
+                    let ci = settings.and_then(|st| {
+                        stats::bootstrap_ci(&values, st.bootstrap_resamples, st.seed)
+                    });
                     MetricSummary {
                         metric: metric.key(),
                         mean: mean(&values),
@@ -256,7 +259,7 @@ fn breakdown(
                 value,
                 queries: ids.len(),
                 too_small,
-                systems: summarise_means(systems, metrics, &ids),
+                systems: summarise(systems, metrics, &ids, None),
                 comparisons,
             });
         }
@@ -264,27 +267,101 @@ fn breakdown(
     cells
 }
 
-/// Means only (no intervals) for breakdown cells.
-fn summarise_means(
-    systems: &[(ChainName, &SystemScores)],
-    metrics: &[Metric],
-    ids: &[QueryId],
-) -> Vec<SystemSummary> {
-    systems
-        .iter()
-        .map(|(name, scores)| SystemSummary {
-            system: name.clone(),
-            queries: ids.len(),
-            metrics: metrics
-                .iter()
-                .enumerate()
-                .map(|(m, metric)| MetricSummary {
-                    metric: metric.key(),
-                    mean: mean(&column(scores, m, ids)),
-                    ci_low: None,
-                    ci_high: None,
-                })
-                .collect(),
-        })
-        .collect()
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::eval::parse_metric_list;
+    use crate::input::LangCode;
+
+    fn scores(metrics: &[Metric], rows: &[(&str, [f64; 2])]) -> SystemScores {
+        SystemScores {
+            metrics: metrics.to_vec(),
+            per_query: rows.iter().map(|(q, v)| (QueryId::from(*q), v.to_vec())).collect(),
+            warnings: Vec::new(),
+        }
+    }
+
+    fn query(id: &str, lang: &str, tags: &[&str]) -> Query {
+        Query {
+            id: QueryId::from(id),
+            text: id.to_string(),
+            lang: LangCode::parse(lang),
+            tags: tags.iter().map(|t| t.to_string()).collect(),
+        }
+    }
+
+    #[test]
+    fn rows_follow_system_then_metric_order_with_holm_within_a_metric() {
+        let metrics = parse_metric_list("p@1,mrr").unwrap();
+        let base = scores(&metrics, &[("q1", [0.0, 0.5]), ("q2", [0.0, 0.5]), ("q3", [1.0, 1.0])]);
+        let a = scores(&metrics, &[("q1", [1.0, 1.0]), ("q2", [1.0, 1.0]), ("q3", [1.0, 1.0])]);
+        let b = scores(&metrics, &[("q1", [0.0, 0.5]), ("q2", [1.0, 1.0]), ("q3", [0.0, 0.5])]);
+        let systems = vec![
+            (ChainName::from("base"), &base),
+            (ChainName::from("a"), &a),
+            (ChainName::from("b"), &b),
+        ];
+        let out = compare(&systems, 0, &metrics, None, &StatSettings::default());
+        let keys: Vec<(String, String)> =
+            out.comparisons.iter().map(|r| (r.system.to_string(), r.metric.clone())).collect();
+        assert_eq!(
+            keys,
+            [("a", "p@1"), ("a", "mrr"), ("b", "p@1"), ("b", "mrr")]
+                .map(|(s, m)| (s.to_string(), m.to_string()))
+        );
+        // a vs base on p@1: differences (1, 1, 0); delta = 2/3. Exact sign-flip
+        // test over 2^3 assignments (Fisher 1935): |mean| ≥ 2/3 for the two
+        // assignments with both non-zero signs equal (q3's sign is free: ×2)
+        // → 4/8 = 0.5. b vs base on p@1: (0, 1, −1), mean 0 → p = 1.
+        let a_p1 = &out.comparisons[0];
+        assert!((a_p1.delta - 2.0 / 3.0).abs() < 1e-12);
+        assert_eq!(a_p1.p_randomization, Some(0.5));
+        assert_eq!((a_p1.wins, a_p1.losses, a_p1.ties), (2, 0, 1));
+        // Holm over m = 2 systems: sorted p (0.5, 1.0) → (min(1, 2·0.5), max(1, 1·1)).
+        assert_eq!(a_p1.p_holm, Some(1.0));
+        assert_eq!(out.comparisons[2].p_randomization, Some(1.0));
+        assert!(!a_p1.significant);
+        // Summaries: mean of base p@1 = 1/3, interval from the bootstrap.
+        assert!((out.summaries[0].metrics[0].mean - 1.0 / 3.0).abs() < 1e-12);
+        assert!(out.summaries[0].metrics[0].ci_low.is_some());
+        assert!(out.breakdowns.is_empty(), "no queries file, no breakdowns");
+    }
+
+    #[test]
+    fn breakdowns_by_language_and_tag_mark_small_cells() {
+        let metrics = parse_metric_list("p@1,mrr").unwrap();
+        let rows: Vec<(String, [f64; 2])> =
+            (1..=6).map(|i| (format!("q{i}"), [f64::from(i % 2), 1.0])).collect();
+        let rows_ref: Vec<(&str, [f64; 2])> = rows.iter().map(|(q, v)| (q.as_str(), *v)).collect();
+        let base = scores(&metrics, &rows_ref);
+        let sys = scores(&metrics, &rows_ref);
+        let queries: Vec<Query> = (1..=6)
+            .map(|i| {
+                let tags: &[&str] = if i <= 2 { &["short", "short"] } else { &[] };
+                query(&format!("q{i}"), if i <= 5 { "en" } else { "de" }, tags)
+            })
+            .collect();
+        let systems = vec![(ChainName::from("base"), &base), (ChainName::from("s"), &sys)];
+        let out = compare(&systems, 0, &metrics, Some(&queries), &StatSettings::default());
+        let cells: Vec<(String, String, usize, bool)> = out
+            .breakdowns
+            .iter()
+            .map(|c| (c.dimension.clone(), c.value.clone(), c.queries, c.too_small))
+            .collect();
+        assert_eq!(
+            cells,
+            [
+                ("lang".to_string(), "de".to_string(), 1, true),
+                ("lang".to_string(), "en".to_string(), 5, false),
+                ("tag".to_string(), "short".to_string(), 2, true),
+            ]
+        );
+        // The tested cell compares the identical systems: delta 0, p = 1.
+        let en = &out.breakdowns[1];
+        assert_eq!(en.comparisons.len(), 2);
+        assert_eq!(en.comparisons[0].delta, 0.0);
+        assert_eq!(en.comparisons[0].p_randomization, Some(1.0));
+        assert!(out.breakdowns[0].comparisons.is_empty());
+        assert_eq!(en.systems[0].metrics[0].ci_low, None, "cells show means only");
+    }
 }
