@@ -114,6 +114,9 @@ fn header(s: &mut String, r: &Report, headline: &str) {
     if !r.comparisons.is_empty() {
         s.push_str(" · <a href=\"#against-baseline\">Against the baseline</a>");
     }
+    if !r.moved.is_empty() {
+        s.push_str(" · <a href=\"#moved\">Queries that moved most</a>");
+    }
     if r.breakdowns.iter().any(|c| c.dimension == "lang") {
         s.push_str(" · <a href=\"#by-language\">By query language</a>");
     }
