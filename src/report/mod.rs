@@ -31,12 +31,20 @@ pub fn to_json(report: &Report) -> Result<String> {
 }
 
 /// Write `bytes` to `path` atomically: a temporary sibling file, flushed and
-/// synced, then renamed over the target.
+/// synced, then renamed over the target. The file gets the permissions an
+/// ordinary new file would (0666 less the umask).
 pub fn write_atomic(path: &Path, bytes: &[u8]) -> Result<()> {
     let dir = path.parent().filter(|p| !p.as_os_str().is_empty()).unwrap_or(Path::new("."));
-    let mut tmp = tempfile::Builder::new()
-        .prefix(".postassay-")
-        .suffix(".tmp")
+    let mut builder = tempfile::Builder::new();
+    builder.prefix(".postassay-").suffix(".tmp");
+    // Temporary files are private (0600) by default; an output file is an
+    // ordinary file, readable as the user's umask allows.
+    #[cfg(unix)]
+    {
+        use std::os::unix::fs::PermissionsExt;
+        builder.permissions(std::fs::Permissions::from_mode(0o666));
+    }
+    let mut tmp = builder
         .tempfile_in(dir)
         .map_err(|e| Error::io(dir, e))?;
     tmp.write_all(bytes).map_err(|e| Error::io(path, e))?;

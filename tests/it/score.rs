@@ -133,6 +133,14 @@ fn score_outputs_follow_the_contract() {
     for f in ["report.json", "report.md"] {
         assert!(out.join(f).is_file(), "{f}");
     }
+    // Outputs are ordinary files, not private temporaries (assumes the
+    // usual umask 022 of CI runners and login shells).
+    #[cfg(unix)]
+    {
+        use std::os::unix::fs::PermissionsExt;
+        let mode = std::fs::metadata(out.join("summary.csv")).unwrap().permissions().mode();
+        assert_eq!(mode & 0o644, 0o644, "mode {mode:o}");
+    }
     // Written atomically: no temporary file is left behind.
     let leftovers: Vec<_> = std::fs::read_dir(&out)
         .unwrap()
