@@ -5,6 +5,11 @@
 //!
 //! Language detection runs once per post (and once per query) for each
 //! distinct detector configuration, never once per chain.
+//!
+//! With [`RunPlan::diagnostics`] (`run --vet`), `run` also diagnoses its
+//! chains on open linguistic data through [`crate::diagnose`] (a sibling on
+//! top of `analysis`), after the inputs are read and before any index is
+//! built, and stores the result in the report model.
 
 pub mod compare;
 pub mod detect_cache;
@@ -22,6 +27,7 @@ use self::detect_cache::DetectCache;
 use crate::analysis::detect::{Detection, LangDetector};
 use crate::analysis::hashtag::WordFreqs;
 use crate::analysis::{AnalysisContext, Analyzer, ChainSpec};
+use crate::diagnose::{self, ChainUnderTest, DiagnosePlan, Diagnostics, FreqSource, Sections};
 use crate::error::{Error, Result};
 use crate::eval::{self, EvalSettings, Gain, Metric, SystemScores};
 use crate::ids::{ChainName, QueryId};
@@ -70,6 +76,19 @@ pub struct RunPlan {
     pub redact: bool,
     /// Evaluation settings.
     pub options: EvalOptions,
+    /// Diagnose the chains on open data too (`run --vet`).
+    pub diagnostics: Option<RunDiagnostics>,
+}
+
+/// How `run --vet` diagnoses the chains it runs: every section
+/// (conflation, routing, segmentation) on the chains exactly as indexed,
+/// with the run's own corpus as the segmenter's word-frequency source.
+#[derive(Debug, Clone)]
+pub struct RunDiagnostics {
+    /// The open-data directory (layout in [`crate::diagnose::data`]).
+    pub data: PathBuf,
+    /// Worst offenders and misses kept per result.
+    pub top: usize,
 }
 
 /// What `postassay score` does.
@@ -113,6 +132,10 @@ pub fn run(plan: &RunPlan, progress: &mut dyn FnMut(&str)) -> Result<BenchOutput
         queries.len(),
         judgments.len()
     ));
+    let diagnostics = match &plan.diagnostics {
+        Some(settings) => Some(diagnose_chains(plan, settings, progress)?),
+        None => None,
+    };
 
     let ctx = AnalysisContext {
         word_freqs: if plan.chains.iter().any(ChainSpec::needs_word_freqs) {
@@ -233,8 +256,31 @@ pub fn run(plan: &RunPlan, progress: &mut dyn FnMut(&str)) -> Result<BenchOutput
         redact: plan.redact,
     });
     out.report.settings.redact = plan.redact;
+    out.report.diagnostics = diagnostics;
     out.report.timing = Timing { total_seconds: started.elapsed().as_secs_f64(), chains: timings };
     Ok(out)
+}
+
+/// The diagnostics of `run --vet`: the run's chains as indexed (the
+/// built-in `stemmed` keeps the run's one stemming language, unlike `vet`,
+/// which gives each language its own), every section, word frequencies
+/// learned from the run's corpus as `run` learns them.
+fn diagnose_chains(
+    plan: &RunPlan,
+    settings: &RunDiagnostics,
+    progress: &mut dyn FnMut(&str),
+) -> Result<Diagnostics> {
+    let diagnose_plan = DiagnosePlan {
+        data: settings.data.clone(),
+        chains: plan.chains.iter().cloned().map(ChainUnderTest::Fixed).collect(),
+        sections: Sections::all(),
+        languages: None,
+        freq_sources: vec![FreqSource::Corpus(plan.corpus.clone())],
+        // The chain file is already among the report's inputs.
+        chain_file: None,
+        top: settings.top,
+    };
+    diagnose::run(&diagnose_plan, progress)
 }
 
 /// Score existing runs against judgments.
@@ -396,6 +442,7 @@ impl Assembly<'_> {
             breakdowns: computed.breakdowns,
             skipped_queries: self.population.skipped.clone(),
             moved: Vec::new(),
+            diagnostics: None,
             warnings,
             timing: Timing::default(),
         };

@@ -212,3 +212,35 @@ impl ChainFlags {
         }
     }
 }
+
+/// The open-data directory of `vet --data` and `run --vet-data` when the
+/// flag is not given (relative to the working directory), if it exists.
+pub const DEFAULT_DATA: &str = "../shared/data";
+
+/// Worst offenders and misses kept per diagnostics result, by default.
+pub const DEFAULT_TOP: usize = 3;
+
+/// The open-data directory for diagnostics: `given` (named `flag` in
+/// messages), else [`DEFAULT_DATA`] when it exists. A missing directory is a
+/// usage error that says what the directory must hold.
+pub fn resolve_data_dir(given: Option<&Path>, flag: &str) -> Result<PathBuf, Error> {
+    let data = match given {
+        Some(d) => d.to_path_buf(),
+        None if Path::new(DEFAULT_DATA).is_dir() => PathBuf::from(DEFAULT_DATA),
+        None => {
+            return Err(Error::usage(format!(
+                "no open data: give {flag} DIR, a directory with ud/LANG.lemmas.tsv (conflation), \
+                 ud/LANG.sentences.tsv and ud_pud/LANG.sentences.tsv (routing) and \
+                 hashtags/NAME.tsv (hashtag segmentation); the default {DEFAULT_DATA} does not exist"
+            )))
+        }
+    };
+    if !data.is_dir() {
+        return Err(Error::usage(format!(
+            "{flag} {}: expected a directory of open data, found {}",
+            data.display(),
+            if data.exists() { "a file" } else { "nothing" }
+        )));
+    }
+    Ok(data)
+}

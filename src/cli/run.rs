@@ -1,14 +1,19 @@
-//! `postassay run`: the whole bench over chains.
+//! `postassay run`: the whole bench over chains; with `--vet`, also the
+//! chains' diagnostics on open data (as `postassay vet` computes them),
+//! stored in the report.
 
+use std::path::PathBuf;
 use std::process::ExitCode;
 
 use clap::Args;
 
-use postassay::bench::{self, RunPlan};
+use postassay::bench::{self, RunDiagnostics, RunPlan};
 use postassay::error::Error;
 use postassay::report;
 
-use super::common::{check_out_dir, ChainFlags, EvalFlags, InputFlags};
+use super::common::{
+    check_out_dir, resolve_data_dir, ChainFlags, EvalFlags, InputFlags, DEFAULT_TOP,
+};
 
 #[derive(Debug, Args)]
 pub struct RunArgs {
@@ -23,6 +28,15 @@ pub struct RunArgs {
     /// leave the team.
     #[arg(long)]
     redact: bool,
+    /// Also diagnose the chains on open linguistic data, as `postassay vet`
+    /// does (conflation, routing, hashtag segmentation with this corpus's
+    /// word frequencies), and add a Diagnostics section to the reports.
+    #[arg(long)]
+    vet: bool,
+    /// Directory of open data for --vet (layout as `vet --data`) [default:
+    /// ../shared/data when it exists].
+    #[arg(long, value_name = "DIR", requires = "vet")]
+    vet_data: Option<PathBuf>,
     #[command(flatten)]
     eval: EvalFlags,
 }
@@ -52,5 +66,13 @@ fn plan(args: &RunArgs) -> Result<RunPlan, Error> {
         depth: args.depth,
         redact: args.redact,
         options: args.eval.options()?,
+        diagnostics: if args.vet {
+            Some(RunDiagnostics {
+                data: resolve_data_dir(args.vet_data.as_deref(), "--vet-data")?,
+                top: DEFAULT_TOP,
+            })
+        } else {
+            None
+        },
     })
 }

@@ -13,12 +13,7 @@ use postassay::diagnose::{self, render, DiagnosePlan, FreqSource, Sections};
 use postassay::error::Error;
 use postassay::input::LangCode;
 
-use super::common::check_out_dir;
-use super::common::DEMO_CORPUS;
-
-/// The data directory used when `--data` is not given (relative to the
-/// working directory), if it exists.
-pub const DEFAULT_DATA: &str = "../shared/data";
+use super::common::{check_out_dir, resolve_data_dir, DEFAULT_TOP, DEMO_CORPUS};
 
 #[derive(Debug, Args)]
 pub struct VetArgs {
@@ -53,7 +48,7 @@ pub struct VetArgs {
     #[arg(long, value_name = "FILE")]
     freq_list: Vec<PathBuf>,
     /// Worst offenders and misses listed per result.
-    #[arg(long, value_name = "N", default_value_t = 3)]
+    #[arg(long, value_name = "N", default_value_t = DEFAULT_TOP)]
     top: usize,
     /// Directory for diagnostics.md, diagnostics.json and the CSVs (created
     /// when missing). Without it, the Markdown goes to stdout.
@@ -98,17 +93,7 @@ pub fn execute(args: VetArgs) -> anyhow::Result<ExitCode> {
 }
 
 fn plan(args: &VetArgs) -> Result<DiagnosePlan, Error> {
-    let data = match &args.data {
-        Some(d) => d.clone(),
-        None if Path::new(DEFAULT_DATA).is_dir() => PathBuf::from(DEFAULT_DATA),
-        None => {
-            return Err(Error::usage(format!(
-                "no open data: give --data DIR, a directory with ud/LANG.lemmas.tsv (conflation), \
-                 ud/LANG.sentences.tsv and ud_pud/LANG.sentences.tsv (routing) and \
-                 hashtags/NAME.tsv (hashtag segmentation); the default {DEFAULT_DATA} does not exist"
-            )))
-        }
-    };
+    let data = resolve_data_dir(args.data.as_deref(), "--data")?;
     let sections = Sections::parse(&args.sections)?;
     let languages = args.langs.as_ref().map(|list| {
         list.split(',').map(str::trim).filter(|s| !s.is_empty()).map(String::from).collect()

@@ -9,14 +9,20 @@
 //! uses fixed precision: 4 decimals for UI, 3 significant digits in
 //! scientific notation for OI and SW (their values are small: pairs across
 //! concepts vastly outnumber pairs within), one decimal for percentages.
+//!
+//! The three main tables are built once as a [`Table`] of plain-text cells
+//! ([`conflation_table`], [`routing_table`], [`segmentation_table`]), so
+//! `diagnostics.md` and the Diagnostics section of `postassay run --vet`'s
+//! `report.md` and `report.html` show the same figures in the same words.
 
 use std::fmt::Write as _;
 use std::path::{Path, PathBuf};
 
 use super::conflation::ConflationFigures;
 use super::routing::{buckets, FALLBACK_LABEL};
-use super::{Diagnostics, RoutingResult};
+use super::{ConflationResult, Diagnostics, RoutingResult, SegmentationResult};
 use crate::error::{Error, Result};
+use crate::ids::ChainName;
 use crate::input::format_shortest;
 use crate::report::write_atomic;
 
@@ -248,6 +254,183 @@ fn cell(text: &str) -> String {
     text.replace('|', "\\|").replace('`', "'").replace('\n', " ")
 }
 
+/// One cell of a [`Table`]: plain text (each rendering escapes it) and,
+/// for a share the model holds (routing accuracy), that share, which a
+/// graphical rendering may draw as a bar.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Cell {
+    /// The text shown.
+    pub text: String,
+    /// The share in [0, 1] the text shows, when it is one.
+    pub share: Option<f64>,
+}
+
+impl Cell {
+    fn text(text: impl Into<String>) -> Cell {
+        Cell { text: text.into(), share: None }
+    }
+}
+
+/// A table of diagnostics, built once and rendered as Markdown
+/// ([`Table::markdown`]) or HTML (by `report::html`).
+#[derive(Debug, Clone, PartialEq)]
+pub struct Table {
+    /// Column headings.
+    pub header: Vec<String>,
+    /// Whether each column holds numbers (right-aligned).
+    pub numeric: Vec<bool>,
+    /// Rows, one cell per column.
+    pub rows: Vec<Vec<Cell>>,
+}
+
+impl Table {
+    /// A Markdown table (cells escaped), ending with a newline.
+    pub fn markdown(&self) -> String {
+        let mut s = String::new();
+        let _ = writeln!(
+            s,
+            "| {} |",
+            self.header.iter().map(|h| cell(h)).collect::<Vec<_>>().join(" | ")
+        );
+        s.push('|');
+        for numeric in &self.numeric {
+            s.push_str(if *numeric { "--:|" } else { "---|" });
+        }
+        s.push('\n');
+        for row in &self.rows {
+            let cells: Vec<String> = row.iter().map(|c| cell(&c.text)).collect();
+            let _ = writeln!(s, "| {} |", cells.join(" | "));
+        }
+        s
+    }
+}
+
+/// The conflation table: one row per lemma list and chain, in the order of
+/// `results`.
+pub fn conflation_table(results: &[ConflationResult]) -> Table {
+    let header =
+        ["set", "chain", "analysis", "words", "groups 2+", "UI", "OI", "SW", "whole", "terms"];
+    let rows = results
+        .iter()
+        .map(|r| {
+            let head = [r.set.clone(), r.chain.to_string()];
+            let rest: Vec<String> = match &r.figures {
+                Some(f) => vec![
+                    r.analysis.clone(),
+                    r.words.to_string(),
+                    f.multi_word_groups.to_string(),
+                    fixed(f.understemming, 4),
+                    scientific(f.overstemming),
+                    scientific(f.stemming_weight),
+                    percent(f.fully_conflated),
+                    fixed(f.mean_stems_per_group, 2),
+                ],
+                None => {
+                    let why = r.note.as_deref().unwrap_or("not measured");
+                    let mut rest = vec![why.to_string(), r.words.to_string()];
+                    rest.extend(std::iter::repeat_n("–".to_string(), 6));
+                    rest
+                }
+            };
+            head.into_iter().chain(rest).map(Cell::text).collect()
+        })
+        .collect();
+    Table {
+        header: header.map(String::from).to_vec(),
+        numeric: header.iter().enumerate().map(|(i, _)| i >= 3).collect(),
+        rows,
+    }
+}
+
+/// Routing results grouped by chain, chains in report order.
+pub fn routing_by_chain(results: &[RoutingResult]) -> Vec<(&ChainName, Vec<&RoutingResult>)> {
+    let mut out: Vec<(&ChainName, Vec<&RoutingResult>)> = Vec::new();
+    for r in results {
+        match out.iter_mut().find(|(chain, _)| **chain == r.chain) {
+            Some((_, rows)) => rows.push(r),
+            None => out.push((&r.chain, vec![r])),
+        }
+    }
+    out
+}
+
+/// One routed chain's table: per sentence set, overall accuracy, accuracy
+/// (sentences) per length bucket and the share sent to the fallback field.
+pub fn routing_table(rows: &[&RoutingResult]) -> Table {
+    let labels = buckets();
+    let mut header: Vec<String> =
+        ["data", "set", "sentences", "accuracy"].map(String::from).to_vec();
+    header.extend(labels.iter().map(|b| b.replace("<=", "≤ ")));
+    header.push("to fallback".to_string());
+    let numeric = header.iter().enumerate().map(|(i, _)| i >= 2).collect();
+    let rows = rows
+        .iter()
+        .map(|r| {
+            let f = &r.figures;
+            let mut row = vec![
+                Cell::text(r.collection.clone()),
+                Cell::text(r.set.clone()),
+                Cell::text(f.sentences.to_string()),
+                if f.routable {
+                    Cell { text: percent(f.accuracy), share: f.accuracy }
+                } else {
+                    Cell::text("not routed")
+                },
+            ];
+            for b in &f.by_length {
+                row.push(if b.sentences == 0 {
+                    Cell::text("–")
+                } else if f.routable {
+                    Cell {
+                        text: format!("{} ({})", percent(b.accuracy), b.sentences),
+                        share: b.accuracy,
+                    }
+                } else {
+                    Cell::text(format!("– ({})", b.sentences))
+                });
+            }
+            // Display arithmetic only: a share of two model counts.
+            let share = (f.sentences > 0).then(|| f.to_fallback as f64 / f.sentences as f64);
+            row.push(Cell::text(percent(share)));
+            row
+        })
+        .collect();
+    Table { header, numeric, rows }
+}
+
+/// The segmentation table: one row per chain, gold set and frequency
+/// source, in the order of `results`.
+pub fn segmentation_table(results: &[SegmentationResult]) -> Table {
+    let header =
+        ["chain", "gold set", "frequencies", "words", "tags", "exact", "P", "R", "F1", "unaligned"];
+    let rows = results
+        .iter()
+        .map(|r| {
+            let f = &r.figures;
+            [
+                r.chain.to_string(),
+                r.gold.clone(),
+                r.source.clone(),
+                r.source_words.to_string(),
+                f.tags.to_string(),
+                percent(f.exact_accuracy),
+                fixed(f.precision, 3),
+                fixed(f.recall, 3),
+                fixed(f.f1, 3),
+                f.unaligned.to_string(),
+            ]
+            .into_iter()
+            .map(Cell::text)
+            .collect()
+        })
+        .collect();
+    Table {
+        header: header.map(String::from).to_vec(),
+        numeric: header.iter().enumerate().map(|(i, _)| i >= 3).collect(),
+        rows,
+    }
+}
+
 /// `diagnostics.md`.
 pub fn markdown(d: &Diagnostics) -> String {
     let mut s = String::new();
@@ -293,42 +476,7 @@ fn conflation_md(s: &mut String, d: &Diagnostics) {
          groups of 2+ words: *whole* = share conflated to one term sequence, *terms* = mean \
          distinct term sequences per group.\n"
     );
-    let _ = writeln!(
-        s,
-        "| set | chain | analysis | words | groups 2+ | UI | OI | SW | whole | terms |"
-    );
-    let _ = writeln!(s, "|---|---|---|--:|--:|--:|--:|--:|--:|--:|");
-    for r in &d.conflation {
-        match &r.figures {
-            Some(f) => {
-                let _ = writeln!(
-                    s,
-                    "| {} | {} | {} | {} | {} | {} | {} | {} | {} | {} |",
-                    r.set,
-                    r.chain,
-                    cell(&r.analysis),
-                    r.words,
-                    f.multi_word_groups,
-                    fixed(f.understemming, 4),
-                    scientific(f.overstemming),
-                    scientific(f.stemming_weight),
-                    percent(f.fully_conflated),
-                    fixed(f.mean_stems_per_group, 2),
-                );
-            }
-            None => {
-                let why = r.note.as_deref().unwrap_or("not measured");
-                let _ = writeln!(
-                    s,
-                    "| {} | {} | {} | {} | – | – | – | – | – | – |",
-                    r.set,
-                    r.chain,
-                    cell(why),
-                    r.words
-                );
-            }
-        }
-    }
+    s.push_str(&conflation_table(&d.conflation).markdown());
     s.push('\n');
     let with_examples: Vec<_> = d
         .conflation
@@ -414,35 +562,9 @@ fn routing_md(s: &mut String, d: &Diagnostics) {
          list cannot be routed correctly and is marked *not routed*. Length buckets in \
          characters; cells show accuracy (sentences).\n"
     );
-    let labels = buckets();
-    let mut chains: Vec<&str> = d.routing.iter().map(|r| r.chain.as_str()).collect();
-    chains.dedup();
-    for chain in chains {
-        let rows: Vec<&RoutingResult> =
-            d.routing.iter().filter(|r| r.chain.as_str() == chain).collect();
+    for (chain, rows) in routing_by_chain(&d.routing) {
         let _ = writeln!(s, "### `{chain}`\n");
-        let _ = write!(s, "| data | set | sentences | accuracy |");
-        for b in labels {
-            let _ = write!(s, " {} |", b.replace("<=", "≤ "));
-        }
-        let _ = writeln!(s, " to fallback |");
-        let _ = writeln!(s, "|---|---|--:|--:|--:|--:|--:|--:|--:|");
-        for r in &rows {
-            let f = &r.figures;
-            let accuracy = if f.routable { percent(f.accuracy) } else { "not routed".to_string() };
-            let _ = write!(s, "| {} | {} | {} | {} |", r.collection, r.set, f.sentences, accuracy);
-            for b in &f.by_length {
-                if b.sentences == 0 {
-                    let _ = write!(s, " – |");
-                } else if f.routable {
-                    let _ = write!(s, " {} ({}) |", percent(b.accuracy), b.sentences);
-                } else {
-                    let _ = write!(s, " – ({}) |", b.sentences);
-                }
-            }
-            let share = (f.sentences > 0).then(|| f.to_fallback as f64 / f.sentences as f64);
-            let _ = writeln!(s, " {} |", percent(share));
-        }
+        s.push_str(&routing_table(&rows).markdown());
         s.push('\n');
         confusion_md(s, &rows);
     }
@@ -502,28 +624,7 @@ fn segmentation_md(s: &mut String, d: &Diagnostics) {
          accepted segmentation; *unaligned* = tags whose gold spells other letters (left \
          out of P/R).\n"
     );
-    let _ = writeln!(
-        s,
-        "| chain | gold set | frequencies | words | tags | exact | P | R | F1 | unaligned |"
-    );
-    let _ = writeln!(s, "|---|---|---|--:|--:|--:|--:|--:|--:|--:|");
-    for r in &d.segmentation {
-        let f = &r.figures;
-        let _ = writeln!(
-            s,
-            "| {} | {} | {} | {} | {} | {} | {} | {} | {} | {} |",
-            r.chain,
-            cell(&r.gold),
-            cell(&r.source),
-            r.source_words,
-            f.tags,
-            percent(f.exact_accuracy),
-            fixed(f.precision, 3),
-            fixed(f.recall, 3),
-            fixed(f.f1, 3),
-            f.unaligned,
-        );
-    }
+    s.push_str(&segmentation_table(&d.segmentation).markdown());
     s.push('\n');
     let misses: Vec<_> = d.segmentation.iter().filter(|r| !r.figures.errors.is_empty()).collect();
     if misses.is_empty() {
@@ -629,6 +730,37 @@ mod tests {
             confusion.lines().skip(1).collect::<Vec<_>>(),
             ["routed,ud,en,en,en,1", "routed,ud,en,en,other,1"]
         );
+    }
+
+    #[test]
+    fn tables_escape_cells_and_align_numbers() {
+        let t = Table {
+            header: vec!["a|b".into(), "n".into()],
+            numeric: vec![false, true],
+            rows: vec![vec![Cell::text("x`y"), Cell::text("3")]],
+        };
+        assert_eq!(t.markdown(), "| a\\|b | n |\n|---|--:|\n| x'y | 3 |\n");
+    }
+
+    #[test]
+    fn routing_tables_carry_the_model_shares_per_chain() {
+        let mut d = sample();
+        let mut other = d.routing[0].clone();
+        other.chain = ChainName::from("other");
+        let mut second = d.routing[0].clone();
+        second.set = "de".into();
+        d.routing.extend([other, second]);
+        let grouped = routing_by_chain(&d.routing);
+        let names: Vec<(&str, usize)> =
+            grouped.iter().map(|(c, rows)| (c.as_str(), rows.len())).collect();
+        assert_eq!(names, [("routed", 2), ("other", 1)], "report order, sets gathered");
+        let table = routing_table(&grouped[0].1);
+        assert_eq!(table.header.len(), 9);
+        assert_eq!(table.numeric, [false, false, true, true, true, true, true, true, true]);
+        // Two sentences: 10 chars → en (right), 80 chars → fallback (wrong).
+        let shares: Vec<Option<f64>> = table.rows[0].iter().map(|c| c.share).collect();
+        assert_eq!(shares, [None, None, None, Some(0.5), Some(1.0), None, Some(0.0), None, None]);
+        assert_eq!(table.rows[0][4].text, "100.0% (1)");
     }
 
     #[test]

@@ -21,6 +21,9 @@ use std::collections::BTreeMap;
 use std::fmt::Write;
 
 use crate::bench::compare::{BreakdownCell, ComparisonRow, MIN_BREAKDOWN_QUERIES};
+use crate::diagnose::render::{
+    conflation_table, routing_by_chain, routing_table, segmentation_table, Table,
+};
 use crate::report::model::Report;
 use crate::report::svg::{self, esc, Bar, Estimate, Panel, Point, Series};
 use crate::report::text::{
@@ -55,6 +58,7 @@ pub fn render(r: &Report) -> String {
     moved(&mut s, r, &headline);
     breakdowns(&mut s, r, &headline);
     cost(&mut s, r, &headline);
+    diagnostics(&mut s, r);
     if !r.skipped_queries.is_empty() {
         let ids: Vec<String> =
             r.skipped_queries.iter().map(|q| format!("<code>{}</code>", esc(q.as_str()))).collect();
@@ -125,6 +129,9 @@ fn header(s: &mut String, r: &Report, headline: &str) {
     }
     if r.systems.iter().any(|x| x.cost.is_some()) {
         s.push_str(" · <a href=\"#cost\">Cost</a>");
+    }
+    if r.diagnostics.is_some() {
+        s.push_str(" · <a href=\"#diagnostics\">Diagnostics</a>");
     }
     s.push_str(
         " · <a href=\"#inputs\">Inputs</a> · <a href=\"#timing\">Timing</a></nav>\n</header>\n",
@@ -663,6 +670,109 @@ fn cost(s: &mut String, r: &Report, headline: &str) {
     s.push_str("</tbody>\n</table></div>\n</section>\n");
 }
 
+/// The chains' diagnostics on open data (`run --vet`), the same tables as
+/// `report.md`'s. Routing accuracies carry a bar across their cell (0 to
+/// 100% of its width), so the climb with sentence length shows at a glance
+/// on one common scale, with the number beside it.
+fn diagnostics(s: &mut String, r: &Report) {
+    let Some(d) = &r.diagnostics else { return };
+    s.push_str(
+        "<section id=\"diagnostics\">\n<h2>Diagnostics</h2>\n<p>The chains of this run, exactly \
+         as indexed, on open linguistic data (<code>--vet</code>). <code>postassay vet</code> \
+         shows the worst offenders and where sentences were routed.</p>\n",
+    );
+    if !d.conflation.is_empty() {
+        s.push_str(
+            "<h3>Conflation against lemma classes</h3>\n<p>Paice (SIGIR 1994): UI = share of \
+             pairs of forms of one lemma the chain leaves apart, OI = share of pairs of \
+             different lemmas it merges (both: lower is better), SW = OI / UI. Over lemmas with \
+             2+ forms: <em>whole</em> = share conflated to one term sequence, <em>terms</em> = \
+             mean distinct term sequences.</p>\n",
+        );
+        diagnostics_table(s, &conflation_table(&d.conflation));
+    }
+    for (chain, rows) in routing_by_chain(&d.routing) {
+        let _ = writeln!(
+            s,
+            "<h3>Routing by length: <code>{}</code></h3>\n<p>Sentences of known language routed \
+             like posts without a declared language; correct = the field of their own language. \
+             Accuracy (sentences) per length in characters, with a <span class=\"box\" \
+             style=\"background:{}\"></span>bar across the cell from 0 to 100%; \
+             <em>not routed</em>: a language the route does not list.</p>",
+            esc(chain.as_str()),
+            tint(svg::BETTER, BAR_TINT)
+        );
+        diagnostics_table(s, &routing_table(&rows));
+    }
+    if !d.segmentation.is_empty() {
+        s.push_str(
+            "<h3>Hashtag segmentation</h3>\n<p>Gold hashtags through each chain up to its \
+             <code>hashtags</code> step. <em>exact</em> = share of tags split as the gold; P, R, \
+             F1 = word-boundary precision, recall and F1; <em>frequencies</em> = where the \
+             segmenter's word frequencies come from.</p>\n",
+        );
+        diagnostics_table(s, &segmentation_table(&d.segmentation));
+    }
+    if !d.notes.is_empty() {
+        s.push_str("<p>Notes:</p>\n<ul>\n");
+        for n in &d.notes {
+            let _ = writeln!(s, "<li>{}</li>", esc(n));
+        }
+        s.push_str("</ul>\n");
+    }
+    s.push_str(
+        "<p>Data files read:</p>\n<div class=\"scroll\"><table>\n<thead><tr><th scope=\"col\">role</th>\
+         <th scope=\"col\">path</th><th scope=\"col\">SHA-256</th></tr></thead>\n<tbody>\n",
+    );
+    for f in &d.inputs {
+        let _ = writeln!(
+            s,
+            "<tr><td>{}</td><td><code>{}</code></td><td><code class=\"hash\">{}</code></td></tr>",
+            esc(&f.role),
+            esc(&f.path),
+            esc(&f.sha256)
+        );
+    }
+    s.push_str("</tbody>\n</table></div>\n</section>\n");
+}
+
+/// How strongly accuracy bars are tinted (light enough for black text).
+const BAR_TINT: f64 = 0.3;
+
+/// One diagnostics table; a cell holding a share gets a bar of that width.
+fn diagnostics_table(s: &mut String, t: &Table) {
+    s.push_str("<div class=\"scroll\"><table>\n<thead><tr>");
+    for h in &t.header {
+        let _ = write!(s, "<th scope=\"col\">{}</th>", esc(h));
+    }
+    s.push_str("</tr></thead>\n<tbody>\n");
+    let bar = tint(svg::BETTER, BAR_TINT);
+    for row in &t.rows {
+        s.push_str("<tr>");
+        for (i, cell) in row.iter().enumerate() {
+            let class =
+                if t.numeric.get(i).copied().unwrap_or(false) { " class=\"num\"" } else { "" };
+            match cell.share.filter(|v| v.is_finite()) {
+                Some(share) => {
+                    // Pixel scaling only: the share as a percentage of the cell's width.
+                    let width = format!("{:.1}%", 100.0 * share.clamp(0.0, 1.0));
+                    let _ = write!(
+                        s,
+                        "<td{class} style=\"background:linear-gradient(90deg, {bar} {width}, \
+                         transparent {width})\">{}</td>",
+                        esc(&cell.text)
+                    );
+                }
+                None => {
+                    let _ = write!(s, "<td{class}>{}</td>", esc(&cell.text));
+                }
+            }
+        }
+        s.push_str("</tr>\n");
+    }
+    s.push_str("</tbody>\n</table></div>\n");
+}
+
 fn inputs(s: &mut String, r: &Report) {
     let st = &r.settings;
     let _ = writeln!(
@@ -857,6 +967,28 @@ pre { font-size: 12px; background: #f7f7f7; padding: 8px; overflow-x: auto; }
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::diagnose::render::Cell;
+
+    #[test]
+    fn diagnostics_tables_escape_and_draw_shares_as_bars() {
+        let t = Table {
+            header: vec!["set".into(), "accuracy".into()],
+            numeric: vec![false, true],
+            rows: vec![vec![
+                Cell { text: "<en>".into(), share: None },
+                Cell { text: "25.0%".into(), share: Some(0.25) },
+            ]],
+        };
+        let mut s = String::new();
+        diagnostics_table(&mut s, &t);
+        // #0072B2 at 30%: 255 − 255·0.3 = 178.5 → b3; 255 − 141·0.3 = 212.7 → d5;
+        // 255 − 77·0.3 = 231.9 → e8.
+        assert!(s.contains(
+            "<tr><td>&lt;en&gt;</td><td class=\"num\" style=\"background:linear-gradient(90deg, \
+             #b3d5e8 25.0%, transparent 25.0%)\">25.0%</td></tr>"
+        ), "{s}");
+        assert!(s.contains("<th scope=\"col\">accuracy</th>"));
+    }
 
     #[test]
     fn tints_mix_with_white() {

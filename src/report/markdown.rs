@@ -5,6 +5,9 @@
 use std::fmt::Write;
 
 use crate::bench::compare::BreakdownCell;
+use crate::diagnose::render::{
+    conflation_table, routing_by_chain, routing_table, segmentation_table,
+};
 use crate::report::model::Report;
 use crate::report::text::{
     bytes, fixed, interval, pvalue, reindex_case, sentence, signed, spans_markdown,
@@ -35,6 +38,7 @@ pub fn render(r: &Report) -> String {
     moved(&mut s, r, &headline);
     breakdowns(&mut s, r, &headline);
     cost(&mut s, r);
+    diagnostics(&mut s, r);
     if !r.skipped_queries.is_empty() {
         let _ = writeln!(s, "## Skipped queries\n");
         let ids: Vec<String> = r.skipped_queries.iter().map(|q| format!("`{q}`")).collect();
@@ -289,6 +293,66 @@ fn cost(s: &mut String, r: &Report) {
                 fields.join(", ")
             );
         }
+    }
+    s.push('\n');
+}
+
+/// The chains' diagnostics on open data (`run --vet`): compact tables of
+/// conflation, routing by length and hashtag segmentation, shared with
+/// `diagnostics.md` (the offenders and confusion matrices stay there).
+fn diagnostics(s: &mut String, r: &Report) {
+    let Some(d) = &r.diagnostics else { return };
+    let _ = writeln!(s, "## Diagnostics\n");
+    let _ = writeln!(
+        s,
+        "The chains of this run, exactly as indexed, on open linguistic data (`--vet`). \
+         `postassay vet` shows the worst offenders and where sentences were routed.\n"
+    );
+    if !d.conflation.is_empty() {
+        let _ = writeln!(s, "### Conflation against lemma classes\n");
+        let _ = writeln!(
+            s,
+            "Paice (SIGIR 1994): UI = share of pairs of forms of one lemma the chain leaves \
+             apart, OI = share of pairs of different lemmas it merges (both: lower is better), \
+             SW = OI / UI. Over lemmas with 2+ forms: *whole* = share conflated to one term \
+             sequence, *terms* = mean distinct term sequences.\n"
+        );
+        s.push_str(&conflation_table(&d.conflation).markdown());
+        s.push('\n');
+    }
+    for (chain, rows) in routing_by_chain(&d.routing) {
+        let _ = writeln!(s, "### Routing by length: `{chain}`\n");
+        let _ = writeln!(
+            s,
+            "Sentences of known language routed like posts without a declared language; \
+             correct = the field of their own language. Accuracy (sentences) per length in \
+             characters; *not routed*: a language the route does not list.\n"
+        );
+        s.push_str(&routing_table(&rows).markdown());
+        s.push('\n');
+    }
+    if !d.segmentation.is_empty() {
+        let _ = writeln!(s, "### Hashtag segmentation\n");
+        let _ = writeln!(
+            s,
+            "Gold hashtags through each chain up to its `hashtags` step. *exact* = share of \
+             tags split as the gold; P, R, F1 = word-boundary precision, recall and F1; \
+             *frequencies* = where the segmenter's word frequencies come from.\n"
+        );
+        s.push_str(&segmentation_table(&d.segmentation).markdown());
+        s.push('\n');
+    }
+    if !d.notes.is_empty() {
+        let _ = writeln!(s, "Notes:\n");
+        for n in &d.notes {
+            let _ = writeln!(s, "- {}", n.replace('\n', " "));
+        }
+        s.push('\n');
+    }
+    let _ = writeln!(s, "Data files read:\n\n| role | file | SHA-256 |\n|---|---|---|");
+    for i in &d.inputs {
+        let path = cell(&i.path).replace('`', "'");
+        let _ = writeln!(s, "| {} | `{path}` | `{}` |", cell(&i.role), i.sha256);
     }
     s.push('\n');
 }

@@ -44,6 +44,11 @@ pub struct Report {
     /// baseline, each with an example post (`run` only).
     #[serde(default)]
     pub moved: Vec<MovedQuery>,
+    /// Diagnostics of the chains on open linguistic data (`run --vet`
+    /// only): conflation, routing and hashtag segmentation, with the SHA-256
+    /// of every data file read. Absent from `report.json` without `--vet`.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub diagnostics: Option<crate::diagnose::Diagnostics>,
     /// Warnings raised while reading and scoring.
     pub warnings: Vec<String>,
     /// Wall-clock figures; the only part that differs between identical runs.

@@ -8,6 +8,7 @@ mod html;
 mod judge;
 mod pool;
 mod run;
+mod run_vet;
 mod score;
 mod tokens;
 mod util;
