@@ -4,12 +4,13 @@
 //! value (no interval, no test) is an empty field.
 
 use crate::error::Result;
+use crate::input::format_shortest;
 use crate::report::model::Report;
 
-/// Shortest round-trip decimal form of an f64 (Rust's `Display` for f64
-/// prints the shortest digits that parse back to the same value).
+/// Shortest form of an f64 that parses back to the same value (the same
+/// writer as `runs/NAME.csv`: [`format_shortest`]).
 pub fn number(x: f64) -> String {
-    format!("{x}")
+    format_shortest(x)
 }
 
 fn opt(x: Option<f64>) -> String {
@@ -106,12 +107,13 @@ mod tests {
     #[test]
     fn numbers_round_trip_in_shortest_form() {
         // Shortest round-trip representation (formats.md).
-        for x in [0.1, 1.0 / 3.0, 0.0, 1.0, 2.5e-10, 0.6309297535714575] {
+        for x in [0.1, 1.0 / 3.0, 0.0, 1.0, 2.5e-10, 0.6309297535714575, 1e-300] {
             let s = number(x);
             assert_eq!(s.parse::<f64>().unwrap(), x);
         }
         assert_eq!(number(0.1), "0.1");
         assert_eq!(number(1.0), "1");
         assert_eq!(number(0.6309297535714575), "0.6309297535714575");
+        assert_eq!(number(2.5e-10), "2.5e-10");
     }
 }
