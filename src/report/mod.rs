@@ -44,9 +44,7 @@ pub fn write_atomic(path: &Path, bytes: &[u8]) -> Result<()> {
         use std::os::unix::fs::PermissionsExt;
         builder.permissions(std::fs::Permissions::from_mode(0o666));
     }
-    let mut tmp = builder
-        .tempfile_in(dir)
-        .map_err(|e| Error::io(dir, e))?;
+    let mut tmp = builder.tempfile_in(dir).map_err(|e| Error::io(dir, e))?;
     tmp.write_all(bytes).map_err(|e| Error::io(path, e))?;
     tmp.as_file().sync_all().map_err(|e| Error::io(path, e))?;
     tmp.persist(path).map_err(|e| Error::io(path, e.error))?;
