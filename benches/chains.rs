@@ -15,12 +15,17 @@
 //!   cache), added to the routed build.
 //!
 //! Machines are noisy, so the figures to keep are the ratios to the default
-//! build measured in the same run. Each build is repeated (round robin) and
-//! the fastest repeat is kept.
+//! build measured in the same run: each chain's build follows its own
+//! default build, in several rounds, and the table shows the median ratio
+//! and its range. The analysis table also prints a digest of every token, to
+//! check that an optimisation changed no output.
 //!
 //! Run: `cargo bench --bench chains` (200 000 posts). Environment:
 //! `POSTASSAY_BENCH_POSTS=N` (posts; the reference figures use 1 000 000),
-//! `POSTASSAY_BENCH_REPEATS=N` (repeats per build, default 3).
+//! `POSTASSAY_BENCH_REPEATS=N` (build rounds, default 3),
+//! `POSTASSAY_BENCH_PROFILE=NAME` (only analyse with one chain, `default`
+//! for tantivy's, or only detect with `detect`, for a profiler). DEVELOPERS.md
+//! ("Benchmarks") explains how to read the output.
 
 use std::collections::HashSet;
 use std::hint::black_box;
@@ -36,6 +41,7 @@ use postassay::index::ChainIndex;
 use postassay::input::{LangCode, Post};
 use rand::{Rng, SeedableRng};
 use rand_chacha::ChaCha8Rng;
+use sha2::{Digest, Sha256};
 use tantivy::schema::{IndexRecordOption, NumericOptions, Schema, TextFieldIndexing, TextOptions};
 use tantivy::tokenizer::{
     LowerCaser, RemoveLongFilter, SimpleTokenizer, TextAnalyzer, TokenStream,
@@ -55,6 +61,9 @@ const PARALLEL_INDEXING_FROM: usize = 50_000;
 
 /// Indexing memory budget of `ChainIndex::build` (same writer settings).
 const WRITER_BUDGET_BYTES: usize = 120_000_000;
+
+/// Distinct hashtags of each language.
+const TAGS_PER_LANGUAGE: usize = 5_000;
 
 /// Seed of the corpus generator.
 const SEED: u64 = 0x706f_7374;
@@ -107,31 +116,37 @@ fn main() {
     let detector = routed.detector().expect("routed").clone();
     let texts: Vec<&str> = posts.iter().map(|p| p.text.as_str()).collect();
 
-    // Detection: cold (empty cache: detect on 2 threads, write the cache)
-    // and warm (read the cache back), fastest of the repeats.
-    let cache_root = tempfile::tempdir().expect("a temporary directory");
-    let mut cold = f64::INFINITY;
-    let mut warm = f64::INFINITY;
-    let mut detections = Vec::new();
-    for r in 0..repeats {
-        let cache = DetectCache::new(cache_root.path().join(format!("cold{r}")));
+    let profiled = std::env::var("POSTASSAY_BENCH_PROFILE").ok();
+    if profiled.as_deref() == Some("detect") {
         let t = Instant::now();
-        let got = cache.detect_all(&detector, &texts);
-        cold = cold.min(t.elapsed().as_secs_f64());
-        assert!(!got.from_cache, "an empty cache cannot hit");
-        let t = Instant::now();
-        let again = cache.detect_all(&detector, &texts);
-        warm = warm.min(t.elapsed().as_secs_f64());
-        assert!(again.from_cache, "the second read hits the cache");
-        assert!(again.detections == got.detections, "the cache returns what was detected");
-        detections = got.detections;
+        let found = texts.iter().filter(|t| detector.detect(t).is_some()).count();
+        println!(
+            "profile detect: {found} of {} posts, one thread, in {:.2} s",
+            texts.len(),
+            t.elapsed().as_secs_f64()
+        );
+        return;
     }
+    if profiled.as_deref().is_some_and(|p| p != routed.name().as_str()) {
+        // Profiling a chain that needs no detections.
+        profile(profiled.as_deref().unwrap_or_default(), &posts, &analyzers, &[]);
+        return;
+    }
+
+    // Detections for the routed chain's analysis below (the build rounds
+    // time detection, cold and warm, separately).
+    let detections = detector.detect_all(&texts);
     let routed_share = detections.iter().filter(|d| d.is_some()).count();
+
+    if let Some(name) = profiled {
+        profile(&name, &posts, &analyzers, &detections);
+        return;
+    }
 
     println!();
     analysis_table(&posts, &analyzers, &detections);
     println!();
-    build_table(&posts, &analyzers, &detections, threads, repeats, cold, warm, &detector);
+    build_table(&posts, &analyzers, &texts, threads, repeats, &detector);
     println!(
         "(routed: {:.1}% of posts detected confidently in one of {} languages)",
         100.0 * routed_share as f64 / posts.len().max(1) as f64,
@@ -157,69 +172,122 @@ struct Throughput {
     label: String,
     tokens: u64,
     seconds: f64,
+    /// Start of the SHA-256 of every token (text, position, offsets): equal
+    /// digests across code changes mean identical output on this corpus.
+    digest: String,
 }
 
 /// Tokens per second of each analysis, one thread, over every post.
 fn analysis_table(posts: &[Post], analyzers: &[Analyzer], detections: &[Option<Detection>]) {
     let mut rows = Vec::new();
-    rows.push(time_analysis("unicode words + lowercase", || {
+    rows.push(time_analysis("unicode words + lowercase", |mut h| {
         let mut n = 0u64;
         for p in posts {
             for w in p.text.unicode_words() {
-                black_box(w.to_lowercase());
+                let lower = w.to_lowercase();
+                if let Some(h) = h.as_deref_mut() {
+                    h.update(lower.as_bytes());
+                }
+                black_box(lower);
                 n += 1;
             }
         }
         n
     }));
     let mut default = default_analyzer();
-    rows.push(time_analysis("tantivy default tokenizer", || {
-        posts.iter().map(|p| count_tokens(&mut default, &p.text)).sum()
+    rows.push(time_analysis("tantivy default tokenizer", |mut h| {
+        posts.iter().map(|p| count_tokens(&mut default, &p.text, h.as_deref_mut())).sum()
     }));
     for a in analyzers {
         let mut fields: Vec<TextAnalyzer> = a.fields().iter().map(|f| f.analyzer.clone()).collect();
-        rows.push(time_analysis(a.name().as_str(), || {
+        rows.push(time_analysis(a.name().as_str(), |mut h| {
             let mut n = 0;
             for (i, p) in posts.iter().enumerate() {
                 let slot = a.field_for_post(p.lang, detections.get(i).and_then(Option::as_ref));
                 if let Some(f) = fields.get_mut(slot) {
-                    n += count_tokens(f, &p.text);
+                    n += count_tokens(f, &p.text, h.as_deref_mut());
                 }
             }
             n
         }));
     }
     let base = rows.get(1).map_or(1.0, |r| r.seconds);
-    println!("analysis, one thread        tokens   seconds  Mtokens/s  time ÷ default");
+    println!("analysis, one thread        tokens   seconds  Mtokens/s  time ÷ default  digest");
     for r in &rows {
         println!(
-            "  {:<24} {:>10} {:>9.3} {:>10.2} {:>15.2}",
+            "  {:<24} {:>10} {:>9.3} {:>10.2} {:>15.2}  {}",
             r.label,
             r.tokens,
             r.seconds,
             r.tokens as f64 / r.seconds / 1e6,
-            r.seconds / base
+            r.seconds / base,
+            r.digest
         );
     }
     println!("  (routed: analysis only, posts routed by the detections above)");
 }
 
-/// Run `work` twice (the first warms caches and memos) and time the second.
-fn time_analysis(label: &str, mut work: impl FnMut() -> u64) -> Throughput {
-    black_box(work());
+/// Run `work` twice (the first, with a digest of every token, warms caches
+/// and memos) and time the second.
+fn time_analysis(label: &str, mut work: impl FnMut(Option<&mut Sha256>) -> u64) -> Throughput {
+    let mut hasher = Sha256::new();
+    black_box(work(Some(&mut hasher)));
+    let digest: String = hasher.finalize().iter().take(6).map(|b| format!("{b:02x}")).collect();
     let t = Instant::now();
-    let tokens = work();
-    Throughput { label: label.to_string(), tokens, seconds: t.elapsed().as_secs_f64() }
+    let tokens = work(None);
+    Throughput { label: label.to_string(), tokens, seconds: t.elapsed().as_secs_f64(), digest }
 }
 
-fn count_tokens(analyzer: &mut TextAnalyzer, text: &str) -> u64 {
+/// Count the tokens of `text`; with a hasher, hash each token's text,
+/// position and offsets too.
+fn count_tokens(analyzer: &mut TextAnalyzer, text: &str, hasher: Option<&mut Sha256>) -> u64 {
     let mut stream = analyzer.token_stream(text);
     let mut n = 0;
-    while stream.advance() {
-        black_box(stream.token().text.len());
-        n += 1;
+    match hasher {
+        Some(h) => {
+            while stream.advance() {
+                let t = stream.token();
+                h.update(t.text.as_bytes());
+                for v in [t.position, t.offset_from, t.offset_to] {
+                    h.update((v as u64).to_le_bytes());
+                }
+                n += 1;
+            }
+        }
+        None => {
+            while stream.advance() {
+                black_box(stream.token().text.len());
+                n += 1;
+            }
+        }
     }
     n
+}
+
+/// Analyse every post 10 times with one chain (`default` for tantivy's
+/// default tokenizer), for a profiler.
+fn profile(name: &str, posts: &[Post], analyzers: &[Analyzer], detections: &[Option<Detection>]) {
+    let mut fields: Vec<TextAnalyzer> = match analyzers.iter().find(|a| a.name().as_str() == name) {
+        Some(a) => a.fields().iter().map(|f| f.analyzer.clone()).collect(),
+        None if name == "default" => vec![default_analyzer()],
+        None => {
+            eprintln!("POSTASSAY_BENCH_PROFILE: no chain {name:?} (a built-in name or default)");
+            return;
+        }
+    };
+    let analyzer = analyzers.iter().find(|a| a.name().as_str() == name);
+    let t = Instant::now();
+    let mut n = 0;
+    for _ in 0..10 {
+        for (i, p) in posts.iter().enumerate() {
+            let det = detections.get(i).and_then(Option::as_ref);
+            let slot = analyzer.map_or(0, |a| a.field_for_post(p.lang, det));
+            if let Some(f) = fields.get_mut(slot) {
+                n += count_tokens(f, &p.text, None);
+            }
+        }
+    }
+    println!("profile {name}: {n} tokens in {:.2} s", t.elapsed().as_secs_f64());
 }
 
 /// What tantivy registers as its `default` tokenizer.
@@ -232,45 +300,106 @@ fn default_analyzer() -> TextAnalyzer {
 
 // ------------------------------------------------------------------ builds
 
-/// Build every index `repeats` times, round robin, and print the fastest.
-#[allow(clippy::too_many_arguments)]
+/// Build times of one row of the build table: seconds, and the ratio to the
+/// default build made just before, per round.
+#[derive(Default)]
+struct Samples {
+    seconds: Vec<f64>,
+    ratios: Vec<f64>,
+}
+
+impl Samples {
+    fn push(&mut self, seconds: f64, default: f64) {
+        self.seconds.push(seconds);
+        self.ratios.push(seconds / default);
+    }
+
+    /// Print the medians and the range of the ratios, with the target.
+    fn print(&self, label: &str, target: Option<f64>) {
+        let ratio = median(&self.ratios);
+        let lo = self.ratios.iter().copied().fold(f64::INFINITY, f64::min);
+        let hi = self.ratios.iter().copied().fold(0.0, f64::max);
+        let verdict = match target {
+            Some(t) if ratio <= t => format!("  ≤ {t:.1}× met"),
+            Some(t) => format!("  ≤ {t:.1}× MISSED"),
+            None => String::new(),
+        };
+        println!(
+            "  {label:<30} {:>8.2} {ratio:>9.2} {:>13}{verdict}",
+            median(&self.seconds),
+            format!("{lo:.2}–{hi:.2}")
+        );
+    }
+}
+
+fn median(values: &[f64]) -> f64 {
+    let mut v = values.to_vec();
+    v.sort_by(f64::total_cmp);
+    match v.len() {
+        0 => f64::NAN,
+        n if n % 2 == 1 => v[n / 2],
+        n => (v[n / 2 - 1] + v[n / 2]) / 2.0,
+    }
+}
+
+/// Build every index in `repeats` rounds, each chain right after a default
+/// build (so slow drifts of a shared machine hit both), and print medians.
+/// The routed chain's rounds also detect the languages into an empty cache
+/// (cold) and read them back (warm).
 fn build_table(
     posts: &[Post],
     analyzers: &[Analyzer],
-    detections: &[Option<Detection>],
+    texts: &[&str],
     threads: usize,
     repeats: usize,
-    cold: f64,
-    warm: f64,
     detector: &LangDetector,
 ) {
-    let mut default_best = f64::INFINITY;
-    let mut best = vec![f64::INFINITY; analyzers.len()];
-    for _ in 0..repeats {
-        default_best = default_best.min(default_build(posts, threads));
-        for (a, b) in analyzers.iter().zip(best.iter_mut()) {
-            let det = if a.detector().is_some() { detections } else { &[] };
-            let index = ChainIndex::build(a, posts, det, threads).expect("the index builds");
-            *b = b.min(index.cost().build_seconds);
+    let cache_root = tempfile::tempdir().expect("a temporary directory");
+    let mut default = Samples::default();
+    let mut chains: Vec<Samples> = analyzers.iter().map(|_| Samples::default()).collect();
+    let (mut cold, mut warm) = (Samples::default(), Samples::default());
+    let (mut routed_cold, mut routed_warm) = (Samples::default(), Samples::default());
+    for round in 0..repeats {
+        for (a, samples) in analyzers.iter().zip(chains.iter_mut()) {
+            let d = default_build(posts, threads);
+            default.push(d, d);
+            if a.detector().is_none() {
+                let index = ChainIndex::build(a, posts, &[], threads).expect("the index builds");
+                samples.push(index.cost().build_seconds, d);
+                continue;
+            }
+            let cache = DetectCache::new(cache_root.path().join(format!("round{round}")));
+            let t = Instant::now();
+            let first = cache.detect_all(detector, texts);
+            let c = t.elapsed().as_secs_f64();
+            assert!(!first.from_cache, "an empty cache cannot hit");
+            assert!(first.write_error.is_none(), "{:?}", first.write_error);
+            let t = Instant::now();
+            let again = cache.detect_all(detector, texts);
+            let w = t.elapsed().as_secs_f64();
+            assert!(again.from_cache, "the second lookup hits the cache");
+            assert!(again.detections == first.detections, "the cache returns what was detected");
+            let index =
+                ChainIndex::build(a, posts, &first.detections, threads).expect("the index builds");
+            let b = index.cost().build_seconds;
+            samples.push(b, d);
+            cold.push(c, d);
+            warm.push(w, d);
+            routed_cold.push(c + b, d);
+            routed_warm.push(w + b, d);
         }
     }
-    let ratio = |s: f64| s / default_best;
-    println!("index build                         seconds  ÷ default  target");
-    println!("  {:<32} {:>8.2} {:>10.2}", "tantivy default tokenizer", default_best, 1.0);
-    for (a, &b) in analyzers.iter().zip(&best) {
+    println!("index build (median of {repeats})       seconds  ÷ default  ÷ default range  target");
+    default.print("tantivy default tokenizer", None);
+    let langs = detector.allowlist().map_or(0, <[LangCode]>::len);
+    for (a, samples) in analyzers.iter().zip(&chains) {
         let name = a.name().as_str();
         if a.detector().is_some() {
-            println!("  {:<32} {:>8.2} {:>10.2}", format!("{name} (index only)"), b, ratio(b));
-            let langs = detector.allowlist().map_or(0, <[LangCode]>::len);
-            println!(
-                "  {:<32} {:>8.2} {:>10.2}",
-                format!("detection cold ({langs} languages)"),
-                cold,
-                ratio(cold)
-            );
-            println!("  {:<32} {:>8.2} {:>10.2}", "detection warm (cache)", warm, ratio(warm));
-            row_with_target(&format!("{name} cold"), b + cold, ratio(b + cold), 4.0);
-            row_with_target(&format!("{name} warm"), b + warm, ratio(b + warm), 2.0);
+            samples.print(&format!("{name} (index only)"), None);
+            cold.print(&format!("detection cold ({langs} languages)"), None);
+            warm.print("detection warm (cache)", None);
+            routed_cold.print(&format!("{name} cold"), Some(4.0));
+            routed_warm.print(&format!("{name} warm"), Some(2.0));
         } else {
             let target = match name {
                 "standard" => Some(1.2),
@@ -278,17 +407,9 @@ fn build_table(
                 "hashtag" => Some(1.5),
                 _ => None,
             };
-            match target {
-                Some(t) => row_with_target(name, b, ratio(b), t),
-                None => println!("  {:<32} {:>8.2} {:>10.2}", name, b, ratio(b)),
-            }
+            samples.print(name, target);
         }
     }
-}
-
-fn row_with_target(label: &str, seconds: f64, ratio: f64, target: f64) {
-    let verdict = if ratio <= target { "met" } else { "MISSED" };
-    println!("  {label:<32} {seconds:>8.2} {ratio:>10.2}  ≤ {target:.1}× {verdict}");
 }
 
 /// Index the posts with tantivy's `default` tokenizer, with the schema and
@@ -765,7 +886,13 @@ fn vocabulary(model: &LangModel, rng: &mut ChaCha8Rng) -> Zipf {
     while words.len() < model.vocabulary && attempts < model.vocabulary * 50 {
         attempts += 1;
         let mut w = String::new();
-        for _ in 0..rng.gen_range(1..=3) {
+        // One to three pieces (45%, 40%, 15%) and an ending.
+        let pieces = match rng.gen_range(0..20) {
+            0..=8 => 1,
+            9..=16 => 2,
+            _ => 3,
+        };
+        for _ in 0..pieces {
             w.push_str(model.syllables[rng.gen_range(0..model.syllables.len())]);
         }
         w.push_str(model.suffixes[rng.gen_range(0..model.suffixes.len())]);
@@ -774,6 +901,38 @@ fn vocabulary(model: &LangModel, rng: &mut ChaCha8Rng) -> Zipf {
         }
     }
     Zipf::new(words)
+}
+
+/// Hashtag bodies of one language, in rank order (tags repeat like words
+/// do): one to three words joined CamelCase (50%), lower case (30%) or with
+/// underscores (20%), a tenth of them followed by a year.
+fn tag_vocabulary(words: &Zipf, rng: &mut ChaCha8Rng) -> Zipf {
+    let mut seen = HashSet::new();
+    let mut tags = Vec::new();
+    while tags.len() < TAGS_PER_LANGUAGE {
+        let style = rng.gen_range(0..10);
+        let mut tag = String::new();
+        for k in 0..rng.gen_range(1..=3) {
+            let w = words.draw(rng).replace('\'', "");
+            match style {
+                0..=4 => tag.push_str(&capitalize(&w)),
+                5..=7 => tag.push_str(&w),
+                _ => {
+                    if k > 0 {
+                        tag.push('_');
+                    }
+                    tag.push_str(&w);
+                }
+            }
+        }
+        if rng.gen_range(0..10) == 0 {
+            tag.push_str("2025");
+        }
+        if seen.insert(tag.clone()) {
+            tags.push(tag);
+        }
+    }
+    Zipf::new(tags)
 }
 
 /// Upper-case the first char of `w`.
@@ -788,7 +947,14 @@ fn capitalize(w: &str) -> String {
 /// `n` deterministic posts of about 170 bytes (120–220).
 fn generate_posts(n: usize) -> Vec<Post> {
     let mut rng = ChaCha8Rng::seed_from_u64(SEED);
-    let vocabularies: Vec<Zipf> = LANGS.iter().map(|m| vocabulary(m, &mut rng)).collect();
+    let vocabularies: Vec<(Zipf, Zipf)> = LANGS
+        .iter()
+        .map(|m| {
+            let words = vocabulary(m, &mut rng);
+            let tags = tag_vocabulary(&words, &mut rng);
+            (words, tags)
+        })
+        .collect();
     let users: Vec<String> = (0..5000)
         .map(|i| {
             let en = &LANGS[0];
@@ -824,7 +990,12 @@ fn generate_posts(n: usize) -> Vec<Post> {
 
 /// One post: words of one language with punctuation, and now and then a
 /// tag, a mention, a URL or an emoji.
-fn generate_post(model: &LangModel, words: &Zipf, users: &Zipf, rng: &mut ChaCha8Rng) -> String {
+fn generate_post(
+    model: &LangModel,
+    (words, tags): &(Zipf, Zipf),
+    users: &Zipf,
+    rng: &mut ChaCha8Rng,
+) -> String {
     let target = rng.gen_range(120..=220);
     let sep = if model.no_spaces { "" } else { " " };
     let mut text = String::with_capacity(target + 40);
@@ -836,23 +1007,7 @@ fn generate_post(model: &LangModel, words: &Zipf, users: &Zipf, rng: &mut ChaCha
         let roll = rng.gen::<f64>();
         if roll < 0.04 {
             text.push('#');
-            let style = rng.gen_range(0..10);
-            for k in 0..rng.gen_range(1..=3) {
-                let w = words.draw(rng).replace('\'', "");
-                match style {
-                    0..=4 => text.push_str(&capitalize(&w)),
-                    5..=7 => text.push_str(&w),
-                    _ => {
-                        if k > 0 {
-                            text.push('_');
-                        }
-                        text.push_str(&w);
-                    }
-                }
-            }
-            if rng.gen_range(0..10) == 0 {
-                text.push_str("2025");
-            }
+            text.push_str(tags.draw(rng));
         } else if roll < 0.065 {
             text.push('@');
             text.push_str(users.draw(rng));

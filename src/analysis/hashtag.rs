@@ -44,14 +44,15 @@
 //! Parts are byte ranges of the tag body, so they keep their source case and
 //! spelling; lower-casing is a later filter.
 
-use std::collections::HashMap;
+use std::mem;
 use std::ops::Range;
 use std::path::Path;
-use std::sync::Arc;
+use std::sync::{Arc, RwLock};
 
 use tantivy::tokenizer::{Token, TokenFilter, TokenStream, Tokenizer};
 use unicode_segmentation::UnicodeSegmentation;
 
+use super::stem::FastMap;
 use crate::error::{Error, Problems, Result};
 
 /// Extra cost, in nats, of a one-letter word other than `a` and `i`, known or
@@ -72,8 +73,11 @@ pub const UNKNOWN_PER_CHAR: f64 = 2.0;
 /// quadratic search; real tags are far shorter).
 pub const MAX_SEGMENT_CHARS: usize = 64;
 
-/// Segmentations remembered per filter instance before the memo is reset.
-pub const CACHE_CAPACITY: usize = 8192;
+/// Most tags whose segmentation a filter instance remembers (two
+/// generations of at most half as many each: when the young one is full it
+/// becomes the old one and the previous old one is dropped; a hit in the
+/// old one moves the tag to the young one).
+pub const CACHE_CAPACITY: usize = 65_536;
 
 /// Smallest fixed cost of an unknown word, in nats, so that splitting an
 /// unknown string into more unknown pieces always costs more.
@@ -83,7 +87,7 @@ pub const UNKNOWN_FLOOR: f64 = 1.0;
 /// Its `Debug` form shows only the size (`len`, `total`), not the words.
 #[derive(Clone, Default)]
 pub struct WordFreqs {
-    counts: HashMap<String, u64>,
+    counts: FastMap<String, u64>,
     total: u64,
     max_chars: usize,
     /// `ln(total / smallest count)`: the cost of the rarest known word.
@@ -189,9 +193,14 @@ impl WordFreqs {
         if word.is_empty() || count == 0 {
             return;
         }
-        let chars = word.chars().count();
-        self.max_chars = self.max_chars.max(chars);
-        *self.counts.entry(word.to_string()).or_insert(0) += count;
+        match self.counts.get_mut(word) {
+            Some(c) => *c += count,
+            None => {
+                let chars = word.chars().count();
+                self.max_chars = self.max_chars.max(chars);
+                self.counts.insert(word.to_string(), count);
+            }
+        }
         self.total = self.total.saturating_add(count);
     }
 
@@ -472,30 +481,39 @@ fn segment(chunk: &str, freqs: &WordFreqs, costs: &Costs) -> Vec<Range<usize>> {
     if n <= 1 || n > MAX_SEGMENT_CHARS {
         return std::iter::once(0..chunk.len()).collect();
     }
-    let lowers: Vec<String> = chunk.chars().map(|c| c.to_lowercase().collect()).collect();
+    // The chunk lower-cased char by char, and where each char's lower case
+    // starts in it: the key of chars j..i is `lower[starts[j]..starts[i]]`.
+    let mut lower = String::with_capacity(chunk.len());
+    let mut starts = Vec::with_capacity(n + 1);
+    for c in chunk.chars() {
+        starts.push(lower.len());
+        lower.extend(c.to_lowercase());
+    }
+    starts.push(lower.len());
     // best[i] = (cost of the best segmentation of chars 0..i, start of its
     // last word).
     let mut best: Vec<(f64, usize)> = vec![(f64::INFINITY, 0); n + 1];
     best[0] = (0.0, 0);
-    let mut key = String::new();
+    let mut sigma_key = String::new();
     for i in 1..=n {
         for j in 0..i {
             let len = i - j;
             let word_cost = if len <= freqs.max_chars {
-                key.clear();
-                for l in &lowers[j..i] {
-                    key.push_str(l);
-                }
+                let key = &lower[starts[j]..starts[i]];
                 // Greek capital sigma lowers to the final form at word end.
-                if key.ends_with('σ') && lowers[j..i].len() > 1 {
-                    key.pop();
-                    key.push('ς');
-                    if !freqs.counts.contains_key(&key) {
-                        key.pop();
-                        key.push('σ');
+                if len > 1 && key.ends_with('σ') {
+                    sigma_key.clear();
+                    sigma_key.push_str(key);
+                    sigma_key.pop();
+                    sigma_key.push('ς');
+                    if freqs.counts.contains_key(&sigma_key) {
+                        freqs.cost(&sigma_key, len, costs)
+                    } else {
+                        freqs.cost(key, len, costs)
                     }
+                } else {
+                    freqs.cost(key, len, costs)
                 }
-                freqs.cost(&key, len, costs)
             } else {
                 costs.unknown(freqs.ln_rarest, len)
             };
@@ -571,20 +589,108 @@ impl TokenFilter for HashtagSplit {
         HashtagSplitFilter {
             inner: tokenizer,
             freqs: self.freqs,
-            cache: HashMap::new(),
+            cache: TagMemo::default(),
             parts: Vec::new(),
         }
     }
 }
 
-/// The tokenizer wrapped by [`HashtagSplit`]; memoizes segmentations (bounded
-/// by [`CACHE_CAPACITY`]; the memo is reset when full).
+/// The tokenizer wrapped by [`HashtagSplit`]; memoizes segmentations (at
+/// most [`CACHE_CAPACITY`] tags).
 #[derive(Clone)]
 pub struct HashtagSplitFilter<T> {
     inner: T,
     freqs: Option<Arc<WordFreqs>>,
-    cache: HashMap<String, Vec<Range<usize>>>,
+    cache: TagMemo,
     parts: Vec<Token>,
+}
+
+/// Tag bodies and their parts.
+type TagMap = FastMap<String, Vec<Range<usize>>>;
+
+/// Two-generation memo of tag segmentations (see [`CACHE_CAPACITY`]),
+/// private to one filter instance, in front of the memo its clones share.
+#[derive(Default)]
+struct TagMemo {
+    young: TagMap,
+    old: TagMap,
+    shared: Arc<SharedTags>,
+}
+
+impl Clone for TagMemo {
+    /// A clone starts with an empty private memo (clones usually go to
+    /// other threads) and shares the memo of the filter it was cloned from.
+    fn clone(&self) -> Self {
+        TagMemo {
+            young: TagMap::default(),
+            old: TagMap::default(),
+            shared: Arc::clone(&self.shared),
+        }
+    }
+}
+
+impl TagMemo {
+    /// The parts of a tag body, computed on a miss.
+    fn ranges(&mut self, body: &str, freqs: Option<&WordFreqs>) -> &[Range<usize>] {
+        if !self.young.contains_key(body) {
+            let (key, ranges) = match self.old.remove_entry(body) {
+                Some(entry) => entry,
+                None => {
+                    let ranges = self.shared.get(body).unwrap_or_else(|| {
+                        let ranges = split_tag_ranges(body, freqs);
+                        self.shared.insert(body, &ranges);
+                        ranges
+                    });
+                    (body.to_string(), ranges)
+                }
+            };
+            if self.young.len() >= CACHE_CAPACITY / 2 {
+                mem::swap(&mut self.old, &mut self.young);
+                self.young.clear();
+            }
+            self.young.insert(key, ranges);
+        }
+        self.young.get(body).map(Vec::as_slice).unwrap_or(&[])
+    }
+
+    #[cfg(test)]
+    fn len(&self) -> usize {
+        self.young.len() + self.old.len()
+    }
+}
+
+/// The segmentations known to every clone of one filter. tantivy clones a
+/// field's analyzer for each indexing thread and each new segment; a clone
+/// that misses in its private memo looks here (under a read lock) before
+/// segmenting, so each tag is segmented about once per build. Two
+/// generations bounded by [`CACHE_CAPACITY`], without promotion.
+#[derive(Default)]
+struct SharedTags {
+    /// Young and old generation.
+    maps: RwLock<(TagMap, TagMap)>,
+}
+
+impl SharedTags {
+    /// The parts of `body` if known (`None` too when the lock is poisoned:
+    /// the memo is only an optimisation).
+    fn get(&self, body: &str) -> Option<Vec<Range<usize>>> {
+        let maps = self.maps.read().ok()?;
+        maps.0.get(body).or_else(|| maps.1.get(body)).cloned()
+    }
+
+    /// Remember the parts of `body`.
+    fn insert(&self, body: &str, ranges: &[Range<usize>]) {
+        let Ok(mut maps) = self.maps.write() else { return };
+        let (young, old) = &mut *maps;
+        if young.contains_key(body) {
+            return;
+        }
+        if young.len() >= CACHE_CAPACITY / 2 {
+            mem::swap(old, young);
+            young.clear();
+        }
+        young.insert(body.to_string(), ranges.to_vec());
+    }
 }
 
 impl<T: Tokenizer> Tokenizer for HashtagSplitFilter<T> {
@@ -607,7 +713,7 @@ impl<T: Tokenizer> Tokenizer for HashtagSplitFilter<T> {
 pub struct HashtagSplitStream<'a, T> {
     tail: T,
     freqs: Option<&'a WordFreqs>,
-    cache: &'a mut HashMap<String, Vec<Range<usize>>>,
+    cache: &'a mut TagMemo,
     /// Pending output in reverse order (the last element is the current
     /// token while non-empty).
     parts: &'a mut Vec<Token>,
@@ -631,13 +737,7 @@ impl<T: TokenStream> HashtagSplitStream<'_, T> {
         if body.is_empty() {
             return;
         }
-        if !self.cache.contains_key(body) {
-            if self.cache.len() >= CACHE_CAPACITY {
-                self.cache.clear();
-            }
-            self.cache.insert(body.to_string(), split_tag_ranges(body, self.freqs));
-        }
-        let ranges = self.cache.get(body).map(Vec::as_slice).unwrap_or(&[]);
+        let ranges = self.cache.ranges(body, self.freqs);
         let in_source = token.offset_to.checked_sub(token.offset_from) == Some(token.text.len());
         let emit_parts = match ranges {
             [] => false,
@@ -1010,6 +1110,45 @@ mod tests {
             got,
             owned(&[("HaarbourMaarket", 0, 0, 14), ("Haarbour", 0, 0, 14), ("Maarket", 1, 0, 14)])
         );
+    }
+
+    #[test]
+    fn tag_memo_keeps_two_bounded_generations() {
+        let freqs = tiny();
+        let mut memo = TagMemo::default();
+        for i in 0..(CACHE_CAPACITY + CACHE_CAPACITY / 4) {
+            let body = format!("tag{i}");
+            assert_eq!(memo.ranges(&body, Some(&freqs)), split_tag_ranges(&body, Some(&freqs)));
+            assert!(memo.len() <= CACHE_CAPACITY);
+        }
+        // The young generation filled twice: the old one holds the tags
+        // between, and a hit there moves the tag to the young one.
+        assert_eq!(memo.len(), CACHE_CAPACITY / 2 + CACHE_CAPACITY / 4);
+        let body = format!("tag{}", CACHE_CAPACITY / 2 + 1);
+        assert!(memo.old.contains_key(&body));
+        assert_eq!(memo.ranges(&body, Some(&freqs)), [0..3, 3..body.len()]);
+        assert!(memo.young.contains_key(&body) && !memo.old.contains_key(&body));
+        assert_eq!(memo.ranges("harbourmarketday", Some(&freqs)), [0..7, 7..13, 13..16]);
+        assert_eq!(memo.clone().len(), 0, "a clone starts empty");
+    }
+
+    #[test]
+    fn clones_share_segmentations() {
+        let freqs = tiny();
+        let mut memo = TagMemo::default();
+        let mut other = memo.clone();
+        assert_eq!(memo.ranges("harbourmarketday", Some(&freqs)), [0..7, 7..13, 13..16]);
+        assert_eq!(other.shared.get("harbourmarketday"), Some(vec![0..7, 7..13, 13..16]));
+        assert_eq!(other.len(), 0);
+        // Found in the shared memo: the table is not needed any more.
+        assert_eq!(other.ranges("harbourmarketday", None), [0..7, 7..13, 13..16]);
+        assert_eq!(other.len(), 1);
+        let shared = SharedTags::default();
+        for i in 0..(CACHE_CAPACITY + 10) {
+            shared.insert(&format!("t{i}"), &[0..1, 1..2]);
+        }
+        let maps = shared.maps.read().expect("not poisoned");
+        assert_eq!(maps.0.len() + maps.1.len(), CACHE_CAPACITY / 2 + 10);
     }
 
     #[test]

@@ -83,8 +83,20 @@ pub(crate) fn lowercase_into(text: &str, turkic: bool, out: &mut String) {
             }
         }
         out.push_str(&rest.to_lowercase());
-    } else {
+    } else if text.contains('Σ') {
         out.push_str(&text.to_lowercase());
+    } else {
+        // Without a capital sigma, `str::to_lowercase` is the concatenation
+        // of `char::to_lowercase` (both apply the same table; only Σ needs
+        // the context of its word), written here straight into `out`.
+        out.reserve(text.len());
+        for c in text.chars() {
+            if c.is_ascii() {
+                out.push(c.to_ascii_lowercase());
+            } else {
+                out.extend(c.to_lowercase());
+            }
+        }
     }
 }
 
@@ -163,5 +175,19 @@ mod tests {
     fn german_sharp_s_and_expansion() {
         // SpecialCasing.txt has no lower-case expansion for ẞ (U+1E9E): → ß.
         assert_eq!(texts(&mut analyzer(false), "STRAẞE"), ["straße"]);
+    }
+
+    /// The path without a capital sigma equals the standard library's
+    /// `str::to_lowercase` (Unicode default case mapping) for every scalar
+    /// value, alone and inside a word.
+    #[test]
+    fn lowercase_into_equals_str_to_lowercase_on_every_char() {
+        let mut out = String::new();
+        for c in (0..=0x10ffff).filter_map(char::from_u32) {
+            for text in [c.to_string(), format!("A{c}b"), format!("ΟΔ{c}Σ")] {
+                lowercase_into(&text, false, &mut out);
+                assert_eq!(out, text.to_lowercase(), "{text:?}");
+            }
+        }
     }
 }

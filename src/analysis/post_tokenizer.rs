@@ -120,25 +120,35 @@ fn is_word_char(c: char) -> bool {
 }
 
 /// The next tag, mention or URL at or after byte `from`, as a byte range.
+///
+/// Every element starts with an ASCII character (`#`, `@`, `h`, `H`, `w`,
+/// `W`), so the search runs over bytes (in UTF-8 an ASCII byte is always a
+/// whole character) and decodes only the character before a candidate.
 fn find_element(text: &str, from: usize) -> Option<(usize, usize)> {
-    let mut prev = text.get(..from)?.chars().next_back();
-    for (i, c) in text.get(from..)?.char_indices() {
-        let at = from + i;
-        let boundary = !prev.is_some_and(is_word_char);
-        prev = Some(c);
-        if !boundary {
-            continue;
-        }
-        let rest = text.get(at..)?;
-        let len = match c {
-            '#' => tag_len(rest),
-            '@' => mention_len(rest),
-            'h' | 'H' | 'w' | 'W' => url_len(rest),
-            _ => None,
+    let bytes = text.as_bytes();
+    let mut at = from;
+    while let Some(offset) =
+        bytes.get(at..)?.iter().position(|b| matches!(b, b'#' | b'@' | b'h' | b'H' | b'w' | b'W'))
+    {
+        at += offset;
+        let before = text.get(..at)?;
+        let boundary = match before.as_bytes().last() {
+            None => true,
+            Some(&b) if b.is_ascii() => !(b.is_ascii_alphanumeric() || b == b'_'),
+            Some(_) => !before.chars().next_back().is_some_and(is_word_char),
         };
-        if let Some(len) = len {
-            return Some((at, at + len));
+        if boundary {
+            let rest = text.get(at..)?;
+            let len = match bytes.get(at) {
+                Some(b'#') => tag_len(rest),
+                Some(b'@') => mention_len(rest),
+                _ => url_len(rest),
+            };
+            if let Some(len) = len {
+                return Some((at, at + len));
+            }
         }
+        at += 1;
     }
     None
 }
@@ -346,5 +356,76 @@ mod tests {
         );
         assert_tokens(&mut analyzer(), "", &[]);
         assert_tokens(&mut analyzer(), "#", &[]);
+    }
+
+    /// The char-by-char search this file used before the byte search: every
+    /// char, with a boundary test on the char before it.
+    fn find_element_by_chars(text: &str, from: usize) -> Option<(usize, usize)> {
+        let mut prev = text.get(..from)?.chars().next_back();
+        for (i, c) in text.get(from..)?.char_indices() {
+            let at = from + i;
+            let boundary = !prev.is_some_and(is_word_char);
+            prev = Some(c);
+            if !boundary {
+                continue;
+            }
+            let rest = text.get(at..)?;
+            let len = match c {
+                '#' => tag_len(rest),
+                '@' => mention_len(rest),
+                'h' | 'H' | 'w' | 'W' => url_len(rest),
+                _ => None,
+            };
+            if let Some(len) = len {
+                return Some((at, at + len));
+            }
+        }
+        None
+    }
+
+    /// The byte search finds the same elements as the char search on random
+    /// texts built from element pieces, letters of several scripts, marks
+    /// and punctuation (fixed seed), from every char boundary.
+    #[test]
+    fn byte_search_equals_char_search() {
+        use rand::{Rng, SeedableRng};
+        let pieces = [
+            "#",
+            "@",
+            "h",
+            "H",
+            "w",
+            "W",
+            "http://",
+            "https://",
+            "www.",
+            "x.example",
+            "tag",
+            "_",
+            ".",
+            " ",
+            "é",
+            "\u{301}",
+            "\u{93e}",
+            "ж",
+            "東",
+            "😀",
+            "1",
+            "(",
+            ")",
+            "!",
+        ];
+        let mut rng = rand_chacha::ChaCha8Rng::seed_from_u64(51);
+        for _ in 0..20_000 {
+            let n = rng.gen_range(0..10);
+            let text: String = (0..n).map(|_| pieces[rng.gen_range(0..pieces.len())]).collect();
+            for (from, _) in text.char_indices() {
+                assert_eq!(
+                    find_element(&text, from),
+                    find_element_by_chars(&text, from),
+                    "{text:?} from {from}"
+                );
+            }
+        }
     }
 }
