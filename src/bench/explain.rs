@@ -3,12 +3,11 @@
 //! terms they share, the post's rank and BM25 score, and tantivy's
 //! explanation of that score.
 
-use std::collections::BTreeSet;
 use std::path::PathBuf;
 
 use serde::Serialize;
 
-use crate::analysis::{AnalysisContext, Analyzer, ChainSpec};
+use crate::analysis::ChainSpec;
 use crate::error::{Error, Result};
 use crate::ids::{ChainName, PostId, QueryId};
 use crate::index::ChainIndex;
@@ -84,56 +83,36 @@ pub fn explain(plan: &ExplainPlan) -> Result<Explanation> {
     let query = find_query(&queries, &plan.query, plan)?;
     let post_pos = find_post(&posts, &plan.post, plan)?;
     let post = &posts[post_pos];
-    let ctx = AnalysisContext {
-        word_freqs: if plan.chains.iter().any(ChainSpec::needs_word_freqs) {
-            Some(std::sync::Arc::new(crate::analysis::hashtag::WordFreqs::learn(
-                posts.iter().map(|p| p.text.as_str()),
-            )))
-        } else {
-            None
-        },
-    };
+    let analyzers = super::build_analyzers(&plan.chains, &posts)?;
+    // Detect as `run` does: once per detector setting, through the cache.
+    let detections = super::Detections::compute(
+        &analyzers,
+        &posts,
+        std::slice::from_ref(query),
+        &mut |_: &str| {},
+    );
     let mut chains = Vec::new();
-    for spec in &plan.chains {
-        let analyzer = Analyzer::build(spec, &ctx)?;
-        let (post_det, query_det) = match analyzer.detector() {
-            Some(d) => {
-                let texts: Vec<&str> = posts
-                    .iter()
-                    .map(|p| if p.lang.is_some() { "" } else { p.text.as_str() })
-                    .collect();
-                let q = if query.lang.is_some() { None } else { d.detect(&query.text) };
-                (d.detect_all(&texts), vec![q])
-            }
-            None => (Vec::new(), vec![None]),
-        };
-        let index = ChainIndex::build(&analyzer, &posts, &post_det, 1)?;
-        let slots = analyzer.fields_for_query(query.lang, query_det[0].as_ref());
-        let terms = search::analyze_query(&analyzer, &slots, &query.text);
-        let post_slot =
-            analyzer.field_for_post(post.lang, post_det.get(post_pos).and_then(Option::as_ref));
-        let post_field =
-            analyzer.fields().get(post_slot).map(|f| f.key.clone()).unwrap_or_default();
-        let post_terms: BTreeSet<String> =
-            search::analyze_query(&analyzer, &[post_slot], &post.text)
-                .into_iter()
-                .map(|t| t.text)
-                .collect();
-        let matched: Vec<String> = terms
-            .iter()
-            .filter(|t| t.field == post_field && post_terms.contains(&t.text))
-            .map(|t| t.text.clone())
-            .collect();
-        let m = search::explain_post(&index, &analyzer, &terms, &post.id)?;
+    for analyzer in &analyzers {
+        let (post_det, query_det) = detections.for_analyzer(analyzer);
+        let index = ChainIndex::build(analyzer, &posts, post_det, 1)?;
+        let tm = search::match_terms(
+            analyzer,
+            &analyzer.fields_for_query(query.lang, query_det.first().and_then(Option::as_ref)),
+            &query.text,
+            analyzer.field_for_post(post.lang, post_det.get(post_pos).and_then(Option::as_ref)),
+            &post.text,
+        );
+        let terms = tm.query_terms;
+        let m = search::explain_post(&index, analyzer, &terms, &post.id)?;
         chains.push(ChainExplanation {
             chain: analyzer.name().clone(),
             query_terms: terms
                 .iter()
                 .map(|t: &QueryTerm| format!("{}:{}", t.field, t.text))
                 .collect(),
-            post_field,
-            post_terms: post_terms.into_iter().collect(),
-            matched_terms: matched,
+            post_field: tm.post_field,
+            post_terms: tm.post_terms.into_iter().collect(),
+            matched_terms: tm.matched,
             rank: m.rank,
             score: m.score,
             explanation: m.explanation,

@@ -137,15 +137,7 @@ pub fn run(plan: &RunPlan, progress: &mut dyn FnMut(&str)) -> Result<BenchOutput
         None => None,
     };
 
-    let ctx = AnalysisContext {
-        word_freqs: if plan.chains.iter().any(ChainSpec::needs_word_freqs) {
-            Some(std::sync::Arc::new(WordFreqs::learn(posts.iter().map(|p| p.text.as_str()))))
-        } else {
-            None
-        },
-    };
-    let analyzers: Vec<Analyzer> =
-        plan.chains.iter().map(|c| Analyzer::build(c, &ctx)).collect::<Result<_>>()?;
+    let analyzers = build_analyzers(&plan.chains, &posts)?;
     let detections = Detections::compute(&analyzers, &posts, &queries, progress);
 
     let threads = if posts.len() >= PARALLEL_INDEXING_FROM {
@@ -324,6 +316,18 @@ pub fn score(plan: &ScorePlan) -> Result<BenchOutput> {
     let mut out = assembled.finish(&plan.options)?;
     out.report.timing.total_seconds = started.elapsed().as_secs_f64();
     Ok(out)
+}
+
+/// Build every chain, learning the hashtag word frequencies from the posts
+/// once when any chain needs them (shared by all chains).
+fn build_analyzers(chains: &[ChainSpec], posts: &[Post]) -> Result<Vec<Analyzer>> {
+    let ctx = AnalysisContext {
+        word_freqs: chains
+            .iter()
+            .any(ChainSpec::needs_word_freqs)
+            .then(|| std::sync::Arc::new(WordFreqs::learn(posts.iter().map(|p| p.text.as_str())))),
+    };
+    chains.iter().map(|c| Analyzer::build(c, &ctx)).collect()
 }
 
 /// Position of the baseline among the systems (the first by default).

@@ -5,7 +5,7 @@
 //! "see an example of why" of the report; `postassay explain` shows the full
 //! detail for any pair.
 
-use std::collections::{BTreeMap, BTreeSet};
+use std::collections::BTreeMap;
 
 use serde::{Deserialize, Serialize};
 
@@ -188,13 +188,12 @@ fn matched(chain: &ChainRun<'_>, query: &Query, qi: usize, post: &Post, pi: usiz
     let a = chain.analyzer;
     let qdet = chain.query_detections.get(qi).and_then(Option::as_ref);
     let pdet = chain.post_detections.get(pi).and_then(Option::as_ref);
-    let slot = a.field_for_post(post.lang, pdet);
-    let field = a.fields().get(slot).map(|f| f.key.as_str()).unwrap_or_default();
-    let post_terms: BTreeSet<String> =
-        search::analyze_query(a, &[slot], &post.text).into_iter().map(|t| t.text).collect();
-    search::analyze_query(a, &a.fields_for_query(query.lang, qdet), &query.text)
-        .into_iter()
-        .filter(|t| t.field == field && post_terms.contains(&t.text))
-        .map(|t| t.text)
-        .collect()
+    search::match_terms(
+        a,
+        &a.fields_for_query(query.lang, qdet),
+        &query.text,
+        a.field_for_post(post.lang, pdet),
+        &post.text,
+    )
+    .matched
 }

@@ -218,3 +218,39 @@ fn doc_address(columns: &[Column<u64>], index: &ChainIndex, post: &PostId) -> Op
     }
     None
 }
+
+/// How one post's analysed terms meet a query's under one chain.
+#[derive(Debug, Clone, PartialEq)]
+pub struct TermMatch {
+    /// The query's analysed terms on the fields the chain searches.
+    pub query_terms: Vec<QueryTerm>,
+    /// The field key the post is indexed in.
+    pub post_field: String,
+    /// The post's distinct analysed terms.
+    pub post_terms: BTreeSet<String>,
+    /// Query terms the post contains in its own field, in term order.
+    pub matched: Vec<String>,
+}
+
+/// Analyse `query_text` and `post_text` with the chain, each routed as the
+/// index routes it (`query_slots` from [`Analyzer::fields_for_query`],
+/// `post_slot` from [`Analyzer::field_for_post`]), and say which query terms
+/// the post contains.
+pub fn match_terms(
+    analyzer: &Analyzer,
+    query_slots: &[usize],
+    query_text: &str,
+    post_slot: usize,
+    post_text: &str,
+) -> TermMatch {
+    let post_field = analyzer.fields().get(post_slot).map(|f| f.key.clone()).unwrap_or_default();
+    let post_terms: BTreeSet<String> =
+        analyze_query(analyzer, &[post_slot], post_text).into_iter().map(|t| t.text).collect();
+    let query_terms = analyze_query(analyzer, query_slots, query_text);
+    let matched = query_terms
+        .iter()
+        .filter(|t| t.field == post_field && post_terms.contains(&t.text))
+        .map(|t| t.text.clone())
+        .collect();
+    TermMatch { query_terms, post_field, post_terms, matched }
+}
