@@ -27,8 +27,8 @@ use crate::diagnose::render::{
 use crate::report::model::Report;
 use crate::report::svg::{self, esc, Bar, Estimate, Panel, Point, Series};
 use crate::report::text::{
-    bytes, fixed, improves, interval, lower_is_better, p_equals, pvalue, ratio, recommended,
-    reindex_case, sentence, signed, spans_html,
+    cost_table, fixed, improves, interval, lower_is_better, moved_tables, p_equals, pvalue, ratio,
+    recommended, reindex_case, sentence, signed, spans_html,
 };
 
 /// Marks the start of the Timing section, the only part of the page that
@@ -261,53 +261,10 @@ fn moved(s: &mut String, r: &Report, headline: &str) {
         esc(headline),
         if r.settings.redact { " (post texts redacted)" } else { "" }
     );
-    let rank = |x: Option<usize>| x.map_or_else(|| "–".to_string(), |v| v.to_string());
-    let terms = |t: &[String]| {
-        if t.is_empty() {
-            "(none)".to_string()
-        } else {
-            t.iter().map(|x| format!("<code>{}</code>", esc(x))).collect::<Vec<_>>().join(" ")
-        }
-    };
-    let mut current: Option<&str> = None;
-    for m in &r.moved {
-        if current != Some(m.system.as_str()) {
-            if current.is_some() {
-                s.push_str("</tbody></table></div>\n");
-            }
-            current = Some(m.system.as_str());
-            let sys = esc(m.system.as_str());
-            let _ = writeln!(
-                s,
-                "<h3><code>{sys}</code></h3>\n<div class=\"scroll\"><table>\n<thead><tr>\
-                 <th scope=\"col\">query</th><th scope=\"col\">Δ {}</th>\
-                 <th scope=\"col\">example post</th><th scope=\"col\">grade</th>\
-                 <th scope=\"col\">rank <code>{base}</code> → <code>{sys}</code></th>\
-                 <th scope=\"col\">matched by <code>{base}</code></th>\
-                 <th scope=\"col\">matched by <code>{sys}</code></th></tr></thead>\n<tbody>",
-                esc(headline)
-            );
-        }
-        let post = match (&m.post_id, &m.post_text) {
-            (Some(id), Some(text)) => format!("<code>{}</code> {}", esc(id.as_str()), esc(text)),
-            (Some(id), None) => format!("<code>{}</code>", esc(id.as_str())),
-            _ => "(no relevant post moved)".to_string(),
-        };
-        let _ = writeln!(
-            s,
-            "<tr><td><code>{}</code> {}</td><td>{}</td><td>{post}</td><td>{}</td>\
-             <td>{} → {}</td><td>{}</td><td>{}</td></tr>",
-            esc(m.query_id.as_str()),
-            esc(&m.query_text),
-            signed(m.delta),
-            m.grade.map_or_else(String::new, |g| g.to_string()),
-            rank(m.rank_baseline),
-            rank(m.rank_system),
-            terms(&m.matched_baseline),
-            terms(&m.matched_system)
-        );
+    for (system, table) in moved_tables(r, headline) {
+        let _ = writeln!(s, "<h3><code>{}</code></h3>\n{}", esc(&system), table.html());
     }
-    s.push_str("</tbody></table></div>\n</section>\n");
+    s.push_str("</section>\n");
 }
 
 /// Per-query differences of `system` against the baseline on metric `mi`,
@@ -646,28 +603,10 @@ fn cost(s: &mut String, r: &Report, headline: &str) {
             ),
         );
     }
-    s.push_str(
-        "<div class=\"scroll\"><table>\n<thead><tr><th scope=\"col\">chain</th><th scope=\"col\">index size</th>\
-         <th scope=\"col\">distinct terms</th><th scope=\"col\">tokens per post</th>\
-         <th scope=\"col\">posts per field</th></tr></thead>\n<tbody>\n",
-    );
-    for sys in &r.systems {
-        if let Some(c) = &sys.cost {
-            let fields: Vec<String> =
-                c.posts_per_field.iter().map(|(k, v)| format!("{}: {v}", esc(k))).collect();
-            let _ = writeln!(
-                s,
-                "<tr><th scope=\"row\"><code>{}</code></th><td class=\"num\">{}</td><td class=\"num\">{}</td>\
-                 <td class=\"num\">{:.1}</td><td>{}</td></tr>",
-                esc(sys.name.as_str()),
-                bytes(c.index_bytes),
-                c.distinct_terms,
-                c.mean_tokens_per_post,
-                fields.join(", ")
-            );
-        }
+    if let Some(table) = cost_table(r) {
+        s.push_str(&table.html());
     }
-    s.push_str("</tbody>\n</table></div>\n</section>\n");
+    s.push_str("</section>\n");
 }
 
 /// The chains' diagnostics on open data (`run --vet`), the same tables as

@@ -10,7 +10,8 @@ use crate::diagnose::render::{
 };
 use crate::report::model::Report;
 use crate::report::text::{
-    bytes, fixed, interval, pvalue, reindex_case, sentence, signed, spans_markdown,
+    cost_table, fixed, interval, moved_tables, pvalue, reindex_case, sentence, signed,
+    spans_markdown,
 };
 
 /// Render the whole Markdown report.
@@ -143,25 +144,6 @@ fn against_baseline(s: &mut String, r: &Report, headline: &str) {
     s.push('\n');
 }
 
-/// Rank for reading: `12`, or `–` when not retrieved in the top `depth`.
-fn rank(r: Option<usize>) -> String {
-    r.map_or_else(|| "–".to_string(), |r| r.to_string())
-}
-
-/// Terms for reading: `ferri delay`, or `(none)`.
-fn terms(t: &[String]) -> String {
-    if t.is_empty() {
-        "(none)".to_string()
-    } else {
-        t.iter().map(|x| format!("`{x}`")).collect::<Vec<_>>().join(" ")
-    }
-}
-
-/// Markdown table cells cannot hold `|` or line breaks.
-fn cell(text: &str) -> String {
-    text.replace('|', "\\|").replace(['\n', '\r'], " ")
-}
-
 fn moved(s: &mut String, r: &Report, headline: &str) {
     if r.moved.is_empty() {
         return;
@@ -175,40 +157,9 @@ fn moved(s: &mut String, r: &Report, headline: &str) {
         r.settings.baseline,
         if r.settings.redact { " (post texts redacted)" } else { "" }
     );
-    let mut current: Option<&str> = None;
-    for m in &r.moved {
-        if current != Some(m.system.as_str()) {
-            if current.is_some() {
-                s.push('\n');
-            }
-            current = Some(m.system.as_str());
-            let _ = writeln!(
-                s,
-                "### `{}`\n\n| query | Δ {headline} | example post | grade | rank `{}` → `{}` | \
-                 matched by `{}` | matched by `{}` |\n|---|---|---|---|---|---|---|",
-                m.system, r.settings.baseline, m.system, r.settings.baseline, m.system
-            );
-        }
-        let post = match (&m.post_id, &m.post_text) {
-            (Some(id), Some(text)) => format!("`{id}` {}", cell(text)),
-            (Some(id), None) => format!("`{id}`"),
-            _ => "(no relevant post moved)".to_string(),
-        };
-        let _ = writeln!(
-            s,
-            "| `{}` {} | {} | {} | {} | {} → {} | {} | {} |",
-            m.query_id,
-            cell(&m.query_text),
-            signed(m.delta),
-            post,
-            m.grade.map_or_else(String::new, |g| g.to_string()),
-            rank(m.rank_baseline),
-            rank(m.rank_system),
-            terms(&m.matched_baseline),
-            terms(&m.matched_system)
-        );
+    for (system, table) in moved_tables(r, headline) {
+        let _ = writeln!(s, "### `{system}`\n\n{}", table.markdown());
     }
-    s.push('\n');
 }
 
 fn breakdown_table(s: &mut String, r: &Report, cells: &[&BreakdownCell], headline: &str) {
@@ -270,31 +221,9 @@ fn breakdowns(s: &mut String, r: &Report, headline: &str) {
 }
 
 fn cost(s: &mut String, r: &Report) {
-    if r.systems.iter().all(|sys| sys.cost.is_none()) {
-        return;
+    if let Some(table) = cost_table(r) {
+        let _ = writeln!(s, "## Cost\n\n{}", table.markdown());
     }
-    let _ = writeln!(s, "## Cost\n");
-    let _ = writeln!(
-        s,
-        "| chain | index size | distinct terms | tokens per post | posts per field |\n\
-         |---|---|---|---|---|"
-    );
-    for sys in &r.systems {
-        if let Some(c) = &sys.cost {
-            let fields: Vec<String> =
-                c.posts_per_field.iter().map(|(k, v)| format!("{k}: {v}")).collect();
-            let _ = writeln!(
-                s,
-                "| `{}` | {} | {} | {:.1} | {} |",
-                sys.name,
-                bytes(c.index_bytes),
-                c.distinct_terms,
-                c.mean_tokens_per_post,
-                fields.join(", ")
-            );
-        }
-    }
-    s.push('\n');
 }
 
 /// The chains' diagnostics on open data (`run --vet`): compact tables of
@@ -381,4 +310,9 @@ fn timing(s: &mut String, r: &Report) {
         );
     }
     s.push('\n');
+}
+
+/// Markdown table cells cannot hold `|` or line breaks.
+fn cell(text: &str) -> String {
+    text.replace('|', "\\|").replace(['\n', '\r'], " ")
 }
