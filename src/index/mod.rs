@@ -18,7 +18,6 @@ use serde::Serialize;
 use tantivy::schema::{
     Field, IndexRecordOption, NumericOptions, Schema, TextFieldIndexing, TextOptions,
 };
-use tantivy::tokenizer::TokenStream;
 use tantivy::{Index, IndexReader, ReloadPolicy, TantivyDocument};
 
 use crate::analysis::detect::Detection;
@@ -126,7 +125,7 @@ impl ChainIndex {
             .map_err(tantivy_err)?;
         let searcher = reader.searcher();
         let distinct_terms = count_distinct_terms(&searcher, &fields)?;
-        let total_tokens = count_tokens(analyzer, posts, detections);
+        let total_tokens = count_tokens(&searcher, &fields)?;
         let mean_tokens_per_post =
             if posts.is_empty() { 0.0 } else { total_tokens as f64 / posts.len() as f64 };
         let index_bytes = dir_size(dir.path())?;
@@ -207,22 +206,17 @@ fn count_distinct_terms(searcher: &tantivy::Searcher, fields: &[Field]) -> Resul
     Ok(total)
 }
 
-/// Tokens the chain produces over the corpus (each post analysed by the field
-/// it is routed to).
-fn count_tokens(analyzer: &Analyzer, posts: &[Post], detections: &[Option<Detection>]) -> u64 {
-    let mut analyzers: Vec<_> = analyzer.fields().iter().map(|f| f.analyzer.clone()).collect();
-    let mut total = 0u64;
-    for (i, post) in posts.iter().enumerate() {
-        let detected = detections.get(i).and_then(Option::as_ref);
-        let slot = analyzer.field_for_post(post.lang, detected);
-        if let Some(a) = analyzers.get_mut(slot) {
-            let mut stream = a.token_stream(&post.text);
-            while stream.advance() {
-                total += 1;
-            }
+/// Tokens the chain produced over the corpus, as the index recorded them
+/// while indexing (the BM25 length statistics), so the corpus is not
+/// analysed a second time.
+fn count_tokens(searcher: &tantivy::Searcher, fields: &[Field]) -> Result<u64> {
+    let mut total = 0;
+    for seg in searcher.segment_readers() {
+        for &field in fields {
+            total += seg.inverted_index(field).map_err(tantivy_err)?.total_num_tokens();
         }
     }
-    total
+    Ok(total)
 }
 
 fn dir_size(path: &Path) -> Result<u64> {
