@@ -90,4 +90,10 @@ fn stemming_finds_inflected_forms() {
     let summary = read_csv(&out.join("summary.csv"));
     assert_eq!(summary[1][..3], ["standard", "mrr", "0"]);
     assert_eq!(summary[2][..3], ["stemmed", "mrr", "1"]);
+    // Cost: 5 + 3 + 3 words over 3 posts (counted by hand from the fixture).
+    let report: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("report.json")).unwrap()).unwrap();
+    let tokens = report["systems"][0]["cost"]["mean_tokens_per_post"].as_f64().unwrap();
+    assert!((tokens - 11.0 / 3.0).abs() < 1e-12, "{tokens}");
+    assert_eq!(report["systems"][0]["cost"]["posts_per_field"]["text"], 3);
 }
