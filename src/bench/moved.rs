@@ -83,8 +83,6 @@ pub fn moved_queries(inputs: &MovedInputs<'_>) -> Vec<MovedQuery> {
     let Some(base_values) = inputs.headline.get(inputs.baseline) else { return Vec::new() };
     let query_pos: BTreeMap<&QueryId, usize> =
         inputs.queries.iter().enumerate().map(|(i, q)| (&q.id, i)).collect();
-    let post_pos: BTreeMap<&PostId, usize> =
-        inputs.posts.iter().enumerate().map(|(i, p)| (&p.id, i)).collect();
     let mut out = Vec::new();
     for (ci, chain) in inputs.chains.iter().enumerate() {
         if ci == inputs.baseline {
@@ -100,10 +98,11 @@ pub fn moved_queries(inputs: &MovedInputs<'_>) -> Vec<MovedQuery> {
         let gains = deltas.iter().filter(|d| d.0 > 0.0).take(MOVED_PER_SIDE);
         let losses = deltas.iter().rev().filter(|d| d.0 < 0.0).take(MOVED_PER_SIDE);
         for &(delta, qid) in gains.chain(losses) {
-            let Some(query) = query_pos.get(qid).and_then(|&i| inputs.queries.get(i)) else {
+            let Some((qi, query)) =
+                query_pos.get(qid).and_then(|&i| inputs.queries.get(i).map(|q| (i, q)))
+            else {
                 continue;
             };
-            let qi = query_pos.get(qid).copied().unwrap_or(0);
             let mut m = MovedQuery {
                 system: chain.analyzer.name().clone(),
                 query_id: qid.clone(),
@@ -117,8 +116,8 @@ pub fn moved_queries(inputs: &MovedInputs<'_>) -> Vec<MovedQuery> {
                 matched_baseline: Vec::new(),
                 matched_system: Vec::new(),
             };
-            if let Some((post, grade, rb, rs)) = example_post(inputs, base, chain, qid, delta) {
-                let pi = post_pos.get(&post.id).copied().unwrap_or(0);
+            if let Some((pi, grade, rb, rs)) = example_post(inputs, base, chain, qid, delta) {
+                let post = &inputs.posts[pi];
                 m.matched_baseline = matched(base, query, qi, post, pi);
                 m.matched_system = matched(chain, query, qi, post, pi);
                 m.post_text = (!inputs.redact).then(|| post.text.clone());
@@ -143,14 +142,15 @@ struct Candidate<'a> {
 }
 
 /// The relevant post whose rank moved most in the direction of `delta`
-/// (highest grade first, then the largest move, then the smallest post id).
+/// (highest grade first, then the largest move, then the smallest post id),
+/// as its index in `inputs.posts` with its grade and both ranks.
 fn example_post<'a>(
     inputs: &MovedInputs<'a>,
     base: &ChainRun<'_>,
     chain: &ChainRun<'_>,
     query: &QueryId,
     delta: f64,
-) -> Option<(&'a Post, u32, Option<usize>, Option<usize>)> {
+) -> Option<(usize, u32, Option<usize>, Option<usize>)> {
     let judged = inputs.judgments.for_query(query)?;
     let rank = |run: &Run, post: &PostId| {
         run.by_query
@@ -179,8 +179,8 @@ fn example_post<'a>(
         }
     }
     let c = best?;
-    let post = inputs.posts.iter().find(|p| &p.id == c.post)?;
-    Some((post, c.grade, c.rank_baseline, c.rank_system))
+    let pi = inputs.posts.iter().position(|p| &p.id == c.post)?;
+    Some((pi, c.grade, c.rank_baseline, c.rank_system))
 }
 
 /// Query terms of `chain` that the post contains in the field it is indexed in.
