@@ -7,9 +7,12 @@
 //!
 //! # Safety of the judgments file
 //!
-//! - Lines that exist are never rewritten: grades are only appended, each
-//!   line with a single `write_all` of the whole line followed by an fsync,
-//!   so a crash or `kill -9` leaves either the whole line or nothing.
+//! - Lines that were in the file when the session started are never
+//!   rewritten or removed: grades are only appended, each line with a single
+//!   `write_all` of the whole line followed by an fsync, so a crash or
+//!   `kill -9` leaves either the whole line or nothing, and loses no grade
+//!   whose key was pressed. Only an undo removes a line, and only the one
+//!   this session appended last (see below).
 //! - A file that does not end with a line end when the session starts (a
 //!   torn tail left by another program) is refused, naming the line, rather
 //!   than appended to (the next line would be glued onto it).
@@ -24,18 +27,21 @@
 //!
 //! # Undo
 //!
-//! The judgments reader treats one pair with two different grades as an
-//! error, so undo cannot append a correction, and rewriting the file would
-//! break the rule above. Instead the latest decision stays *pending* in
-//! memory: `u` takes it back (and shows its pair again); the next decision,
-//! `q`, the end of a script, or the end of the pool writes it. Only that one
-//! decision can be undone. The cost: a crash or `kill -9` loses the pending
-//! grade, the one still open to undo, and never anything else.
+//! Every grade is written and synced the moment its key is pressed, so a
+//! crash or `kill -9` loses no grade that was entered. `u` takes back this
+//! session's decisions one at a time, latest first. Taking back a grade cuts
+//! the file back to where it stood before that grade's line was appended
+//! (a truncation, then an fsync), and only after checking that the file
+//! still ends with exactly that line: lines that were in the file before the
+//! session, and lines some other program appended since, are never touched.
+//! Appending a correction instead is not possible: the judgments reader
+//! treats one pair with two different grades as an error. A truncation is
+//! atomic with respect to a crash: the file holds the line or it does not.
 
 use std::collections::BTreeSet;
 use std::fmt::Write as _;
 use std::fs::{File, OpenOptions};
-use std::io::{BufRead, Read, Write};
+use std::io::{BufRead, Read, Seek, SeekFrom, Write};
 use std::path::{Path, PathBuf};
 
 use crate::error::{Error, Result};
@@ -55,11 +61,11 @@ pub const JUDGMENTS_HEADER: &str = "query_id,doc_id,grade";
 pub enum Key {
     /// Grade the shown pair.
     Grade(u32),
-    /// Take back the pending decision.
+    /// Take back this session's latest decision not yet taken back.
     Undo,
     /// Leave the shown pair unjudged (it is shown again next session).
     Skip,
-    /// Save the pending decision and stop.
+    /// Stop (every grade is already saved).
     Quit,
     /// Show the keys.
     Help,
@@ -182,7 +188,7 @@ pub fn read_judgments_allow_empty(path: &Path) -> Result<(Judgments, Vec<String>
 }
 
 /// Appends grades to a judgments file, one whole line per write, each
-/// followed by an fsync.
+/// followed by an fsync, and can take back the line it appended last.
 #[derive(Debug)]
 pub struct JudgmentsAppender {
     path: PathBuf,
@@ -268,11 +274,46 @@ impl JudgmentsAppender {
     }
 
     /// Append one grade: one `write_all` of the whole line, then fsync.
-    pub fn append(&mut self, query: &QueryId, doc: &PostId, grade: u32) -> Result<()> {
+    /// Returns where the line went, for [`JudgmentsAppender::retract`].
+    pub fn append(&mut self, query: &QueryId, doc: &PostId, grade: u32) -> Result<Appended> {
         let line = self.line(query, doc, grade)?;
-        self.file.write_all(&line).map_err(|e| Error::io(&self.path, e))?;
-        self.file.sync_data().map_err(|e| Error::io(&self.path, e))
+        let io = |e| Error::io(&self.path, e);
+        self.file.write_all(&line).map_err(io)?;
+        self.file.sync_data().map_err(io)?;
+        // In append mode the line went to the end of the file, wherever that
+        // was; the length after the write says where it starts.
+        let end = self.file.metadata().map_err(io)?.len();
+        Ok(Appended { start: end.saturating_sub(line.len() as u64), line })
     }
+
+    /// Take back a line this appender wrote: cut the file to where the line
+    /// starts (then fsync), but only when the file still ends with exactly
+    /// that line. Returns `false`, touching nothing, when it does not (some
+    /// other program appended to or changed the file since).
+    pub fn retract(&mut self, appended: &Appended) -> Result<bool> {
+        let io = |e| Error::io(&self.path, e);
+        let len = self.file.metadata().map_err(io)?.len();
+        if len != appended.start + appended.line.len() as u64 {
+            return Ok(false);
+        }
+        let mut tail = vec![0; appended.line.len()];
+        let mut reader = File::open(&self.path).map_err(io)?;
+        reader.seek(SeekFrom::Start(appended.start)).map_err(io)?;
+        reader.read_exact(&mut tail).map_err(io)?;
+        if tail != appended.line {
+            return Ok(false);
+        }
+        self.file.set_len(appended.start).map_err(io)?;
+        self.file.sync_data().map_err(io)?;
+        Ok(true)
+    }
+}
+
+/// One line a [`JudgmentsAppender`] appended: where it starts and its bytes.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Appended {
+    start: u64,
+    line: Vec<u8>,
 }
 
 /// Make a newly created file's directory entry durable (best effort: some
@@ -284,21 +325,13 @@ fn sync_parent(path: &Path) {
     }
 }
 
-/// The decision that is still open to undo.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-enum Pending {
-    /// A grade not yet written, for the pair at this queue position.
-    Grade { at: usize, grade: u32 },
+/// One decision of this session, open to undo.
+#[derive(Debug, Clone, PartialEq, Eq)]
+enum Decision {
+    /// A grade, written, for the pair at this queue position.
+    Graded { at: usize, grade: u32, appended: Appended },
     /// A skip (never written), at this queue position.
-    Skip { at: usize },
-}
-
-impl Pending {
-    fn at(self) -> usize {
-        match self {
-            Pending::Grade { at, .. } | Pending::Skip { at } => at,
-        }
-    }
+    Skipped { at: usize },
 }
 
 /// What happened after a key, for the front end to show.
@@ -306,7 +339,7 @@ impl Pending {
 pub enum Step {
     /// Show the current pair (or the end prompt) again, with a note.
     Continue(String),
-    /// The session is over: every decision is saved.
+    /// The session is over (every grade is saved).
     Finished,
 }
 
@@ -317,7 +350,8 @@ pub struct Session {
     /// Indices into `items` of the pairs to judge, in pool order.
     queue: Vec<usize>,
     position: usize,
-    pending: Option<Pending>,
+    /// This session's decisions still open to undo, oldest first.
+    history: Vec<Decision>,
     appender: JudgmentsAppender,
     already_judged: usize,
     graded: usize,
@@ -345,7 +379,7 @@ impl Session {
             items,
             queue,
             position: 0,
-            pending: None,
+            history: Vec::new(),
             appender,
             already_judged,
             graded: 0,
@@ -369,75 +403,67 @@ impl Session {
         self.queue.get(self.position).and_then(|&i| self.items.get(i))
     }
 
-    /// Apply one key.
+    /// Apply one key. A grade is appended and synced before this returns.
     pub fn apply(&mut self, key: Key) -> Result<Step> {
         match key {
-            Key::Grade(g) => {
-                if self.current().is_none() {
-                    return Ok(Step::Continue(self.end_note()));
-                }
-                self.flush()?;
-                self.pending = Some(Pending::Grade { at: self.position, grade: g });
+            Key::Grade(grade) => {
+                let Some(item) = self.current() else {
+                    return Ok(Step::Continue(END_NOTE.to_string()));
+                };
+                let (query, doc) = (item.query.clone(), item.doc.clone());
+                let appended = self.appender.append(&query, &doc, grade)?;
+                self.history.push(Decision::Graded { at: self.position, grade, appended });
+                self.graded += 1;
                 self.position += 1;
                 Ok(Step::Continue(String::new()))
             }
             Key::Skip => {
                 if self.current().is_none() {
-                    return Ok(Step::Continue(self.end_note()));
+                    return Ok(Step::Continue(END_NOTE.to_string()));
                 }
-                self.flush()?;
-                self.pending = Some(Pending::Skip { at: self.position });
+                self.history.push(Decision::Skipped { at: self.position });
+                self.skipped += 1;
                 self.position += 1;
                 Ok(Step::Continue(String::new()))
             }
-            Key::Undo => match self.pending.take() {
-                Some(p) => {
-                    self.position = p.at();
-                    let what = match p {
-                        Pending::Grade { grade, .. } => format!("grade {grade}"),
-                        Pending::Skip { .. } => "skip".to_string(),
-                    };
-                    Ok(Step::Continue(format!("undone: {what} of the pair below")))
-                }
-                None => Ok(Step::Continue(
-                    "nothing to undo: only the latest decision can be undone, and saved grades \
-                     are never rewritten"
-                        .to_string(),
-                )),
-            },
+            Key::Undo => self.undo(),
             Key::Help => Ok(Step::Continue(format!("keys: {}", keys_help()))),
-            Key::Quit => {
-                self.finish()?;
-                Ok(Step::Finished)
-            }
+            Key::Quit => Ok(Step::Finished),
         }
     }
 
-    /// Write the pending grade, if any (call at the end of input).
-    pub fn finish(&mut self) -> Result<()> {
-        self.flush()
-    }
-
-    fn end_note(&self) -> String {
-        "no more pairs: u to undo the latest decision, q to finish".to_string()
-    }
-
-    /// Write the pending decision (a skip writes nothing).
-    fn flush(&mut self) -> Result<()> {
-        match self.pending.take() {
-            Some(Pending::Grade { at, grade }) => {
-                let item = self
-                    .queue
-                    .get(at)
-                    .and_then(|&i| self.items.get(i))
-                    .expect("pending positions index the queue");
-                self.appender.append(&item.query, &item.doc, grade)?;
-                self.graded += 1;
+    /// Take back the latest decision of this session: a grade's line is cut
+    /// from the file, and its pair is shown again.
+    fn undo(&mut self) -> Result<Step> {
+        let Some(decision) = self.history.pop() else {
+            return Ok(Step::Continue(
+                "nothing to undo: only this session's decisions can be undone; grades saved \
+                 before it are never rewritten"
+                    .to_string(),
+            ));
+        };
+        match decision {
+            Decision::Graded { at, grade, appended } => {
+                if !self.appender.retract(&appended)? {
+                    // Whatever came after our line is someone else's: keep
+                    // every line, and stop offering to undo.
+                    self.history.clear();
+                    return Ok(Step::Continue(format!(
+                        "cannot undo: {} no longer ends with the grade {grade} this session \
+                         wrote (another program changed it); the grade stays",
+                        self.appender.path().display()
+                    )));
+                }
+                self.graded -= 1;
+                self.position = at;
+                Ok(Step::Continue(format!("undone: grade {grade} of the pair below")))
             }
-            Some(Pending::Skip { .. }) => self.skipped += 1,
-            None => {}
+            Decision::Skipped { at } => {
+                self.skipped -= 1;
+                self.position = at;
+                Ok(Step::Continue("undone: skip of the pair below".to_string()))
+            }
         }
-        Ok(())
     }
 
     /// One line summing up the session.
@@ -462,11 +488,11 @@ impl Session {
         if !note.is_empty() {
             let _ = writeln!(s, "{dim}{}{reset}", sanitize(note));
         }
-        if let Some(Pending::Grade { at, grade }) = self.pending {
-            if let Some(item) = self.queue.get(at).and_then(|&i| self.items.get(i)) {
+        if let Some(Decision::Graded { at, grade, .. }) = self.history.last() {
+            if let Some(item) = self.queue.get(*at).and_then(|&i| self.items.get(i)) {
                 let _ = writeln!(
                     s,
-                    "{dim}last: {} / {} = {grade} (u to undo){reset}",
+                    "{dim}saved: {} / {} = {grade} (u to undo){reset}",
                     sanitize(item.query.as_str()),
                     sanitize(item.doc.as_str())
                 );
@@ -511,6 +537,9 @@ impl Session {
         s
     }
 }
+
+/// The note at the end of the pool.
+const END_NOTE: &str = "no more pairs: u to undo the latest decision, q to finish";
 
 /// Text from files made safe for a terminal: control characters (which
 /// could move the cursor or recolour the screen) become U+FFFD; tabs stay.
@@ -574,22 +603,25 @@ mod tests {
     }
 
     #[test]
-    fn grades_are_appended_one_decision_late_and_undo_takes_back_the_pending_one() {
+    fn grades_are_written_at_once_and_undo_cuts_back_this_sessions_lines() {
         let dir = tempfile::tempdir().unwrap();
         let mut s = session(dir.path(), None);
         let path = dir.path().join("j.csv");
-        assert_eq!(std::fs::read_to_string(&path).unwrap(), "query_id,doc_id,grade\n");
+        let text = || std::fs::read_to_string(&path).unwrap();
+        assert_eq!(text(), "query_id,doc_id,grade\n");
         assert_eq!(s.current().unwrap().doc.as_str(), "d1");
         s.apply(Key::Grade(3)).unwrap();
-        // Pending: nothing written yet.
-        assert_eq!(std::fs::read_to_string(&path).unwrap(), "query_id,doc_id,grade\n");
+        // Written and synced as the key comes in.
+        assert_eq!(text(), "query_id,doc_id,grade\nq1,d1,3\n");
+        assert!(s.render("", false).starts_with("saved: q1 / d1 = 3 (u to undo)\n"));
         s.apply(Key::Undo).unwrap();
+        assert_eq!(text(), "query_id,doc_id,grade\n");
         assert_eq!(s.current().unwrap().doc.as_str(), "d1");
         let again = s.apply(Key::Undo).unwrap();
         assert!(matches!(again, Step::Continue(ref m) if m.starts_with("nothing to undo")));
         s.apply(Key::Grade(2)).unwrap();
-        s.apply(Key::Skip).unwrap(); // writes q1,d1,2; d2 skipped (pending)
-        assert_eq!(std::fs::read_to_string(&path).unwrap(), "query_id,doc_id,grade\nq1,d1,2\n");
+        s.apply(Key::Skip).unwrap(); // d2 skipped: nothing written
+        assert_eq!(text(), "query_id,doc_id,grade\nq1,d1,2\n");
         // The duplicate q1/d1 of the pool is not asked again.
         assert_eq!(s.current().unwrap().query.as_str(), "q2");
         s.apply(Key::Grade(0)).unwrap();
@@ -597,12 +629,55 @@ mod tests {
         assert!(
             matches!(s.apply(Key::Grade(1)).unwrap(), Step::Continue(ref m) if m.starts_with("no more pairs"))
         );
-        assert_eq!(s.apply(Key::Quit).unwrap(), Step::Finished);
+        assert_eq!(text(), "query_id,doc_id,grade\nq1,d1,2\nq2,d3,0\n");
+        // Undo goes back through the session, latest first: the grade of
+        // d3, the skip of d2, the grade of d1.
+        let undone: Vec<Step> = (0..3).map(|_| s.apply(Key::Undo).unwrap()).collect();
         assert_eq!(
-            std::fs::read_to_string(&path).unwrap(),
-            "query_id,doc_id,grade\nq1,d1,2\nq2,d3,0\n"
+            undone,
+            ["grade 0", "skip", "grade 2"]
+                .map(|w| Step::Continue(format!("undone: {w} of the pair below")))
         );
-        assert!(s.closing().starts_with("saved 2 grades"));
+        assert_eq!(text(), "query_id,doc_id,grade\n");
+        assert_eq!(s.current().unwrap().doc.as_str(), "d1");
+        s.apply(Key::Grade(1)).unwrap();
+        s.apply(Key::Grade(1)).unwrap();
+        assert_eq!(s.apply(Key::Quit).unwrap(), Step::Finished);
+        assert_eq!(text(), "query_id,doc_id,grade\nq1,d1,1\nq1,d2,1\n");
+        assert!(s.closing().starts_with("saved 2 grades"), "{}", s.closing());
+        assert!(s.closing().ends_with("0 skipped and 1 not reached are left for the next session"));
+    }
+
+    #[test]
+    fn undo_never_touches_lines_from_before_the_session_or_from_other_programs() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("j.csv");
+        let mut s = session(dir.path(), Some("query_id,doc_id,grade\nq9,d9,1\n"));
+        let before = "query_id,doc_id,grade\nq9,d9,1\n";
+        s.apply(Key::Undo).unwrap();
+        assert_eq!(std::fs::read_to_string(&path).unwrap(), before);
+        s.apply(Key::Grade(2)).unwrap();
+        // Another program appends after our line: undo refuses, keeps both.
+        let mut other = OpenOptions::new().append(true).open(&path).unwrap();
+        other.write_all(b"q8,d8,0\n").unwrap();
+        let after = format!("{before}q1,d1,2\nq8,d8,0\n");
+        let step = s.apply(Key::Undo).unwrap();
+        assert!(
+            matches!(step, Step::Continue(ref m) if m.starts_with("cannot undo:") && m.ends_with("the grade stays")),
+            "{step:?}"
+        );
+        assert_eq!(std::fs::read_to_string(&path).unwrap(), after);
+        // And the session stops offering to undo.
+        let step = s.apply(Key::Undo).unwrap();
+        assert!(matches!(step, Step::Continue(ref m) if m.starts_with("nothing to undo")));
+        assert_eq!(s.current().unwrap().doc.as_str(), "d2");
+        // A changed last line (same length) is refused too.
+        s.apply(Key::Grade(3)).unwrap();
+        let text = std::fs::read_to_string(&path).unwrap().replace("q1,d2,3\n", "q1,d2,1\n");
+        std::fs::write(&path, &text).unwrap();
+        let step = s.apply(Key::Undo).unwrap();
+        assert!(matches!(step, Step::Continue(ref m) if m.starts_with("cannot undo:")), "{step:?}");
+        assert_eq!(std::fs::read_to_string(&path).unwrap(), text);
     }
 
     #[test]
@@ -621,7 +696,6 @@ mod tests {
         let dir = tempfile::tempdir().unwrap();
         let mut s = session(dir.path(), Some("q1 0 d1 1\n"));
         s.apply(Key::Grade(3)).unwrap();
-        s.finish().unwrap();
         let text = std::fs::read_to_string(dir.path().join("j.csv")).unwrap();
         assert_eq!(text, "q1 0 d1 1\nq1 0 d2 3\n");
     }

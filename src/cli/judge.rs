@@ -45,7 +45,7 @@ pub fn execute(args: JudgeArgs) -> anyhow::Result<ExitCode> {
 }
 
 /// One key per line from a pipe or file. A line that is not a key ends the
-/// session (after saving the pending grade) with an error naming the line,
+/// session (the grades before it are saved) with an error naming the line,
 /// since a script that goes on after a typo would grade the wrong pairs.
 fn scripted(
     session: &mut Session,
@@ -56,13 +56,7 @@ fn scripted(
     write!(out, "{}", session.render("", color))?;
     out.flush()?;
     for key in script_keys(input) {
-        let key = match key {
-            Ok((_, key)) => key,
-            Err(e) => {
-                session.finish()?;
-                return Err(e.into());
-            }
-        };
+        let (_, key) = key?;
         match session.apply(key)? {
             Step::Finished => return Ok(()),
             Step::Continue(note) => {
@@ -71,7 +65,6 @@ fn scripted(
             }
         }
     }
-    session.finish()?;
     Ok(())
 }
 
@@ -85,7 +78,6 @@ fn interactive(session: &mut Session, out: &mut impl Write, color: bool) -> anyh
     let mut escape = Escape::None;
     loop {
         if stdin.read(&mut byte)? == 0 {
-            session.finish()?;
             return Ok(());
         }
         let b = byte[0];
@@ -107,7 +99,7 @@ fn interactive(session: &mut Session, out: &mut impl Write, color: bool) -> anyh
             (Escape::None, _) => {}
         }
         let key = match b {
-            // Ctrl-C and Ctrl-D quit (and save) rather than kill the session.
+            // Ctrl-C and Ctrl-D quit rather than kill the session.
             0x03 | 0x04 => Some(Key::Quit),
             b'\r' | b'\n' | b' ' => continue,
             _ => Key::from_char(char::from(b)),
