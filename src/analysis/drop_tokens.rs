@@ -7,7 +7,9 @@
 //! Positions of kept tokens do not change.
 
 use serde::{Deserialize, Serialize};
-use tantivy::tokenizer::{Token, TokenFilter, TokenStream, Tokenizer};
+use tantivy::tokenizer::Token;
+
+use super::each_token::{token_edit_filter, TokenEdit};
 
 use super::token_shape::TokenShape;
 
@@ -63,51 +65,15 @@ impl DropTokens {
     }
 }
 
-impl TokenFilter for DropTokens {
-    type Tokenizer<T: Tokenizer> = DropTokensFilter<T>;
+token_edit_filter!(DropTokens);
 
-    fn transform<T: Tokenizer>(self, tokenizer: T) -> DropTokensFilter<T> {
-        DropTokensFilter { inner: tokenizer, shapes: self.shapes }
-    }
-}
+impl TokenEdit for DropTokens {
+    type Work = ();
 
-/// The tokenizer wrapped by [`DropTokens`].
-#[derive(Clone)]
-pub struct DropTokensFilter<T> {
-    inner: T,
-    shapes: Vec<TokenShape>,
-}
+    fn start(&self) {}
 
-impl<T: Tokenizer> Tokenizer for DropTokensFilter<T> {
-    type TokenStream<'a> = DropTokensStream<'a, T::TokenStream<'a>>;
-
-    fn token_stream<'a>(&'a mut self, text: &'a str) -> Self::TokenStream<'a> {
-        DropTokensStream { tail: self.inner.token_stream(text), shapes: &self.shapes }
-    }
-}
-
-/// The token stream of [`DropTokensFilter`].
-pub struct DropTokensStream<'a, T> {
-    tail: T,
-    shapes: &'a [TokenShape],
-}
-
-impl<T: TokenStream> TokenStream for DropTokensStream<'_, T> {
-    fn advance(&mut self) -> bool {
-        while self.tail.advance() {
-            if !self.shapes.contains(&TokenShape::of(&self.tail.token().text)) {
-                return true;
-            }
-        }
-        false
-    }
-
-    fn token(&self) -> &Token {
-        self.tail.token()
-    }
-
-    fn token_mut(&mut self) -> &mut Token {
-        self.tail.token_mut()
+    fn edit(&self, _: &mut (), token: &mut Token) -> bool {
+        !self.shapes.contains(&TokenShape::of(&token.text))
     }
 }
 

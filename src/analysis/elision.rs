@@ -15,7 +15,9 @@
 //! pell gl agl dagl degl negl sugl quest quell bell sant`; Catalan `d l m n s
 //! t`. Without a language the union is used.
 
-use tantivy::tokenizer::{Token, TokenFilter, TokenStream, Tokenizer};
+use tantivy::tokenizer::Token;
+
+use super::each_token::{token_edit_filter, TokenEdit};
 
 use crate::input::LangCode;
 
@@ -65,53 +67,18 @@ impl Elision {
     }
 }
 
-impl TokenFilter for Elision {
-    type Tokenizer<T: Tokenizer> = ElisionFilter<T>;
+token_edit_filter!(Elision);
 
-    fn transform<T: Tokenizer>(self, tokenizer: T) -> ElisionFilter<T> {
-        ElisionFilter { inner: tokenizer, elision: self }
-    }
-}
+impl TokenEdit for Elision {
+    type Work = ();
 
-/// The tokenizer wrapped by [`Elision`].
-#[derive(Clone)]
-pub struct ElisionFilter<T> {
-    inner: T,
-    elision: Elision,
-}
+    fn start(&self) {}
 
-impl<T: Tokenizer> Tokenizer for ElisionFilter<T> {
-    type TokenStream<'a> = ElisionStream<'a, T::TokenStream<'a>>;
-
-    fn token_stream<'a>(&'a mut self, text: &'a str) -> Self::TokenStream<'a> {
-        ElisionStream { tail: self.inner.token_stream(text), elision: &self.elision }
-    }
-}
-
-/// The token stream of [`ElisionFilter`].
-pub struct ElisionStream<'a, T> {
-    tail: T,
-    elision: &'a Elision,
-}
-
-impl<T: TokenStream> TokenStream for ElisionStream<'_, T> {
-    fn advance(&mut self) -> bool {
-        if !self.tail.advance() {
-            return false;
-        }
-        let token = self.tail.token_mut();
-        if let Some(len) = self.elision.elided_len(&token.text) {
+    fn edit(&self, _: &mut (), token: &mut Token) -> bool {
+        if let Some(len) = self.elided_len(&token.text) {
             token.text.drain(..len);
         }
         true
-    }
-
-    fn token(&self) -> &Token {
-        self.tail.token()
-    }
-
-    fn token_mut(&mut self) -> &mut Token {
-        self.tail.token_mut()
     }
 }
 

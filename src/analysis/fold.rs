@@ -24,41 +24,34 @@
 
 use std::mem;
 
-use tantivy::tokenizer::{Token, TokenFilter, TokenStream, Tokenizer};
+use tantivy::tokenizer::Token;
 use unicode_normalization::char::is_combining_mark;
 use unicode_normalization::UnicodeNormalization;
+
+use super::each_token::{token_edit_filter, TokenEdit};
 
 /// Filter settings for `fold` (no options).
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
 pub struct Fold;
 
-impl TokenFilter for Fold {
-    type Tokenizer<T: Tokenizer> = FoldFilter<T>;
+token_edit_filter!(Fold);
 
-    fn transform<T: Tokenizer>(self, tokenizer: T) -> FoldFilter<T> {
-        FoldFilter { inner: tokenizer, buffer: String::new() }
+impl TokenEdit for Fold {
+    /// The buffer non-ASCII tokens are folded into (swapped with the token's
+    /// text, so no allocation per token).
+    type Work = String;
+
+    fn start(&self) -> String {
+        String::new()
     }
-}
 
-/// The tokenizer wrapped by [`Fold`].
-#[derive(Clone)]
-pub struct FoldFilter<T> {
-    inner: T,
-    buffer: String,
-}
-
-impl<T: Tokenizer> Tokenizer for FoldFilter<T> {
-    type TokenStream<'a> = FoldStream<'a, T::TokenStream<'a>>;
-
-    fn token_stream<'a>(&'a mut self, text: &'a str) -> Self::TokenStream<'a> {
-        FoldStream { tail: self.inner.token_stream(text), buffer: &mut self.buffer }
+    fn edit(&self, buffer: &mut String, token: &mut Token) -> bool {
+        if !token.text.is_ascii() {
+            fold_into(&token.text, buffer);
+            mem::swap(&mut token.text, buffer);
+        }
+        true
     }
-}
-
-/// The token stream of [`FoldFilter`].
-pub struct FoldStream<'a, T> {
-    tail: T,
-    buffer: &'a mut String,
 }
 
 /// Letters without a decomposition, folded explicitly.
@@ -128,28 +121,6 @@ pub(crate) fn fold_into(text: &str, out: &mut String) {
     if !out.is_ascii() {
         let composed: String = out.nfc().collect();
         *out = composed;
-    }
-}
-
-impl<T: TokenStream> TokenStream for FoldStream<'_, T> {
-    fn advance(&mut self) -> bool {
-        if !self.tail.advance() {
-            return false;
-        }
-        let token = self.tail.token_mut();
-        if !token.text.is_ascii() {
-            fold_into(&token.text, self.buffer);
-            mem::swap(&mut token.text, self.buffer);
-        }
-        true
-    }
-
-    fn token(&self) -> &Token {
-        self.tail.token()
-    }
-
-    fn token_mut(&mut self) -> &mut Token {
-        self.tail.token_mut()
     }
 }
 

@@ -5,7 +5,9 @@
 //! of the kept tokens do not change, so a dropped token leaves a gap, as a
 //! removed stop word does.
 
-use tantivy::tokenizer::{Token, TokenFilter, TokenStream, Tokenizer};
+use tantivy::tokenizer::Token;
+
+use super::each_token::{token_edit_filter, TokenEdit};
 
 /// Filter settings for `length`: keep tokens with `min ≤ chars ≤ max`.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -16,54 +18,18 @@ pub struct LengthLimit {
     pub max: usize,
 }
 
-impl TokenFilter for LengthLimit {
-    type Tokenizer<T: Tokenizer> = LengthLimitFilter<T>;
+token_edit_filter!(LengthLimit);
 
-    fn transform<T: Tokenizer>(self, tokenizer: T) -> LengthLimitFilter<T> {
-        LengthLimitFilter { inner: tokenizer, limit: self }
-    }
-}
+impl TokenEdit for LengthLimit {
+    type Work = ();
 
-/// The tokenizer wrapped by [`LengthLimit`].
-#[derive(Clone)]
-pub struct LengthLimitFilter<T> {
-    inner: T,
-    limit: LengthLimit,
-}
+    fn start(&self) {}
 
-impl<T: Tokenizer> Tokenizer for LengthLimitFilter<T> {
-    type TokenStream<'a> = LengthLimitStream<T::TokenStream<'a>>;
-
-    fn token_stream<'a>(&'a mut self, text: &'a str) -> Self::TokenStream<'a> {
-        LengthLimitStream { tail: self.inner.token_stream(text), limit: self.limit }
-    }
-}
-
-/// The token stream of [`LengthLimitFilter`].
-pub struct LengthLimitStream<T> {
-    tail: T,
-    limit: LengthLimit,
-}
-
-impl<T: TokenStream> TokenStream for LengthLimitStream<T> {
-    fn advance(&mut self) -> bool {
-        while self.tail.advance() {
-            let text = &self.tail.token().text;
-            // ASCII tokens have one byte per character: no counting needed.
-            let chars = if text.is_ascii() { text.len() } else { text.chars().count() };
-            if chars >= self.limit.min && chars <= self.limit.max {
-                return true;
-            }
-        }
-        false
-    }
-
-    fn token(&self) -> &Token {
-        self.tail.token()
-    }
-
-    fn token_mut(&mut self) -> &mut Token {
-        self.tail.token_mut()
+    fn edit(&self, _: &mut (), token: &mut Token) -> bool {
+        let text = &token.text;
+        // ASCII tokens have one byte per character: no counting needed.
+        let chars = if text.is_ascii() { text.len() } else { text.chars().count() };
+        chars >= self.min && chars <= self.max
     }
 }
 

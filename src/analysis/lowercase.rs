@@ -21,7 +21,9 @@
 
 use std::mem;
 
-use tantivy::tokenizer::{Token, TokenFilter, TokenStream, Tokenizer};
+use tantivy::tokenizer::Token;
+
+use super::each_token::{token_edit_filter, TokenEdit};
 
 /// Filter settings for `lowercase`.
 #[derive(Clone, Debug, Default, PartialEq, Eq)]
@@ -30,39 +32,26 @@ pub struct Lowercase {
     pub turkic: bool,
 }
 
-impl TokenFilter for Lowercase {
-    type Tokenizer<T: Tokenizer> = LowercaseFilter<T>;
+token_edit_filter!(Lowercase);
 
-    fn transform<T: Tokenizer>(self, tokenizer: T) -> LowercaseFilter<T> {
-        LowercaseFilter { inner: tokenizer, turkic: self.turkic, buffer: String::new() }
+impl TokenEdit for Lowercase {
+    /// The buffer non-ASCII tokens are lower-cased into (swapped with the
+    /// token's text, so no allocation per token).
+    type Work = String;
+
+    fn start(&self) -> String {
+        String::new()
     }
-}
 
-/// The tokenizer wrapped by [`Lowercase`].
-#[derive(Clone)]
-pub struct LowercaseFilter<T> {
-    inner: T,
-    turkic: bool,
-    buffer: String,
-}
-
-impl<T: Tokenizer> Tokenizer for LowercaseFilter<T> {
-    type TokenStream<'a> = LowercaseStream<'a, T::TokenStream<'a>>;
-
-    fn token_stream<'a>(&'a mut self, text: &'a str) -> Self::TokenStream<'a> {
-        LowercaseStream {
-            tail: self.inner.token_stream(text),
-            turkic: self.turkic,
-            buffer: &mut self.buffer,
+    fn edit(&self, buffer: &mut String, token: &mut Token) -> bool {
+        if token.text.is_ascii() && !(self.turkic && token.text.contains('I')) {
+            token.text.make_ascii_lowercase();
+        } else {
+            lowercase_into(&token.text, self.turkic, buffer);
+            mem::swap(&mut token.text, buffer);
         }
+        true
     }
-}
-
-/// The token stream of [`LowercaseFilter`].
-pub struct LowercaseStream<'a, T> {
-    tail: T,
-    turkic: bool,
-    buffer: &'a mut String,
 }
 
 /// Lower-case `text` into `out` (cleared first).
@@ -97,30 +86,6 @@ pub(crate) fn lowercase_into(text: &str, turkic: bool, out: &mut String) {
                 out.extend(c.to_lowercase());
             }
         }
-    }
-}
-
-impl<T: TokenStream> TokenStream for LowercaseStream<'_, T> {
-    fn advance(&mut self) -> bool {
-        if !self.tail.advance() {
-            return false;
-        }
-        let token = self.tail.token_mut();
-        if token.text.is_ascii() && !(self.turkic && token.text.contains('I')) {
-            token.text.make_ascii_lowercase();
-        } else {
-            lowercase_into(&token.text, self.turkic, self.buffer);
-            mem::swap(&mut token.text, self.buffer);
-        }
-        true
-    }
-
-    fn token(&self) -> &Token {
-        self.tail.token()
-    }
-
-    fn token_mut(&mut self) -> &mut Token {
-        self.tail.token_mut()
     }
 }
 

@@ -11,8 +11,10 @@
 //! ([`Analyzer::fields_for_query`]). [`inspect`] shows what a chain does to
 //! a text, stage by stage.
 //!
-//! Pieces, one file each (settings `X`, wrapper `XFilter<T>`, stream
-//! `XStream<'a, T>`; filters never change offsets):
+//! Pieces, one file each; filters never change offsets. Steps that edit or
+//! drop one token at a time implement [`TokenEdit`] and share one wrapper
+//! and stream ([`EachTokenFilter`], [`EachTokenStream`]); steps that emit
+//! several tokens for one (`EdgeNgrams`, `HashtagSplit`) have their own:
 //! - tokenizers: [`WordTokenizer`] (`words`, UAX #29), [`PostTokenizer`]
 //!   (`posts`: tags, mentions, URLs, emoji whole), [`WhitespaceTokenizer`];
 //! - filters: [`Lowercase`], [`Fold`], [`StopWords`], [`Stem`] (two Snowball
@@ -42,6 +44,7 @@
 mod chain;
 pub mod detect;
 mod drop_tokens;
+mod each_token;
 mod edge_ngrams;
 mod elision;
 mod fold;
@@ -63,19 +66,20 @@ pub(crate) mod testutil;
 pub use chain::{
     build_pipeline, AnalysisContext, Analyzer, FieldAnalyzer, FALLBACK_FIELD, PLAIN_FIELD,
 };
-pub use drop_tokens::{DropKind, DropTokens, DropTokensFilter, DropTokensStream};
+pub use drop_tokens::{DropKind, DropTokens};
+pub use each_token::{EachTokenFilter, EachTokenStream, TokenEdit};
 pub use edge_ngrams::{EdgeNgrams, EdgeNgramsFilter, EdgeNgramsStream};
-pub use elision::{Elision, ElisionFilter, ElisionStream, ELISION_LANGUAGES};
-pub use fold::{Fold, FoldFilter, FoldStream};
-pub use length_limit::{LengthLimit, LengthLimitFilter, LengthLimitStream};
-pub use lowercase::{Lowercase, LowercaseFilter, LowercaseStream};
+pub use elision::{Elision, ELISION_LANGUAGES};
+pub use fold::Fold;
+pub use length_limit::LengthLimit;
+pub use lowercase::Lowercase;
 pub use post_tokenizer::{PostTokenStream, PostTokenizer};
 pub use spec::{
     builtin_chains, parse_chains, read_chain_file, select_chains, Branch, ChainBody, ChainSpec,
     Pipeline, PostRouting, QueryRouting, RouteSpec, StepSpec, TagVocabulary, TokenizerKind,
     BUILTIN_CHAINS_TOML, DEFAULT_MIN_CONFIDENCE,
 };
-pub use stem::{stem_languages, Stem, StemFilter, StemGeneration, StemStream, STEM_CACHE_CAPACITY};
+pub use stem::{stem_languages, Stem, StemGeneration, StemWork, STEM_CACHE_CAPACITY};
 pub use stop_words::{stop_languages, StopWords};
 pub use whitespace_tokenizer::{WhitespaceTokenStream, WhitespaceTokenizer};
 pub use word_tokenizer::{WordTokenStream, WordTokenizer};

@@ -43,6 +43,7 @@ use tantivy::tokenizer::{
     Language, RawTokenizer, Stemmer, Token, TokenFilter, TokenStream, Tokenizer,
 };
 
+use super::each_token::{token_edit_filter, TokenEdit};
 use super::token_shape::has_url_scheme;
 use crate::input::LangCode;
 
@@ -441,33 +442,20 @@ impl Hasher for FastHasher {
     }
 }
 
-impl TokenFilter for Stem {
-    type Tokenizer<T: Tokenizer> = StemFilter<T>;
+token_edit_filter!(Stem);
 
-    fn transform<T: Tokenizer>(self, tokenizer: T) -> StemFilter<T> {
-        StemFilter {
-            inner: tokenizer,
-            backend: Backend::new(&self),
-            cache: StemCache::default(),
-            buffer: String::new(),
-        }
-    }
-}
-
-/// The tokenizer wrapped by [`Stem`]; holds the memo.
-pub struct StemFilter<T> {
-    inner: T,
+/// The working state of a `stem` step: the stemmer, the memo and a buffer.
+pub struct StemWork {
     backend: Backend,
     cache: StemCache,
     buffer: String,
 }
 
-impl<T: Clone> Clone for StemFilter<T> {
+impl Clone for StemWork {
     /// A clone starts with an empty private memo (clones usually go to other
-    /// threads) and shares the memo of the filter it was cloned from.
+    /// threads) and shares the memo of the state it was cloned from.
     fn clone(&self) -> Self {
-        StemFilter {
-            inner: self.inner.clone(),
+        StemWork {
             backend: self.backend.clone(),
             cache: StemCache {
                 young: StemTable::default(),
@@ -479,52 +467,25 @@ impl<T: Clone> Clone for StemFilter<T> {
     }
 }
 
-impl<T: Tokenizer> Tokenizer for StemFilter<T> {
-    type TokenStream<'a> = StemStream<'a, T::TokenStream<'a>>;
+impl TokenEdit for Stem {
+    type Work = StemWork;
 
-    fn token_stream<'a>(&'a mut self, text: &'a str) -> Self::TokenStream<'a> {
-        StemStream {
-            tail: self.inner.token_stream(text),
-            backend: &mut self.backend,
-            cache: &mut self.cache,
-            buffer: &mut self.buffer,
-        }
+    fn start(&self) -> StemWork {
+        StemWork { backend: Backend::new(self), cache: StemCache::default(), buffer: String::new() }
     }
-}
 
-/// The token stream of [`StemFilter`].
-pub struct StemStream<'a, T> {
-    tail: T,
-    backend: &'a mut Backend,
-    cache: &'a mut StemCache,
-    buffer: &'a mut String,
+    fn edit(&self, work: &mut StemWork, token: &mut Token) -> bool {
+        if is_stemmable(&token.text) {
+            work.cache.stem_into(&token.text, &mut work.backend, &mut work.buffer);
+            mem::swap(&mut token.text, &mut work.buffer);
+        }
+        true
+    }
 }
 
 /// True when the stemmer should see this token (see the module docs).
 fn is_stemmable(text: &str) -> bool {
     text.chars().next().is_some_and(char::is_alphanumeric) && !has_url_scheme(text)
-}
-
-impl<T: TokenStream> TokenStream for StemStream<'_, T> {
-    fn advance(&mut self) -> bool {
-        if !self.tail.advance() {
-            return false;
-        }
-        let token = self.tail.token_mut();
-        if is_stemmable(&token.text) {
-            self.cache.stem_into(&token.text, self.backend, self.buffer);
-            mem::swap(&mut token.text, self.buffer);
-        }
-        true
-    }
-
-    fn token(&self) -> &Token {
-        self.tail.token()
-    }
-
-    fn token_mut(&mut self) -> &mut Token {
-        self.tail.token_mut()
-    }
 }
 
 #[cfg(test)]
@@ -600,23 +561,24 @@ mod tests {
     #[test]
     fn clones_share_a_memo_behind_their_own() {
         let stem = Stem::new(lang("en"), StemGeneration::Current).expect("supported");
-        let mut first = stem.transform(WhitespaceTokenizer::default());
+        let mut first = stem.start();
         let mut second = first.clone();
         let hash = hash_word("connections");
         let shared = Arc::clone(&first.cache.shared);
         let known = |out: &mut String| shared.get_into("connections", hash, out);
+        let token = || Token { text: "connections".to_string(), ..Token::default() };
         assert!(!known(&mut String::new()));
-        let mut stream = first.token_stream("connections");
-        assert!(stream.advance());
-        assert_eq!(stream.token().text, "connect");
+        let mut t = token();
+        assert!(stem.edit(&mut first, &mut t));
+        assert_eq!(t.text, "connect");
         // The second clone finds the stem in the shared memo.
         let mut out = String::new();
         assert!(known(&mut out));
         assert_eq!(out, "connect");
         assert_eq!(second.cache.len(), 0);
-        let mut stream = second.token_stream("connections");
-        assert!(stream.advance());
-        assert_eq!(stream.token().text, "connect");
+        let mut t = token();
+        assert!(stem.edit(&mut second, &mut t));
+        assert_eq!(t.text, "connect");
         assert_eq!(second.cache.len(), 1);
         // Both generations of the shared memo stay bounded.
         let shared_memo = SharedStems::default();

@@ -9,7 +9,7 @@
 //! section of both `report.md` and `report.html`: which chain to reindex
 //! with (only on a significant gain), by how much, at what cost, on how many
 //! queries and judgments, and which judging holes could change the answer.
-//! It is built once as [`Span`]s so both renderings say the same words.
+//! It is built once as [`Span`](super::text::Span)s so both renderings say the same words.
 //!
 //! Everything is deterministic except the Timing section, which sits last
 //! between [`TIMING_BEGIN`] and [`TIMING_END`] so a comparison can cut it.
