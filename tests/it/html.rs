@@ -21,57 +21,28 @@ use postassay::report::html::{TIMING_BEGIN, TIMING_END};
 
 use crate::util::{fixture, postassay, texts};
 
-/// `postassay score` on the `html/gain` fixture (relative paths, so the
-/// report names no machine-specific path).
-fn score_gain(out: &Path) {
-    let dir = fixture("html/gain");
-    let res = postassay(
-        &dir,
-        &[
-            "score",
-            "--quiet",
-            "--judgments",
-            "qrels.csv",
-            "--queries",
-            "queries.csv",
-            "--run",
-            "base=base.csv",
-            "--run",
-            "better=better.csv",
-            "--run",
-            "mixed=mixed.csv",
-            "--metrics",
-            "ndcg@3,map,p@2,mrr,unjudged@2",
-            "--out",
-            out.to_str().expect("temp path is UTF-8"),
-        ],
-    );
+/// `postassay score` in the fixture directory `dir` with relative paths (so
+/// the report names no machine-specific path).
+fn score_fixture(dir: &str, runs: &[&str], metrics: &str, out: &Path) {
+    let out = out.to_str().expect("temp path is UTF-8");
+    let mut args = vec!["score", "--quiet", "--judgments", "qrels.csv", "--queries", "queries.csv"];
+    for run in runs {
+        args.extend(["--run", run]);
+    }
+    args.extend(["--metrics", metrics, "--out", out]);
+    let res = postassay(&fixture(dir), &args);
     assert_eq!(res.status.code(), Some(0), "stderr: {}", texts(&res).1);
+}
+
+/// `postassay score` on the `html/gain` fixture.
+fn score_gain(out: &Path) {
+    let runs = ["base=base.csv", "better=better.csv", "mixed=mixed.csv"];
+    score_fixture("html/gain", &runs, "ndcg@3,map,p@2,mrr,unjudged@2", out);
 }
 
 /// `postassay score` on the `score` fixture, without `unjudged@k`.
 fn score_no_gain(out: &Path) {
-    let dir = fixture("score");
-    let res = postassay(
-        &dir,
-        &[
-            "score",
-            "--quiet",
-            "--judgments",
-            "qrels.csv",
-            "--queries",
-            "queries.csv",
-            "--run",
-            "a=run_a.csv",
-            "--run",
-            "b=run_b.csv",
-            "--metrics",
-            "ndcg@3,map,p@2",
-            "--out",
-            out.to_str().expect("temp path is UTF-8"),
-        ],
-    );
-    assert_eq!(res.status.code(), Some(0), "stderr: {}", texts(&res).1);
+    score_fixture("score", &["a=run_a.csv", "b=run_b.csv"], "ndcg@3,map,p@2", out);
 }
 
 /// A small `run` of two chains on the `html/bench` fixture.

@@ -13,34 +13,13 @@ use std::time::{Duration, Instant};
 
 use postassay::input::read_judgments;
 
-use crate::util::{fixture, postassay, texts};
+use crate::pool::pool_runs;
+use crate::util::texts;
 
 /// Write the fixture pool into `dir` and return its path.
 fn make_pool(dir: &Path) -> PathBuf {
-    let f = |n: &str| fixture(&format!("pool/{n}")).display().to_string();
-    let (a, b) = (format!("a={}", f("run_a.csv")), format!("b={}", f("run_b.csv")));
     let out = dir.join("pool.csv");
-    let res = postassay(
-        dir,
-        &[
-            "pool",
-            "--depth",
-            "3",
-            "--run",
-            &a,
-            "--run",
-            &b,
-            "--corpus",
-            &f("corpus.jsonl"),
-            "--queries",
-            &f("queries.csv"),
-            "--judgments",
-            &f("qrels.csv"),
-            "--out",
-            out.to_str().unwrap(),
-            "--quiet",
-        ],
-    );
+    let res = pool_runs(dir, "3", &["--out", out.to_str().unwrap(), "--quiet"]);
     assert_eq!(res.status.code(), Some(0), "{}", texts(&res).1);
     out
 }

@@ -26,13 +26,14 @@ fn f(name: &str) -> String {
     fixture(&format!("pool/{name}")).display().to_string()
 }
 
-fn pool_runs(dir: &Path, extra: &[&str]) -> std::process::Output {
+/// `postassay pool` at `depth` over the fixture's two runs, run in `dir`.
+pub(crate) fn pool_runs(dir: &Path, depth: &str, extra: &[&str]) -> std::process::Output {
     let (a, b) = (format!("a={}", f("run_a.csv")), format!("b={}", f("run_b.csv")));
     let (corpus, queries, qrels) = (f("corpus.jsonl"), f("queries.csv"), f("qrels.csv"));
     let mut args = vec![
         "pool",
         "--depth",
-        "3",
+        depth,
         "--run",
         &a,
         "--run",
@@ -51,7 +52,7 @@ fn pool_runs(dir: &Path, extra: &[&str]) -> std::process::Output {
 #[test]
 fn pool_of_run_files_is_ordered_deduplicated_and_counted() {
     let tmp = tempfile::tempdir().unwrap();
-    let res = pool_runs(tmp.path(), &[]);
+    let res = pool_runs(tmp.path(), "3", &[]);
     let (out, err) = texts(&res);
     assert_eq!(res.status.code(), Some(0), "{err}");
     assert_eq!(out, EXPECTED);
@@ -65,31 +66,12 @@ fn pool_of_run_files_is_ordered_deduplicated_and_counted() {
 fn pool_writes_out_file_and_depth_changes_the_pool() {
     let tmp = tempfile::tempdir().unwrap();
     let out = tmp.path().join("pool.csv");
-    let res = pool_runs(tmp.path(), &["--out", out.to_str().unwrap(), "--quiet"]);
+    let res = pool_runs(tmp.path(), "3", &["--out", out.to_str().unwrap(), "--quiet"]);
     assert_eq!(res.status.code(), Some(0), "{}", texts(&res).1);
     assert_eq!(texts(&res), (String::new(), String::new()));
     assert_eq!(std::fs::read_to_string(&out).unwrap(), EXPECTED);
     // Depth 1: only the first posts, p3 (q1, b), `10` (q10), p6 and p7 (q2).
-    let (a, b) = (format!("a={}", f("run_a.csv")), format!("b={}", f("run_b.csv")));
-    let (corpus, queries, qrels) = (f("corpus.jsonl"), f("queries.csv"), f("qrels.csv"));
-    let res = postassay(
-        tmp.path(),
-        &[
-            "pool",
-            "--depth",
-            "1",
-            "--run",
-            &a,
-            "--run",
-            &b,
-            "--corpus",
-            &corpus,
-            "--queries",
-            &queries,
-            "--judgments",
-            &qrels,
-        ],
-    );
+    let res = pool_runs(tmp.path(), "1", &[]);
     let ids: Vec<String> = texts(&res)
         .0
         .lines()
@@ -137,7 +119,7 @@ fn pool_from_a_score_report_directory() {
 #[test]
 fn pool_usage_errors() {
     let tmp = tempfile::tempdir().unwrap();
-    let res = pool_runs(tmp.path(), &["--run", "a=x.csv"]);
+    let res = pool_runs(tmp.path(), "3", &["--run", "a=x.csv"]);
     assert_eq!(res.status.code(), Some(2));
     assert!(texts(&res).1.contains("the name \"a\" is given twice"));
     let res = postassay(tmp.path(), &["pool", "--depth", "0", "--run", "a=x.csv"]);
