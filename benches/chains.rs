@@ -37,7 +37,7 @@ use postassay::analysis::hashtag::WordFreqs;
 use postassay::analysis::{builtin_chains, AnalysisContext, Analyzer};
 use postassay::bench::detect_cache::DetectCache;
 use postassay::ids::PostId;
-use postassay::index::ChainIndex;
+use postassay::index::{deterministic_writer, ChainIndex};
 use postassay::input::{LangCode, Post};
 use rand::{Rng, SeedableRng};
 use rand_chacha::ChaCha8Rng;
@@ -55,13 +55,6 @@ const DEFAULT_POSTS: usize = 200_000;
 /// Build repeats when `POSTASSAY_BENCH_REPEATS` is not set.
 const DEFAULT_REPEATS: usize = 3;
 
-/// Corpus size from which `postassay run` indexes on every core (the same
-/// rule as `bench::run`).
-const PARALLEL_INDEXING_FROM: usize = 50_000;
-
-/// Indexing memory budget of `ChainIndex::build` (same writer settings).
-const WRITER_BUDGET_BYTES: usize = 120_000_000;
-
 /// Distinct hashtags of each language.
 const TAGS_PER_LANGUAGE: usize = 5_000;
 
@@ -71,11 +64,6 @@ const SEED: u64 = 0x706f_7374;
 fn main() {
     let posts_wanted = env_usize("POSTASSAY_BENCH_POSTS", DEFAULT_POSTS);
     let repeats = env_usize("POSTASSAY_BENCH_REPEATS", DEFAULT_REPEATS).max(1);
-    let threads = if posts_wanted >= PARALLEL_INDEXING_FROM {
-        std::thread::available_parallelism().map_or(1, |n| n.get())
-    } else {
-        1
-    };
 
     let started = Instant::now();
     let posts = generate_posts(posts_wanted);
@@ -91,7 +79,7 @@ fn main() {
         100.0 * ascii as f64 / posts.len().max(1) as f64,
         generated
     );
-    println!("indexing threads: {threads}; builds: best of {repeats}");
+    println!("indexing: one thread, no merging (as `postassay run`); builds: best of {repeats}");
     for p in posts.iter().step_by(posts.len().div_ceil(4).max(1)) {
         println!("  sample: {}", p.text);
     }
@@ -146,7 +134,7 @@ fn main() {
     println!();
     analysis_table(&posts, &analyzers, &detections);
     println!();
-    build_table(&posts, &analyzers, &texts, threads, repeats, &detector);
+    build_table(&posts, &analyzers, &texts, repeats, &detector);
     println!(
         "(routed: {:.1}% of posts detected confidently in one of {} languages)",
         100.0 * routed_share as f64 / posts.len().max(1) as f64,
@@ -350,7 +338,6 @@ fn build_table(
     posts: &[Post],
     analyzers: &[Analyzer],
     texts: &[&str],
-    threads: usize,
     repeats: usize,
     detector: &LangDetector,
 ) {
@@ -361,10 +348,10 @@ fn build_table(
     let (mut routed_cold, mut routed_warm) = (Samples::default(), Samples::default());
     for round in 0..repeats {
         for (a, samples) in analyzers.iter().zip(chains.iter_mut()) {
-            let d = default_build(posts, threads);
+            let d = default_build(posts);
             default.push(d, d);
             if a.detector().is_none() {
-                let index = ChainIndex::build(a, posts, &[], threads).expect("the index builds");
+                let index = ChainIndex::build(a, posts, &[]).expect("the index builds");
                 samples.push(index.cost().build_seconds, d);
                 continue;
             }
@@ -379,8 +366,7 @@ fn build_table(
             let w = t.elapsed().as_secs_f64();
             assert!(again.from_cache, "the second lookup hits the cache");
             assert!(again.detections == first.detections, "the cache returns what was detected");
-            let index =
-                ChainIndex::build(a, posts, &first.detections, threads).expect("the index builds");
+            let index = ChainIndex::build(a, posts, &first.detections).expect("the index builds");
             let b = index.cost().build_seconds;
             samples.push(b, d);
             cold.push(c, d);
@@ -415,7 +401,7 @@ fn build_table(
 /// Index the posts with tantivy's `default` tokenizer, with the schema and
 /// writer settings of `ChainIndex::build`; seconds to analyse, index,
 /// commit and finish merging.
-fn default_build(posts: &[Post], threads: usize) -> f64 {
+fn default_build(posts: &[Post]) -> f64 {
     let started = Instant::now();
     let dir = tempfile::Builder::new().prefix("postassay-bench-").tempdir().expect("temp dir");
     let mut builder = Schema::builder();
@@ -426,9 +412,7 @@ fn default_build(posts: &[Post], threads: usize) -> f64 {
     let text =
         builder.add_text_field("text", TextOptions::default().set_indexing_options(indexing));
     let index = Index::create_in_dir(dir.path(), builder.build()).expect("index created");
-    let mut writer = index
-        .writer_with_num_threads::<TantivyDocument>(threads, WRITER_BUDGET_BYTES)
-        .expect("writer");
+    let mut writer = deterministic_writer(&index).expect("writer");
     for (i, post) in posts.iter().enumerate() {
         let mut doc = TantivyDocument::default();
         doc.add_u64(ord, i as u64);

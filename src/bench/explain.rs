@@ -94,7 +94,7 @@ pub fn explain(plan: &ExplainPlan) -> Result<Explanation> {
     let mut chains = Vec::new();
     for analyzer in &analyzers {
         let (post_det, query_det) = detections.for_analyzer(analyzer);
-        let index = ChainIndex::build(analyzer, &posts, post_det, 1)?;
+        let index = ChainIndex::build(analyzer, &posts, post_det)?;
         let tm = search::match_terms(
             analyzer,
             &analyzer.fields_for_query(query.lang, query_det.first().and_then(Option::as_ref)),

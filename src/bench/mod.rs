@@ -40,10 +40,6 @@ use crate::report::model::{
 use crate::search;
 use crate::stats::StatSettings;
 
-/// Corpus size from which indexing uses every core (below it, one thread
-/// keeps segment layout, and so index size, identical between runs).
-const PARALLEL_INDEXING_FROM: usize = 50_000;
-
 /// Settings shared by `run` and `score`.
 #[derive(Debug, Clone)]
 pub struct EvalOptions {
@@ -140,17 +136,12 @@ pub fn run(plan: &RunPlan, progress: &mut dyn FnMut(&str)) -> Result<BenchOutput
     let analyzers = build_analyzers(&plan.chains, &posts)?;
     let detections = Detections::compute(&analyzers, &posts, &queries, progress);
 
-    let threads = if posts.len() >= PARALLEL_INDEXING_FROM {
-        std::thread::available_parallelism().map_or(1, |n| n.get())
-    } else {
-        1
-    };
     let mut runs = Vec::new();
     let mut infos = Vec::new();
     let mut timings = Vec::new();
     for analyzer in &analyzers {
         let (post_det, query_det) = detections.for_analyzer(analyzer);
-        let index = ChainIndex::build(analyzer, &posts, post_det, threads)?;
+        let index = ChainIndex::build(analyzer, &posts, post_det)?;
         let outcome = search::search_chain(&index, analyzer, &queries, query_det, plan.depth)?;
         let cost = index.cost();
         progress(&format!(

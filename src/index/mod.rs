@@ -15,10 +15,11 @@ use std::path::Path;
 use std::time::Instant;
 
 use serde::Serialize;
+use tantivy::indexer::NoMergePolicy;
 use tantivy::schema::{
     Field, IndexRecordOption, NumericOptions, Schema, TextFieldIndexing, TextOptions,
 };
-use tantivy::{Index, IndexReader, ReloadPolicy, TantivyDocument};
+use tantivy::{Index, IndexReader, IndexWriter, ReloadPolicy, TantivyDocument};
 
 use crate::analysis::detect::Detection;
 use crate::analysis::Analyzer;
@@ -29,9 +30,24 @@ use crate::input::Post;
 /// Name of the fast field holding a post's ordinal in the corpus.
 pub(crate) const ORD_FIELD: &str = "ord";
 
-/// Indexing memory budget shared by all writer threads (tantivy needs at
-/// least 15 MB per thread).
+/// Indexing memory budget of the one writer thread (tantivy needs at least
+/// 15 MB per thread).
 const WRITER_BUDGET_BYTES: usize = 120_000_000;
+
+/// The index writer every chain index is built with (the chain benchmark's
+/// baseline build uses it too, so both have the same settings): one
+/// indexing thread and no merging, so the segments, and the order in which
+/// BM25 adds up a post's term scores in `f32`, depend only on the corpus.
+/// With several threads (or background merges) the layout changed from run
+/// to run and with the machine's core count, and identical posts could score
+/// a few ulps apart, reordering near-ties and moving the metrics.
+pub fn deterministic_writer(index: &Index) -> Result<IndexWriter<TantivyDocument>> {
+    let writer = index
+        .writer_with_num_threads::<TantivyDocument>(1, WRITER_BUDGET_BYTES)
+        .map_err(tantivy_err)?;
+    writer.set_merge_policy(Box::new(NoMergePolicy));
+    Ok(writer)
+}
 
 /// What building one chain's index cost.
 #[derive(Debug, Clone, Serialize, PartialEq)]
@@ -63,13 +79,12 @@ pub struct ChainIndex {
 impl ChainIndex {
     /// Build the index of `posts` with `analyzer`. `detections[i]` is the
     /// language detected for `posts[i]` (only read by routed chains; pass an
-    /// empty slice when the chain is not routed). `threads` indexing threads
-    /// are used (at least 1).
+    /// empty slice when the chain is not routed). One thread indexes, with
+    /// no merging ([`deterministic_writer`]).
     pub fn build(
         analyzer: &Analyzer,
         posts: &[Post],
         detections: &[Option<Detection>],
-        threads: usize,
     ) -> Result<ChainIndex> {
         let started = Instant::now();
         let dir = tempfile::Builder::new()
@@ -93,10 +108,7 @@ impl ChainIndex {
             index.tokenizers().register(&tokenizer_name(analyzer, &fa.key), fa.analyzer.clone());
         }
 
-        let threads = threads.max(1);
-        let mut writer = index
-            .writer_with_num_threads::<TantivyDocument>(threads, WRITER_BUDGET_BYTES)
-            .map_err(tantivy_err)?;
+        let mut writer = deterministic_writer(&index)?;
         let mut posts_per_field: BTreeMap<String, u64> =
             analyzer.fields().iter().map(|f| (f.key.clone(), 0)).collect();
         let mut ords = Vec::with_capacity(posts.len());
