@@ -160,6 +160,18 @@ impl Analyzer {
         self.detector.as_ref()
     }
 
+    /// Whether routing needs the detected language of posts that declare
+    /// one (`posts = "detected"`); otherwise only undeclared posts need it.
+    pub fn detects_declared_posts(&self) -> bool {
+        self.spec.route().is_some_and(|r| r.posts == PostRouting::Detected)
+    }
+
+    /// Whether routing needs the detected language of queries that declare
+    /// one (`queries = "detected"`).
+    pub fn detects_declared_queries(&self) -> bool {
+        self.spec.route().is_some_and(|r| r.queries == QueryRouting::Detected)
+    }
+
     /// The field a post is indexed in, from its declared language and its
     /// detection (see [`PostRouting`]). Always 0 for a plain chain.
     pub fn field_for_post(
@@ -499,8 +511,11 @@ mod tests {
         let spec = &parse_chains(text, "e.toml", &[]).expect("valid")[0];
         let every = Analyzer::build(spec, &AnalysisContext::default()).expect("builds");
         assert_eq!(every.fields_for_query(Some(lang("en")), None), [0, 1, 2]);
-        // posts = "detected" ignores the declared language.
+        // posts = "detected" ignores the declared language, so such a chain
+        // needs the detections of declared posts too; the built-in does not.
         assert_eq!(every.field_for_post(Some(lang("en")), None), 2);
+        assert!(every.detects_declared_posts() && !every.detects_declared_queries());
+        assert!(!a.detects_declared_posts() && !a.detects_declared_queries());
     }
 
     #[test]

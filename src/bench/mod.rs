@@ -499,12 +499,20 @@ impl Detections {
                 continue;
             }
             let started = Instant::now();
-            // A declared language wins: only undeclared texts are detected.
-            let post_texts: Vec<&str> =
-                posts.iter().map(|p| if p.lang.is_some() { "" } else { p.text.as_str() }).collect();
+            // A declared language wins, so only undeclared texts are
+            // detected, unless a chain with this detector routes by
+            // detection alone (`detected` mode), which needs every text.
+            let sharing =
+                || analyzers.iter().filter(|o| o.detector().map(Self::key) == Some(key.clone()));
+            let all_posts = sharing().any(Analyzer::detects_declared_posts);
+            let all_queries = sharing().any(Analyzer::detects_declared_queries);
+            let post_texts: Vec<&str> = posts
+                .iter()
+                .map(|p| if p.lang.is_some() && !all_posts { "" } else { p.text.as_str() })
+                .collect();
             let query_texts: Vec<&str> = queries
                 .iter()
-                .map(|q| if q.lang.is_some() { "" } else { q.text.as_str() })
+                .map(|q| if q.lang.is_some() && !all_queries { "" } else { q.text.as_str() })
                 .collect();
             let mut from_cache = false;
             let mut lookup = |texts: &[&str]| match cache {
@@ -520,14 +528,14 @@ impl Detections {
             };
             let post_det = lookup(&post_texts);
             let query_det = lookup(&query_texts);
-            let undeclared = post_texts.iter().filter(|t| !t.is_empty()).count();
+            let detected = post_texts.iter().filter(|t| !t.is_empty()).count();
             let seconds = started.elapsed().as_secs_f64();
             progress(&match (from_cache, cache) {
                 (true, Some(c)) => format!(
-                    "read the language detections of {undeclared} posts from the cache {} in {seconds:.2} s",
+                    "read the language detections of {detected} posts from the cache {} in {seconds:.2} s",
                     c.dir().display()
                 ),
-                _ => format!("detected languages of {undeclared} posts in {seconds:.2} s"),
+                _ => format!("detected languages of {detected} posts in {seconds:.2} s"),
             });
             by_detector.insert(key, (post_det, query_det));
         }

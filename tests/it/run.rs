@@ -1,7 +1,7 @@
 //! `postassay run` end to end: the bundled demo bench, as the README's first
 //! command runs it, and a tiny bench where stemming makes the difference.
 
-use crate::util::{fixture, postassay, read_csv, root, texts};
+use crate::util::{fixture, postassay, read_csv, root, texts, write};
 
 #[test]
 fn demo_bench_end_to_end() {
@@ -154,4 +154,68 @@ fn large_corpus_runs_are_deterministic_and_copies_score_alike() {
         compared += usize::from(s.len() > 1);
     }
     assert!(compared > 500, "copies compared: {compared}");
+}
+
+/// A routed chain with `posts = "detected"` and `queries = "detected"`
+/// routes by detection alone, also for posts and queries that declare a
+/// language (declared languages used to skip detection, so such texts fell
+/// into the fallback field). Hand-made bench: p1 declares `en`, p2 declares
+/// `de` (its text is English, so detection sends it to `text_en`), p3
+/// declares nothing; the query declares `de` but is English.
+#[test]
+fn detected_routing_detects_texts_that_declare_a_language() {
+    let tmp = tempfile::tempdir().unwrap();
+    let english = "The ferry to the island was cancelled again this morning because of the storm";
+    let german = "Die Fähre zur Insel wurde heute Morgen wegen des Sturms schon wieder gestrichen";
+    let corpus = format!(
+        "{{\"id\":\"p1\",\"text\":\"{english}\",\"lang\":\"en\"}}\n\
+         {{\"id\":\"p2\",\"text\":\"{english}, they said\",\"lang\":\"de\"}}\n\
+         {{\"id\":\"p3\",\"text\":\"{english} and tomorrow too\"}}\n\
+         {{\"id\":\"p4\",\"text\":\"{german}\"}}\n"
+    );
+    let corpus = write(tmp.path(), "posts.jsonl", &corpus);
+    let queries = write(
+        tmp.path(),
+        "queries.csv",
+        "query_id,text,lang\nq1,the ferry was cancelled because of the storm,de\n",
+    );
+    let qrels = write(tmp.path(), "qrels.csv", "query_id,doc_id,grade\nq1,p1,2\nq1,p2,1\n");
+    let chains = write(
+        tmp.path(),
+        "chains.toml",
+        "[[chain]]\nname = \"by_detection\"\n[chain.route]\nlanguages = [\"en\", \"de\"]\n\
+         min_confidence = 0.2\nposts = \"detected\"\nqueries = \"detected\"\n",
+    );
+    let out = tmp.path().join("out");
+    let path = |p: &std::path::Path| p.to_str().unwrap().to_string();
+    let res = postassay(
+        tmp.path(),
+        &[
+            "run",
+            "--quiet",
+            "--corpus",
+            &path(&corpus),
+            "--queries",
+            &path(&queries),
+            "--judgments",
+            &path(&qrels),
+            "--chain-file",
+            &path(&chains),
+            "--out",
+            &path(&out),
+        ],
+    );
+    assert_eq!(res.status.code(), Some(0), "stderr: {}", texts(&res).1);
+    let report: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("report.json")).unwrap()).unwrap();
+    let fields = &report["systems"][0]["cost"]["posts_per_field"];
+    assert_eq!((&fields["text_en"], &fields["text_de"]), (&3.into(), &1.into()), "{fields}");
+    assert_eq!(fields["text_other"], 0, "{fields}");
+    // The English query searches `text_en` (its declared `de` is ignored)
+    // and finds the three English posts.
+    let run = std::fs::read_to_string(out.join("runs/by_detection.csv")).unwrap();
+    let docs: Vec<&str> = run.lines().skip(1).map(|l| l.split(',').nth(1).unwrap()).collect();
+    let mut sorted = docs.clone();
+    sorted.sort_unstable();
+    assert_eq!(sorted, ["p1", "p2", "p3"], "{run}");
 }
