@@ -78,6 +78,32 @@ fn render(e: &Explanation) -> String {
             (Some(r), Some(sc)) => s.push_str(&format!("  rank {r}, BM25 score {sc:.4}\n")),
             _ => s.push_str("  not retrieved\n"),
         }
+        if let Some(tree) = &c.explanation {
+            s.push_str("  score explanation (tantivy):\n");
+            explanation_lines(tree, 2, &mut s);
+        }
     }
     s
+}
+
+/// tantivy's score explanation as an indented tree, one node per line:
+/// `value  description [context]`, children two spaces deeper.
+fn explanation_lines(node: &serde_json::Value, depth: usize, out: &mut String) {
+    let value = node.get("value").and_then(serde_json::Value::as_f64);
+    let description = node.get("description").and_then(serde_json::Value::as_str).unwrap_or("");
+    let context: Vec<&str> = node
+        .get("context")
+        .and_then(serde_json::Value::as_array)
+        .map(|c| c.iter().filter_map(serde_json::Value::as_str).collect())
+        .unwrap_or_default();
+    let indent = "  ".repeat(depth);
+    let value = value.map_or_else(|| "?".to_string(), |v| format!("{v:.4}"));
+    out.push_str(&format!("{indent}{value}  {description}"));
+    if !context.is_empty() {
+        out.push_str(&format!(" [{}]", context.join("; ")));
+    }
+    out.push('\n');
+    for child in node.get("details").and_then(serde_json::Value::as_array).into_iter().flatten() {
+        explanation_lines(child, depth + 1, out);
+    }
 }

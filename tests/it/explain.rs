@@ -55,3 +55,56 @@ fn explain_unknown_query_is_exit_2() {
     assert_eq!(res.status.code(), Some(2));
     assert!(texts(&res).1.contains("--query nope"));
 }
+
+/// The text output shows the score with tantivy's explanation tree, and the
+/// score is BM25 as published: per matched term
+/// `idf × (k1 + 1) × tf / (tf + k1 × (1 − b + b × dl / avgdl))` with
+/// `idf = ln(1 + (N − n + 0.5) / (n + 0.5))`, k1 = 1.2, b = 0.75
+/// (Robertson & Zaragoza, "The Probabilistic Relevance Framework: BM25 and
+/// Beyond", 2009; the `(k1 + 1)` factor and the `1 +` inside the log as in
+/// Lucene's variant, which tantivy follows; constants from tantivy's
+/// documentation, from memory). Fixture under `stemmed`: N = 3 posts of 5,
+/// 3 and 3 tokens (avgdl 11/3); p1 has `delay` and `ferri` once each (tf 1,
+/// n 1, dl 5).
+#[test]
+fn explain_text_shows_the_bm25_explanation() {
+    let (c, q, j) = (
+        fixture("stemming/posts.jsonl"),
+        fixture("stemming/queries.csv"),
+        fixture("stemming/qrels.csv"),
+    );
+    let res = postassay(
+        &root(),
+        &[
+            "explain",
+            "--query",
+            "q1",
+            "--doc",
+            "p1",
+            "--corpus",
+            c.to_str().unwrap(),
+            "--queries",
+            q.to_str().unwrap(),
+            "--judgments",
+            j.to_str().unwrap(),
+            "--chains",
+            "stemmed",
+        ],
+    );
+    let (stdout, stderr) = texts(&res);
+    assert_eq!(res.status.code(), Some(0), "{stderr}");
+    let (n_docs, n, tf, dl, avgdl, k1, b) = (3.0, 1.0, 1.0, 5.0, 11.0 / 3.0, 1.2, 0.75);
+    let idf = f64::ln(1.0 + (n_docs - n + 0.5) / (n + 0.5));
+    let per_term = idf * (k1 + 1.0) * tf / (tf + k1 * (1.0 - b + b * dl / avgdl));
+    let score: f64 = stdout
+        .lines()
+        .find_map(|l| l.trim().strip_prefix("rank 1, BM25 score "))
+        .expect("a rank line")
+        .parse()
+        .unwrap();
+    assert!((score - 2.0 * per_term).abs() < 2e-4, "{score} vs {}", 2.0 * per_term);
+    assert!(stdout.contains("  score explanation (tantivy):\n"), "{stdout}");
+    let idf_line = format!("{idf:.4}  idf, computed as log(1 + (N - n + 0.5) / (n + 0.5))");
+    assert_eq!(stdout.matches(idf_line.as_str()).count(), 2, "{stdout}");
+    assert!(stdout.contains("[Term=Term(field=1, type=Str, \"ferri\")]"), "{stdout}");
+}
