@@ -3,7 +3,7 @@
 //! tokenizer and after every step, so a user sees which step changed what.
 
 use std::io::{BufRead, Write};
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 use std::sync::Arc;
 
@@ -16,7 +16,7 @@ use postassay::analysis::{AnalysisContext, Analyzer};
 use postassay::error::Error;
 use postassay::input::{self, LangCode};
 
-use super::common::ChainFlags;
+use super::common::{ChainFlags, DEMO_CORPUS};
 
 #[derive(Debug, Clone, Copy, ValueEnum)]
 enum Format {
@@ -42,8 +42,9 @@ pub struct TokensArgs {
     /// Show the token stream after the tokenizer and after each step.
     #[arg(long)]
     trace: bool,
-    /// Learn hashtag-splitting word frequencies from this corpus (without it,
-    /// tags split only at case, digit and underscore boundaries).
+    /// Learn hashtag-splitting word frequencies from this corpus, as `run`
+    /// does from its own [default: corpora/demo/posts.jsonl when present;
+    /// else tags split only at case, digit and underscore boundaries].
     #[arg(long, value_name = "FILE")]
     corpus: Option<PathBuf>,
     /// Output format.
@@ -79,8 +80,30 @@ pub fn execute(args: TokensArgs) -> anyhow::Result<ExitCode> {
         stem_lang: args.stem_lang.clone(),
     };
     let spec = flags.resolve()?.into_iter().next().ok_or_else(|| Error::usage("no chain"))?;
+    // `run` learns the word frequencies of `hashtags` steps from its corpus;
+    // without --corpus the demo corpus stands in (as for `run` and `vet`),
+    // and the user is told, since tags may split otherwise than in a run.
+    let corpus = match (&args.corpus, spec.needs_word_freqs()) {
+        (Some(path), _) => Some(path.clone()),
+        (None, false) => None,
+        (None, true) if Path::new(DEMO_CORPUS).is_file() => {
+            eprintln!(
+                "postassay: tokens: hashtag words learned from the demo corpus {DEMO_CORPUS}; \
+                 pass --corpus FILE to split tags as a run on FILE does"
+            );
+            Some(PathBuf::from(DEMO_CORPUS))
+        }
+        (None, true) => {
+            eprintln!(
+                "postassay: tokens: no corpus to learn hashtag words from (no --corpus, and \
+                 {DEMO_CORPUS} is absent): tags split only at case, digit and underscore \
+                 boundaries, unlike a run"
+            );
+            None
+        }
+    };
     let ctx = AnalysisContext {
-        word_freqs: match &args.corpus {
+        word_freqs: match &corpus {
             Some(path) => {
                 let posts = input::read_corpus(path)?;
                 Some(Arc::new(WordFreqs::learn(posts.iter().map(|p| p.text.as_str()))))

@@ -90,3 +90,37 @@ fn unknown_chain_and_bad_language_exit_2() {
     assert_eq!(res.status.code(), Some(2));
     assert!(texts(&res).1.contains("ISO 639-1"));
 }
+
+/// Without --corpus, a chain whose `hashtags` step learns words from the
+/// corpus uses the demo corpus when it is there (as `run` does by default)
+/// and says so; elsewhere it says tags split only at case, digit and
+/// underscore boundaries. An all-lowercase tag shows the difference.
+#[test]
+fn hashtag_words_default_to_the_demo_corpus_and_say_so() {
+    let words = |cwd: &std::path::Path| {
+        let res = postassay(
+            cwd,
+            &["tokens", "--chain", "hashtag", "--format", "json", "#harbourmarketday"],
+        );
+        let (stdout, stderr) = texts(&res);
+        assert_eq!(res.status.code(), Some(0), "{stderr}");
+        let v: serde_json::Value = serde_json::from_str(&stdout).unwrap();
+        let tokens: Vec<String> = v[0]["tokens"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|t| t["text"].as_str().unwrap().to_string())
+            .collect();
+        (tokens, stderr)
+    };
+    let (tokens, note) = words(&root());
+    assert_eq!(tokens, ["harbourmarketday", "harbour", "market", "day"]);
+    assert!(note.contains("hashtag words learned from the demo corpus"), "{note}");
+    let elsewhere = tempfile::tempdir().unwrap();
+    let (tokens, note) = words(elsewhere.path());
+    assert_eq!(tokens, ["harbourmarketday"]);
+    assert!(note.contains("no corpus to learn hashtag words from"), "{note}");
+    // Chains without such a step say nothing.
+    let res = postassay(elsewhere.path(), &["tokens", "--chain", "standard", "#harbourmarketday"]);
+    assert_eq!(texts(&res).1, "");
+}

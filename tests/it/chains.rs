@@ -1,0 +1,53 @@
+//! Chain files through the binary: the example file runs end to end on the
+//! demo bench, and a bad chain file exits 2 naming its lines, with nothing
+//! written.
+
+use crate::util::{postassay, read_csv, root, texts, write};
+
+#[test]
+fn example_chain_file_runs_on_the_demo() {
+    let tmp = tempfile::tempdir().unwrap();
+    let out = tmp.path().join("out");
+    let res = postassay(
+        &root(),
+        &["run", "--quiet", "--chain-file", "chains/example.toml", "--out", out.to_str().unwrap()],
+    );
+    assert_eq!(res.status.code(), Some(0), "stderr: {}", texts(&res).1);
+    let summary = read_csv(&out.join("summary.csv"));
+    let mut systems: Vec<&str> = summary[1..].iter().map(|r| r[0].as_str()).collect();
+    systems.dedup();
+    // Every chain of the file, in the file's order, and nothing else.
+    assert_eq!(systems, ["folded", "english_2018", "posts_clean", "prefixes", "romance_routed"]);
+    let report: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("report.json")).unwrap()).unwrap();
+    // The routed chain has one field per language and the fallback.
+    let fields = report["systems"][4]["cost"]["posts_per_field"].as_object().unwrap();
+    let keys: Vec<&str> = fields.keys().map(String::as_str).collect();
+    assert_eq!(keys, ["text_en", "text_es", "text_fr", "text_it", "text_other"]);
+    let total: u64 = fields.values().map(|v| v.as_u64().unwrap()).sum();
+    assert_eq!(total, 4000, "every demo post in exactly one field");
+}
+
+#[test]
+fn bad_chain_file_exits_2_with_every_problem_and_writes_nothing() {
+    let tmp = tempfile::tempdir().unwrap();
+    let chains = write(
+        tmp.path(),
+        "bad.toml",
+        "[[chain]]\nname = \"a\"\nsteps = [{ step = \"stemm\" }]\n\n\
+         [[chain]]\nname = \"b\"\nsteps = [{ step = \"length\", min = 5, max = 2 }]\n",
+    );
+    let out = tmp.path().join("out");
+    let res = postassay(
+        &root(),
+        &["run", "--chain-file", chains.to_str().unwrap(), "--out", out.to_str().unwrap()],
+    );
+    let (stdout, stderr) = texts(&res);
+    assert_eq!(res.status.code(), Some(2), "stderr: {stderr}");
+    assert!(stdout.is_empty());
+    assert!(!stderr.contains("panicked"), "{stderr}");
+    assert!(stderr.contains("bad.toml:3"), "the unknown step's line: {stderr}");
+    assert!(stderr.contains("unknown variant `stemm`, expected one of `lowercase`"), "{stderr}");
+    assert!(stderr.contains("bad.toml:7"), "the second problem is listed too: {stderr}");
+    assert!(!out.exists(), "--out must not be created on failure");
+}
