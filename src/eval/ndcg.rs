@@ -117,13 +117,24 @@ fn dcg(grades: impl Iterator<Item = u32>, k: usize, gain: Gain, top: u32) -> f64
         .enumerate()
         // rank i = index + 1, discount log2(i + 1) = log2(index + 2)
         .map(|(index, g)| gain.scaled(g, top) / ((index + 2) as f64).log2())
-        .sum()
+        // Folded from +0.0: `Sum` for f64 starts at -0.0, so an empty
+        // ranking would print as `-0`.
+        .fold(0.0, |sum, g| sum + g)
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
     use approx::assert_relative_eq;
+
+    /// An evaluated query a system returned nothing for scores 0 (metrics.md),
+    /// and a plain 0, not -0, so the CSV cell reads `0`.
+    #[test]
+    fn empty_ranking_scores_positive_zero() {
+        let v = ndcg_at(&[], &[2, 1], 10, Gain::Exponential);
+        assert!(v == 0.0 && v.is_sign_positive(), "{v:?}");
+        assert_eq!(v.to_string(), "0");
+    }
     use serde::Deserialize;
 
     #[test]
