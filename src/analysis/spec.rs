@@ -455,7 +455,7 @@ pub fn select_chains(available: &[ChainSpec], names: &str) -> Result<Vec<ChainSp
 pub fn parse_chains(text: &str, origin: &str, pool: &[ChainSpec]) -> Result<Vec<ChainSpec>> {
     let raw: RawFile = toml::from_str(text).map_err(|e| {
         let line = e.span().map_or(1, |s| line_of(text, s.start));
-        Error::chain(format!("{origin}:{line}: {}", one_line(e.message())))
+        Error::chain(format!("{origin}:{line}: {}", toml_message(text, &e)))
     })?;
     let mut issues = Issues { origin, text, seen: BTreeSet::new(), listed: Vec::new(), more: 0 };
     if raw.chain.is_empty() {
@@ -603,6 +603,36 @@ fn typed_steps(
         }
     }
     steps
+}
+
+/// The TOML parser's message on one line. The parser gives no message when
+/// the file ends right after `key =` (its span is the end of the file), so
+/// that case says what a value looks like.
+fn toml_message(text: &str, e: &toml::de::Error) -> String {
+    let message = one_line(e.message());
+    if !message.is_empty() {
+        return message;
+    }
+    let at = e.span().map_or(text.len(), |s| s.start);
+    let before = text.get(..at).unwrap_or(text);
+    let line = before.rsplit('\n').next().unwrap_or(before).trim();
+    // The key is what precedes `=` after any `[`, `{` or `,` (an inline table's key).
+    let key = line
+        .strip_suffix('=')
+        .and_then(|k| k.rsplit(['[', '{', ',']).next())
+        .map(str::trim)
+        .filter(|k| !k.is_empty());
+    let after = key.map_or(String::new(), |k| format!(" after `{k} =`"));
+    let rest = text.get(at..).unwrap_or("");
+    let found = match rest.lines().next().map(str::trim) {
+        Some(next) if !next.is_empty() => format!("found {next:?}"),
+        _ if rest.trim().is_empty() => "found the end of the file".to_string(),
+        _ => "found the end of the line".to_string(),
+    };
+    format!(
+        "expected a value{after} (a quoted string such as \"words\", a number, true or \
+         false, an array [...] or an inline table {{ ... }}), {found}"
+    )
 }
 
 /// A possibly multi-line message on one line.
@@ -1256,6 +1286,25 @@ mod tests {
         );
         let e = err("[[chain]]\nname = \"r\"\n[chain.route]\nlanguages = [\"en\"]\nfallback = { steps = [{ step = \"stem\" }] }\n");
         assert!(e.contains("my.toml:5: chain \"r\": stem needs a language"), "{e}");
+    }
+
+    #[test]
+    fn a_value_missing_at_the_end_says_what_was_expected() {
+        // The TOML parser has no message for these (its span is the end of
+        // the file); the texts come from `toml_message`.
+        let what = "(a quoted string such as \"words\", a number, true or false, an array \
+                    [...] or an inline table { ... })";
+        assert_eq!(
+            err("[[chain]]\nname="),
+            format!("my.toml:2: expected a value after `name =` {what}, found the end of the file")
+        );
+        assert_eq!(
+            err("[[chain]]\nname = \"a\"\nsteps = [{ step =   "),
+            format!("my.toml:3: expected a value after `step =` {what}, found the end of the file")
+        );
+        // With a line end after `=` the parser's own (multi-line) message is
+        // kept, on one line.
+        assert_eq!(err("[[chain]]\nname=\n"), "my.toml:2: invalid string; expected `\"`, `'`");
     }
 
     #[test]

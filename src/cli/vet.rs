@@ -8,7 +8,7 @@ use std::process::ExitCode;
 
 use clap::Args;
 
-use postassay::analysis::{self, ChainSpec};
+use postassay::analysis::{self, ChainSpec, StepSpec, TagVocabulary};
 use postassay::diagnose::{self, render, DiagnosePlan, FreqSource, Sections};
 use postassay::error::Error;
 use postassay::input::LangCode;
@@ -44,7 +44,9 @@ pub struct VetArgs {
     #[arg(long, value_name = "FILE")]
     freq_corpus: Option<PathBuf>,
     /// A `word<TAB>count` list of word frequencies (repeatable); each is
-    /// measured as its own source.
+    /// measured as its own source. Words are lower-cased and a word listed
+    /// more than once counts the sum of its lines. [default: the English
+    /// list tests/fixtures/analysis/hashtag/wordfreq_en.tsv when it exists]
     #[arg(long, value_name = "FILE")]
     freq_list: Vec<PathBuf>,
     /// Worst offenders and misses listed per result.
@@ -59,6 +61,11 @@ pub struct VetArgs {
     quiet: bool,
 }
 
+/// The English word-frequency list measured by default (relative to the
+/// working directory, as the demo corpus is): exported from the `wordfreq`
+/// package by `scripts/wordfreq_export.py`, licence beside it.
+pub const DEFAULT_FREQ_LIST: &str = "tests/fixtures/analysis/hashtag/wordfreq_en.tsv";
+
 pub fn execute(args: VetArgs) -> anyhow::Result<ExitCode> {
     let plan = plan(&args)?;
     if let Some(out) = &args.out {
@@ -71,7 +78,11 @@ pub fn execute(args: VetArgs) -> anyhow::Result<ExitCode> {
         }
     };
     let started = std::time::Instant::now();
-    let found = diagnose::run(&plan, &mut progress)?;
+    let mut found = diagnose::run(&plan, &mut progress)?;
+    if let Some(note) = missing_default_list(&args, &plan, &found) {
+        progress(&format!("note: {note}"));
+        found.notes.push(note);
+    }
     match &args.out {
         Some(out) => {
             render::write_outputs(out, &found)?;
@@ -106,7 +117,13 @@ fn plan(args: &VetArgs) -> Result<DiagnosePlan, Error> {
         }
         None => {}
     }
-    freq_sources.extend(args.freq_list.iter().cloned().map(FreqSource::List));
+    if args.freq_list.is_empty() {
+        if Path::new(DEFAULT_FREQ_LIST).is_file() {
+            freq_sources.push(FreqSource::List(DEFAULT_FREQ_LIST.into()));
+        }
+    } else {
+        freq_sources.extend(args.freq_list.iter().cloned().map(FreqSource::List));
+    }
     Ok(DiagnosePlan {
         data,
         chains: diagnose::chains_under_test(chains(args)?)?,
@@ -115,6 +132,27 @@ fn plan(args: &VetArgs) -> Result<DiagnosePlan, Error> {
         freq_sources,
         chain_file: args.chain_file.clone(),
         top: args.top,
+    })
+}
+
+/// Why the default English list was not measured, when segmentation ran
+/// with learned frequencies and no `--freq-list` was given but the list is
+/// not where it is expected.
+fn missing_default_list(
+    args: &VetArgs,
+    plan: &DiagnosePlan,
+    found: &diagnose::Diagnostics,
+) -> Option<String> {
+    let learns =
+        |step: &StepSpec| matches!(step, StepSpec::Hashtags { vocabulary: TagVocabulary::Corpus });
+    let learned = !found.segmentation.is_empty()
+        && plan.chains.iter().any(|c| c.spec().pipelines().any(|p| p.steps.iter().any(learns)));
+    (learned && args.freq_list.is_empty() && !Path::new(DEFAULT_FREQ_LIST).is_file()).then(|| {
+        format!(
+            "segmentation: the English word-frequency list was not measured: \
+             {DEFAULT_FREQ_LIST} is not here (run from the repository root, or give \
+             --freq-list FILE)"
+        )
     })
 }
 

@@ -248,7 +248,8 @@ pub struct GoldTag {
 /// column after the gold holds alternatives joined by ` | ` (empty columns
 /// are skipped), except a fourth column whose whole value is one of
 /// [`MATCH_KINDS`], which the shared gold sets use to say how the gold
-/// relates to the tag. A leading `#` on the tag is removed.
+/// relates to the tag. A leading `#` on the tag is removed; a tag that is
+/// only `#` is an error.
 pub fn read_gold(path: &Path) -> Result<Vec<GoldTag>> {
     let text = read_text(path)?;
     let mut problems = Problems::new(path);
@@ -277,7 +278,15 @@ pub fn read_gold(path: &Path) -> Result<Vec<GoldTag>> {
             }
         }
         let tag = tag.trim();
-        out.push(GoldTag { line, tag: tag.strip_prefix('#').unwrap_or(tag).to_string(), accepted });
+        let tag = tag.strip_prefix('#').unwrap_or(tag);
+        if tag.is_empty() {
+            problems.push(
+                line,
+                format!("column 1 (hashtag): expected a tag after the '#', found {row:?}"),
+            );
+            continue;
+        }
+        out.push(GoldTag { line, tag: tag.to_string(), accepted });
     }
     problems.finish(out)
 }
@@ -307,6 +316,20 @@ mod tests {
         assert_eq!(gold[1].line, 3);
         assert_eq!(gold[1].accepted, ["catch-22", "catch 22"]);
         assert_eq!(gold[2].accepted, ["run it"]);
+    }
+
+    #[test]
+    fn an_empty_tag_is_an_error_naming_its_line() {
+        // Line 2 is `#` alone: nothing would be segmented, so the row is refused.
+        let (_d, path) = temp("g.tsv", "runit\trun it\n#\tx\n");
+        let err = read_gold(&path).expect_err("line 2 has no tag").to_string();
+        assert_eq!(
+            err,
+            format!(
+                "{}:2: column 1 (hashtag): expected a tag after the '#', found \"#\\tx\"",
+                path.display()
+            )
+        );
     }
 
     #[test]

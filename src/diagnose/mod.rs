@@ -282,7 +282,7 @@ pub struct Diagnostics {
 /// Every input is read (and checked) before anything is computed.
 pub fn run(plan: &DiagnosePlan, progress: &mut dyn FnMut(&str)) -> Result<Diagnostics> {
     let found = data::discover(&plan.data)?;
-    let sets = filter_sets(found, plan.languages.as_deref())?;
+    let sets = filter_sets(found, plan.languages.as_deref(), &plan.data)?;
     let mut inputs: Vec<InputFile> = Vec::new();
     let mut notes: Vec<String> = Vec::new();
     if let Some(f) = &plan.chain_file {
@@ -380,12 +380,26 @@ pub fn run(plan: &DiagnosePlan, progress: &mut dyn FnMut(&str)) -> Result<Diagno
 }
 
 /// Keep the sets whose name or language is in `languages`; every listed
-/// value must match some set.
-fn filter_sets(sets: DataSets, languages: Option<&[String]>) -> Result<DataSets> {
+/// value must match some set of the data directory `dir` (named in messages).
+fn filter_sets(
+    sets: DataSets,
+    languages: Option<&[String]>,
+    dir: &std::path::Path,
+) -> Result<DataSets> {
     let Some(wanted) = languages else { return Ok(sets) };
     let keep = |f: &data::DataFile| {
         wanted.iter().any(|w| *w == f.name || f.language.is_some_and(|l| l.as_str() == w))
     };
+    if sets.lemma_lists.is_empty() && sets.sentence_sets.is_empty() {
+        return Err(Error::usage(format!(
+            "--langs: no language data in {0}: expected {0}/{1}/LANG.lemmas.tsv, \
+             {0}/{1}/LANG.sentences.tsv or {0}/{2}/LANG.sentences.tsv (LANG an ISO 639-1 \
+             code, optionally followed by -NAME)",
+            dir.display(),
+            data::UD_DIR,
+            data::PUD_DIR
+        )));
+    }
     for w in wanted {
         let any = sets
             .lemma_lists
@@ -655,8 +669,7 @@ fn segmentation_section(
                     source.label,
                     gold.len()
                 ));
-                let mut figures = segmentation::assess(&mut analyzer, gold);
-                figures.errors.truncate(plan.top);
+                let figures = segmentation::assess(&mut analyzer, gold, plan.top);
                 out.push(SegmentationResult {
                     chain: chain.name().clone(),
                     gold: file.name.clone(),
@@ -706,6 +719,30 @@ mod tests {
         other.description = Some("mine".into());
         let chains = chains_under_test(vec![other]).expect("ok");
         assert!(matches!(chains[0], ChainUnderTest::Fixed(_)));
+    }
+
+    #[test]
+    fn a_word_listed_twice_counts_the_sum_of_its_lines() {
+        let dir = tempfile::tempdir().expect("temp dir");
+        let list = dir.path().join("f.tsv");
+        std::fs::write(&list, "run\t5\nrun\t6\nRun\t1\nit\t3\n").expect("written");
+        let plan = DiagnosePlan {
+            data: dir.path().to_path_buf(),
+            chains: Vec::new(),
+            sections: Sections::all(),
+            languages: None,
+            freq_sources: vec![FreqSource::List(list)],
+            chain_file: None,
+            top: 3,
+        };
+        let mut inputs = Vec::new();
+        let loaded = load_sources(&plan, &mut inputs, &mut |_: &str| {}).expect("a valid list");
+        let freqs = loaded[0].freqs.as_ref().expect("a table");
+        // Hand-computed: run = 5 + 6 + 1 (lower-cased, lines summed), it = 3;
+        // two words, 15 in all.
+        assert_eq!((freqs.count("run"), freqs.count("it")), (12, 3));
+        assert_eq!((freqs.len(), freqs.total()), (2, 15));
+        assert_eq!(inputs[0].role, "freq-list");
     }
 
     #[test]

@@ -40,9 +40,6 @@ use tantivy::tokenizer::TextAnalyzer;
 
 use super::data::GoldTag;
 
-/// Wrong segmentations listed per gold set and source.
-pub const EXAMPLE_ERRORS: usize = 5;
-
 /// The scoring of one tag.
 #[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
 pub struct TagScore {
@@ -155,7 +152,8 @@ pub struct SegmentationFigures {
     pub recall: Option<f64>,
     /// Harmonic mean of precision and recall.
     pub f1: Option<f64>,
-    /// The first wrong segmentations in file order.
+    /// The first wrong segmentations in file order (as many as asked for,
+    /// see [`assess`]).
     pub errors: Vec<SegmentationError>,
 }
 
@@ -198,14 +196,19 @@ pub fn predict(analyzer: &mut TextAnalyzer, tag: &str) -> Vec<String> {
     by_position.into_values().collect()
 }
 
-/// Segment and score every tag of a gold set.
-pub fn assess(analyzer: &mut TextAnalyzer, gold: &[GoldTag]) -> SegmentationFigures {
+/// Segment and score every tag of a gold set, keeping the first
+/// `max_errors` wrong segmentations (in file order) as examples.
+pub fn assess(
+    analyzer: &mut TextAnalyzer,
+    gold: &[GoldTag],
+    max_errors: usize,
+) -> SegmentationFigures {
     let mut scores = Vec::with_capacity(gold.len());
     let mut errors = Vec::new();
     for row in gold {
         let parts = predict(analyzer, &row.tag);
         let score = score_tag(&parts, &row.accepted);
-        if !score.exact && errors.len() < EXAMPLE_ERRORS {
+        if !score.exact && errors.len() < max_errors {
             errors.push(SegmentationError {
                 line: row.line,
                 tag: row.tag.clone(),
@@ -289,10 +292,13 @@ mod tests {
             GoldTag { line: 2, tag: "dreamwhat".into(), accepted: accepted(&["dream what"]) },
             GoldTag { line: 3, tag: "xyzzy".into(), accepted: accepted(&["xy zzy"]) },
         ];
-        let f = assess(&mut analyzer, &gold);
+        let f = assess(&mut analyzer, &gold, 5);
         assert_eq!((f.tags, f.exact), (3, 2));
         assert_eq!(f.errors.len(), 1);
         assert_eq!(f.errors[0].tag, "xyzzy");
         assert_eq!(f.errors[0].predicted, "xyzzy");
+        // No examples asked for: the figures stay, the list is empty.
+        let f = assess(&mut analyzer, &gold, 0);
+        assert_eq!((f.tags, f.exact, f.errors.len()), (3, 2, 0));
     }
 }

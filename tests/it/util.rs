@@ -1,5 +1,6 @@
-//! Shared helpers: a fresh temporary directory per test, fixture paths and a
-//! runner for the built binary.
+//! Shared helpers: a fresh temporary directory per test, fixture paths, a
+//! runner for the built binary, and [`report_line`] for what a test must
+//! show in a plain `cargo test` run (skip reasons, measured figures).
 
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
@@ -42,4 +43,14 @@ pub fn write(dir: &Path, name: &str, content: &str) -> PathBuf {
 pub fn read_csv(path: &Path) -> Vec<Vec<String>> {
     let text = std::fs::read_to_string(path).expect("output exists");
     text.lines().map(|l| l.split(',').map(str::to_string).collect()).collect()
+}
+
+/// Write `msg` as one line straight to the process's stderr. The test
+/// harness captures only the `print!`/`eprint!` macros (and shows them only
+/// for failing tests), so unlike `eprintln!` this line appears in a plain
+/// `cargo test --release` run: use it for the reason a data-dependent test
+/// skipped and for the figures a full pass measured.
+pub fn report_line(msg: &str) {
+    use std::io::Write;
+    let _ = writeln!(std::io::stderr().lock(), "{msg}");
 }
