@@ -2,17 +2,23 @@
 """Reference values for src/stats/ (paired t-test p-values and t quantiles).
 
 Writes tests/fixtures/stats/scipy_stats.json, read by the unit tests in
-src/stats/t_test.rs and src/stats/power.rs.
+src/stats/t_test.rs and src/stats/power.rs, and by tests/it/score.rs, which
+feeds the case "score_fixture_mrr" through `postassay score`.
 
 Usage (from the crate root):
     pip install scipy numpy
     python3 scripts/scipy_stats.py
 
-Every input value is rounded to 4 decimals so that it parses to the same
-double in Rust as here (a 4-digit decimal is correctly rounded by any
-parser), and the generator is seeded, so the output is reproducible.
+Every random input value is rounded to 4 decimals so that it parses to the
+same double in Rust as here (a 4-digit decimal is correctly rounded by any
+parser), and the generator is seeded, so the output is reproducible. The
+last case is not random: its values are the per-query reciprocal ranks (MRR,
+Voorhees 1999) of the runs in tests/fixtures/score/scipy/, computed here
+from those files (1 / position of the first relevant post; 0 when a run
+returns nothing relevant), written as the shortest repr that round-trips.
 """
 
+import csv
 import json
 import math
 import os
@@ -24,14 +30,36 @@ from scipy import stats
 SEED = 20240601
 ALPHA = 0.05
 POWER = 0.8
-OUT = os.path.join(
-    os.path.dirname(os.path.abspath(__file__)),
-    "..",
-    "tests",
-    "fixtures",
-    "stats",
-    "scipy_stats.json",
-)
+FIXTURES = os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "tests", "fixtures")
+OUT = os.path.join(FIXTURES, "stats", "scipy_stats.json")
+# The `postassay score` fixture whose per-query MRR values make the last case.
+SCORE_FIXTURE = os.path.join(FIXTURES, "score", "scipy")
+
+
+def reciprocal_ranks(run_path, relevant):
+    """Per evaluated query (byte order of ids), 1 / position of the first
+    relevant post in the run (rank ascending, ties by doc_id), else 0."""
+    ranked = {}
+    with open(run_path, newline="", encoding="utf-8") as f:
+        for row in csv.DictReader(f):
+            ranked.setdefault(row["query_id"], []).append((int(row["rank"]), row["doc_id"]))
+    out = []
+    for q in sorted(relevant, key=lambda x: x.encode("utf-8")):
+        docs = [d for _, d in sorted(ranked.get(q, []), key=lambda x: (x[0], x[1].encode("utf-8")))]
+        out.append(next((1.0 / i for i, d in enumerate(docs, 1) if d in relevant[q]), 0.0))
+    return out
+
+
+def score_fixture_case():
+    """MRR per query of tests/fixtures/score/scipy/{system,base}.csv."""
+    relevant = {}
+    with open(os.path.join(SCORE_FIXTURE, "qrels.csv"), newline="", encoding="utf-8") as f:
+        for row in csv.DictReader(f):
+            if int(row["grade"]) >= 1:
+                relevant.setdefault(row["query_id"], set()).add(row["doc_id"])
+    system = reciprocal_ranks(os.path.join(SCORE_FIXTURE, "system.csv"), relevant)
+    baseline = reciprocal_ranks(os.path.join(SCORE_FIXTURE, "base.csv"), relevant)
+    return ("score_fixture_mrr", system, baseline)
 
 
 def metric_like(rng, n, lo=0.0, hi=1.0):
@@ -84,6 +112,10 @@ def make_cases(rng):
 
     # Only two queries with opposite differences.
     add("two_opposite", [0.5, 0.25], [0.25, 0.5])
+
+    # Per-query MRR of a `postassay score` fixture (uses no random numbers,
+    # so the cases above are unchanged by it).
+    add(*score_fixture_case())
     return cases
 
 

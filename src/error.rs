@@ -5,6 +5,12 @@
 //! `Display` prints `path:line: message` (or `path: message` when no line
 //! applies); the CLI prefixes the program name and maps every error to exit
 //! code 2.
+//!
+//! `Display` is the whole message, the operating system's text of an I/O
+//! error included, so [`Error`] reports no `source()`: the CLI prints errors
+//! with their source chain (`{:#}`), and a source would repeat that text
+//! ("No such file or directory (os error 2)" twice). The underlying
+//! `std::io::Error` stays reachable through [`Error::io_error`].
 
 use std::fmt;
 use std::path::{Path, PathBuf};
@@ -67,6 +73,15 @@ impl Error {
     /// The kind of this error.
     pub fn kind(&self) -> &ErrorKind {
         &self.0
+    }
+
+    /// The underlying I/O error of an [`ErrorKind::Io`], if this is one
+    /// (for callers that act on its kind, such as a broken pipe).
+    pub fn io_error(&self) -> Option<&std::io::Error> {
+        match &*self.0 {
+            ErrorKind::Io { err, .. } => Some(err),
+            _ => None,
+        }
     }
 
     /// One problem at one line of a file.
@@ -187,14 +202,9 @@ impl fmt::Display for Error {
     }
 }
 
-impl std::error::Error for Error {
-    fn source(&self) -> Option<&(dyn std::error::Error + 'static)> {
-        match &*self.0 {
-            ErrorKind::Io { err, .. } => Some(err),
-            _ => None,
-        }
-    }
-}
+/// No `source()`: `Display` already ends with the I/O error's own text (see
+/// the module docs), and printing both would say it twice.
+impl std::error::Error for Error {}
 
 #[cfg(test)]
 mod tests {
@@ -211,5 +221,18 @@ mod tests {
         assert_eq!(text.lines().count(), MAX_LISTED_PROBLEMS + 1);
         assert!(text.starts_with("q.csv:2: bad"));
         assert!(text.ends_with("… and 5 more problems"));
+    }
+
+    #[test]
+    fn io_error_says_the_os_text_once_with_its_source_chain() {
+        let os = std::io::Error::new(std::io::ErrorKind::NotFound, "no such file");
+        let err = Error::io(Path::new("q.csv"), os);
+        assert_eq!(err.to_string(), "q.csv: no such file");
+        // The CLI prints the message and then its source chain: no source,
+        // so the OS text appears once.
+        assert!(std::error::Error::source(&err).is_none());
+        let err = Error::io(Path::new("q.csv"), std::io::ErrorKind::BrokenPipe.into());
+        assert_eq!(err.io_error().map(std::io::Error::kind), Some(std::io::ErrorKind::BrokenPipe));
+        assert!(Error::usage("x").io_error().is_none());
     }
 }

@@ -22,10 +22,13 @@ fn main() -> ExitCode {
     }
 }
 
-/// A closed stdout (e.g. piped into `head`) is not an error.
+/// A closed stdout (e.g. piped into `head`) is not an error. The I/O error
+/// is either in the chain itself or inside the library's error (which
+/// reports no source, so that its message is printed once).
 fn is_broken_pipe(err: &anyhow::Error) -> bool {
     err.chain().any(|e| {
         e.downcast_ref::<std::io::Error>()
+            .or_else(|| e.downcast_ref::<postassay::error::Error>().and_then(|p| p.io_error()))
             .is_some_and(|io| io.kind() == std::io::ErrorKind::BrokenPipe)
     })
 }

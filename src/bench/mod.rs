@@ -241,6 +241,7 @@ pub fn run(plan: &RunPlan, progress: &mut dyn FnMut(&str)) -> Result<BenchOutput
     out.report.settings.redact = plan.redact;
     out.report.diagnostics = diagnostics;
     out.report.timing = Timing { total_seconds: started.elapsed().as_secs_f64(), chains: timings };
+    announce_warnings(&out.report, progress);
     Ok(out)
 }
 
@@ -266,15 +267,16 @@ fn diagnose_chains(
     diagnose::run(&diagnose_plan, progress)
 }
 
-/// Score existing runs against judgments.
-pub fn score(plan: &ScorePlan) -> Result<BenchOutput> {
+/// Score existing runs against judgments. `progress` receives the report's
+/// warnings (the CLI prints them on stderr).
+pub fn score(plan: &ScorePlan, progress: &mut dyn FnMut(&str)) -> Result<BenchOutput> {
     let started = Instant::now();
     if plan.runs.is_empty() {
         return Err(Error::usage("give at least one --run NAME=FILE"));
     }
     let names: Vec<ChainName> = plan.runs.iter().map(|(n, _)| n.clone()).collect();
     let baseline = baseline_index(&names, plan.options.baseline.as_ref())?;
-    let (judgments, warnings) = input::read_judgments(&plan.judgments)?;
+    let (judgments, mut warnings) = input::read_judgments(&plan.judgments)?;
     let queries = plan.queries.as_deref().map(input::read_queries).transpose()?;
     let mut runs = Vec::new();
     for (name, path) in &plan.runs {
@@ -289,6 +291,29 @@ pub fn score(plan: &ScorePlan) -> Result<BenchOutput> {
         inputs.push(hash_input(&format!("run:{name}"), path)?);
     }
     let population = eval::query_population(&judgments, &plan.options.eval);
+    if let (Some(path), Some(qs)) = (&plan.queries, &queries) {
+        // Breakdowns read each query's language and tags from the queries
+        // file; an evaluated query it lacks still counts everywhere else but
+        // lands in the `(none)` language cell with no tag, so say how many.
+        let in_file: BTreeSet<&QueryId> = qs.iter().map(|q| &q.id).collect();
+        let missing: Vec<String> = population
+            .evaluated
+            .iter()
+            .filter(|q| !in_file.contains(q))
+            .map(ToString::to_string)
+            .collect();
+        if !missing.is_empty() {
+            warnings.push(format!(
+                "{}: {} of the {} evaluated queries {} not in the queries file; they are scored \
+                 and tested but fall under language \"(none)\" with no tag in the breakdowns: {}",
+                path.display(),
+                missing.len(),
+                population.evaluated.len(),
+                if missing.len() == 1 { "is" } else { "are" },
+                abbreviate(&missing)
+            ));
+        }
+    }
     let infos = names.iter().map(|n| SystemInfo { name: n.clone(), cost: None }).collect();
     let assembled = Assembly {
         command: "score",
@@ -306,7 +331,18 @@ pub fn score(plan: &ScorePlan) -> Result<BenchOutput> {
     };
     let mut out = assembled.finish(&plan.options)?;
     out.report.timing.total_seconds = started.elapsed().as_secs_f64();
+    announce_warnings(&out.report, progress);
     Ok(out)
+}
+
+/// Hand each warning of the finished report to `progress` as one line
+/// `warning: …`, so whatever was collected into the report (from the input
+/// readers, the population, the evaluation) is also seen on stderr, unless
+/// the CLI's `--quiet` silences progress. The report keeps them unchanged.
+fn announce_warnings(report: &Report, progress: &mut dyn FnMut(&str)) {
+    for w in &report.warnings {
+        progress(&format!("warning: {}", w.replace('\n', " ")));
+    }
 }
 
 /// Build every chain, learning the hashtag word frequencies from the posts
@@ -334,7 +370,7 @@ fn baseline_index(names: &[ChainName], wanted: Option<&ChainName>) -> Result<usi
         Some(w) => names.iter().position(|n| n == w).ok_or_else(|| {
             let list: Vec<&str> = names.iter().map(ChainName::as_str).collect();
             Error::usage(format!(
-                "--baseline {w:?} is not one of the systems: expected one of {}",
+                "--baseline {w:?} is not one of the systems ({})",
                 list.join(", ")
             ))
         }),
@@ -604,7 +640,7 @@ mod tests {
         assert_eq!(baseline_index(&names, None).unwrap(), 0);
         assert_eq!(baseline_index(&names, Some(&ChainName::from("b"))).unwrap(), 1);
         let err = baseline_index(&names, Some(&ChainName::from("c"))).unwrap_err();
-        assert!(err.to_string().contains("expected one of a, b"));
+        assert_eq!(err.to_string(), "--baseline \"c\" is not one of the systems (a, b)");
         let dup = vec![ChainName::from("a"), ChainName::from("a")];
         assert!(baseline_index(&dup, None).unwrap_err().to_string().contains("twice"));
     }

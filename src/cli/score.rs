@@ -12,7 +12,13 @@ use postassay::report;
 
 use super::common::{check_out_dir, EvalFlags};
 
+/// Where `score` writes when `--out` is not given: not `reports/` itself,
+/// which holds the committed sample of the demo `run` (README) that a
+/// `score` of other runs would overwrite.
+const DEFAULT_SCORE_OUT: &str = "reports/score";
+
 #[derive(Debug, Args)]
+#[command(mut_arg("out", |a| a.default_value(DEFAULT_SCORE_OUT)))]
 pub struct ScoreArgs {
     /// Judgments: CSV `query_id,doc_id,grade` or the four-column layout.
     #[arg(long, value_name = "FILE")]
@@ -32,7 +38,8 @@ pub fn execute(args: ScoreArgs) -> anyhow::Result<ExitCode> {
     let plan = plan(&args)?;
     check_out_dir(&args.eval.out)?;
     let mut progress = args.eval.progress();
-    let out = bench::score(&plan)?;
+    // The report's warnings come through `progress` (bench::score).
+    let out = bench::score(&plan, &mut progress)?;
     report::write_outputs(&args.eval.out, &out.report, &[])?;
     progress(&format!("wrote {}", args.eval.out.join("report.md").display()));
     Ok(ExitCode::SUCCESS)

@@ -27,8 +27,8 @@ use crate::diagnose::render::{
 use crate::report::model::Report;
 use crate::report::svg::{self, esc, Bar, Estimate, Panel, Point, Series};
 use crate::report::text::{
-    cost_table, fixed, improves, interval, lower_is_better, moved_tables, p_equals, pvalue, ratio,
-    recommended, reindex_case, sentence, signed, spans_html,
+    breakdown_caveat, cost_table, fixed, improves, interval, lower_is_better, moved_tables,
+    names_groups, p_equals, pvalue, ratio, recommended, reindex_case, sentence, signed, spans_html,
 };
 
 /// Marks the start of the Timing section, the only part of the page that
@@ -302,6 +302,9 @@ fn against_baseline(s: &mut String, r: &Report, headline: &str) {
         let _ = writeln!(s, "<li>{}</li>", spans_html(&sentence(r, c, headline)));
     }
     s.push_str("</ul>\n");
+    if let Some(caveat) = breakdown_caveat(r).filter(|_| names_groups(r, headline)) {
+        let _ = writeln!(s, "<p>{}</p>", esc(&caveat));
+    }
     if let Some(mi) = r.metric_index(headline) {
         for (n, c) in r.comparisons.iter().filter(|c| c.metric == headline).enumerate() {
             let Some(bars) = query_differences(r, c.system.as_str(), mi) else { continue };
@@ -441,10 +444,11 @@ fn breakdowns(s: &mut String, r: &Report, headline: &str) {
             "<section id=\"{id}\">\n<h2>{title}</h2>\n<p>Mean {} per group; under it the difference \
              from the baseline, ✱ when significant after Holm at α = {}. Cells are tinted by that \
              difference: blue when the chain is better, orange when worse, stronger for larger \
-             differences. Groups under {} queries are not tested (hatched).</p>",
+             differences. Groups under {} queries are not tested (hatched).{}</p>",
             esc(headline),
             r.settings.alpha,
-            MIN_BREAKDOWN_QUERIES
+            MIN_BREAKDOWN_QUERIES,
+            breakdown_caveat(r).map(|c| format!(" {}", esc(&c))).unwrap_or_default()
         );
         heat_legend(s, scale);
         let _ = write!(

@@ -4,14 +4,14 @@
 
 use std::fmt::Write;
 
-use crate::bench::compare::BreakdownCell;
+use crate::bench::compare::{BreakdownCell, MIN_BREAKDOWN_QUERIES};
 use crate::diagnose::render::{
     conflation_table, routing_by_chain, routing_table, segmentation_table,
 };
 use crate::report::model::Report;
 use crate::report::text::{
-    cost_table, fixed, interval, moved_tables, pvalue, reindex_case, sentence, signed,
-    spans_markdown,
+    breakdown_caveat, cost_table, fixed, interval, moved_tables, names_groups, pvalue,
+    reindex_case, sentence, signed, spans_markdown,
 };
 
 /// Render the whole Markdown report.
@@ -117,6 +117,9 @@ fn against_baseline(s: &mut String, r: &Report, headline: &str) {
         let _ = writeln!(s, "- {}", spans_markdown(&sentence(r, c, headline)));
     }
     s.push('\n');
+    if let Some(caveat) = breakdown_caveat(r).filter(|_| names_groups(r, headline)) {
+        let _ = writeln!(s, "{caveat}\n");
+    }
     let _ = writeln!(
         s,
         "| system | metric | Δ mean | 95% CI of Δ | p (t-test) | p (randomization) | \
@@ -213,8 +216,10 @@ fn breakdowns(s: &mut String, r: &Report, headline: &str) {
         let _ = writeln!(
             s,
             "Mean {headline} per group; in brackets the difference from the baseline, ✱ when \
-             significant after Holm at α = {}. Groups under 5 queries are not tested.\n",
-            r.settings.alpha
+             significant after Holm at α = {}. Groups under {MIN_BREAKDOWN_QUERIES} queries are \
+             not tested.{}\n",
+            r.settings.alpha,
+            breakdown_caveat(r).map(|c| format!(" {c}")).unwrap_or_default()
         );
         breakdown_table(s, r, &cells, headline);
     }

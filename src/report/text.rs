@@ -4,7 +4,7 @@
 //! number comes from the report model (ratios of two model numbers are
 //! formatted for display, never stored).
 
-use crate::bench::compare::ComparisonRow;
+use crate::bench::compare::{BreakdownCell, ComparisonRow, MIN_BREAKDOWN_QUERIES};
 use crate::report::model::{Cost, Report};
 use crate::report::svg::esc;
 
@@ -144,6 +144,25 @@ pub fn interval(lo: Option<f64>, hi: Option<f64>) -> String {
     }
 }
 
+/// `1 evaluated query`, `3 evaluated queries`.
+fn evaluated_queries(n: usize) -> String {
+    format!("{n} evaluated quer{}", if n == 1 { "y" } else { "ies" })
+}
+
+/// Why a comparison carries no test, in the report's words (`not tested: 1
+/// evaluated query (a paired test needs at least 2)`); `None` when it was
+/// tested. metrics.md: with n < 2 no test is computed.
+pub fn not_tested(c: &ComparisonRow) -> Option<String> {
+    if c.p_holm.is_some() {
+        return None;
+    }
+    Some(if c.queries < 2 {
+        format!("not tested: {} (a paired test needs at least 2)", evaluated_queries(c.queries))
+    } else {
+        "not tested: no p-value could be computed".to_string()
+    })
+}
+
 /// `1 compared system`, `3 compared systems`.
 fn compared(n: usize) -> String {
     format!("{n} compared system{}", if n == 1 { "" } else { "s" })
@@ -190,10 +209,10 @@ pub fn reindex_case(r: &Report, headline: &str) -> Vec<Vec<Span>> {
         return out;
     }
     let rests_on = vec![t(format!(
-        "This rests on {} evaluated queries ({} skipped for having no relevant post) and {} \
+        "This rests on {} ({} skipped for having no relevant post) and {} \
          judgments; significance is a two-sided paired randomization test, Holm-adjusted across \
          {}, at α = {}.",
-        r.counts.queries_evaluated,
+        evaluated_queries(r.counts.queries_evaluated),
         r.counts.queries_skipped,
         r.counts.judgments,
         compared(rows.len()),
@@ -243,14 +262,26 @@ pub fn reindex_case(r: &Report, headline: &str) -> Vec<Vec<Span>> {
                     t(format!(" on {headline}.")),
                 ]),
                 t(format!(
-                    " At α = {} with these {} queries {}, so this report does not recommend \
-                     {}: keep ",
-                    r.settings.alpha,
-                    r.counts.queries_evaluated,
-                    if rows.len() == 1 {
-                        "the compared system shows no significant gain".to_string()
+                    "{}, so this report does not recommend {}: keep ",
+                    if r.counts.queries_evaluated < 2 {
+                        format!(
+                            " With {} no paired test can run (it needs at least 2)",
+                            evaluated_queries(r.counts.queries_evaluated)
+                        )
                     } else {
-                        format!("none of the {} shows a significant gain", compared(rows.len()))
+                        format!(
+                            " At α = {} with these {} queries {}",
+                            r.settings.alpha,
+                            r.counts.queries_evaluated,
+                            if rows.len() == 1 {
+                                "the compared system shows no significant gain".to_string()
+                            } else {
+                                format!(
+                                    "none of the {} shows a significant gain",
+                                    compared(rows.len())
+                                )
+                            }
+                        )
                     },
                     if r.command == "run" { "reindexing" } else { "a switch" }
                 )),
@@ -269,18 +300,21 @@ pub fn reindex_case(r: &Report, headline: &str) -> Vec<Vec<Span>> {
             if let Some(c) = closest {
                 p.push(t("Closest: "));
                 p.push(code(c.system.as_str()));
-                p.push(t(format!(
-                    ", {} (95% CI of the difference {}, {} after Holm){}.",
-                    signed(c.delta),
-                    interval(c.delta_ci_low, c.delta_ci_high),
-                    p_equals(c.p_holm),
-                    c.min_detectable
-                        .map(|m| format!(
-                            "; this query set detects differences of about {} or more",
-                            fixed(m)
-                        ))
-                        .unwrap_or_default()
-                )));
+                p.push(t(match not_tested(c) {
+                    Some(why) => format!(", {}, {why}.", signed(c.delta)),
+                    None => format!(
+                        ", {} (95% CI of the difference {}, {} after Holm){}.",
+                        signed(c.delta),
+                        interval(c.delta_ci_low, c.delta_ci_high),
+                        p_equals(c.p_holm),
+                        c.min_detectable
+                            .map(|m| format!(
+                                "; this query set detects differences of about {} or more",
+                                fixed(m)
+                            ))
+                            .unwrap_or_default()
+                    ),
+                }));
             }
             for c in rows.iter().filter(|c| c.significant && !improves(c)) {
                 p.push(t(" "));
@@ -403,26 +437,50 @@ fn holes_case(r: &Report, system: Option<&str>, base: &str) -> Vec<Span> {
     p
 }
 
+/// The query groups (languages, tags) where `c`'s system differs
+/// detectably from the baseline on `headline`, in breakdown order.
+fn group_findings<'a>(
+    r: &'a Report,
+    c: &ComparisonRow,
+    headline: &str,
+) -> Vec<(&'a BreakdownCell, &'a ComparisonRow)> {
+    r.breakdowns
+        .iter()
+        .filter_map(|cell| {
+            let cc =
+                cell.comparisons.iter().find(|x| x.system == c.system && x.metric == headline)?;
+            cc.significant.then_some((cell, cc))
+        })
+        .collect()
+}
+
 /// One sentence per compared system: the overall finding on the headline
-/// metric with its Holm-adjusted p, then the query groups (languages, tags)
-/// where it is detectably better or worse.
+/// metric with the 95% interval of the difference and its Holm-adjusted p
+/// (or why it was not tested), then the query groups (languages, tags)
+/// where it is detectably better or worse, each with its query count.
 pub fn sentence(r: &Report, c: &ComparisonRow, headline: &str) -> Vec<Span> {
     let mut out = vec![code(c.system.as_str()), t(" ")];
+    if let Some(why) = not_tested(c) {
+        out.push(t("differs from "));
+        out.push(code(c.baseline.as_str()));
+        out.push(t(format!(" by {} on {headline} overall, {why}.", signed(c.delta))));
+        return out;
+    }
+    let overall = format!(
+        "{}, 95% CI {}, {} after Holm",
+        signed(c.delta),
+        interval(c.delta_ci_low, c.delta_ci_high),
+        p_equals(c.p_holm)
+    );
     if c.significant {
         out.push(t(format!("scores {} than ", if c.delta > 0.0 { "higher" } else { "lower" })));
         out.push(code(c.baseline.as_str()));
-        out.push(t(format!(
-            " on {headline} overall ({}, {} after Holm)",
-            signed(c.delta),
-            p_equals(c.p_holm)
-        )));
+        out.push(t(format!(" on {headline} overall ({overall})")));
     } else {
         out.push(t("shows no detectable difference from "));
         out.push(code(c.baseline.as_str()));
         out.push(t(format!(
-            " on {headline} overall ({}, {} after Holm{})",
-            signed(c.delta),
-            p_equals(c.p_holm),
+            " on {headline} overall ({overall}{})",
             c.min_detectable
                 .map(|m| format!(
                     "; this query set detects differences of about {} or more",
@@ -431,44 +489,62 @@ pub fn sentence(r: &Report, c: &ComparisonRow, headline: &str) -> Vec<Span> {
                 .unwrap_or_default()
         )));
     }
-    let mut better: Vec<Vec<Span>> = Vec::new();
-    let mut worse: Vec<Vec<Span>> = Vec::new();
-    for cell in &r.breakdowns {
-        let Some(cc) =
-            cell.comparisons.iter().find(|x| x.system == c.system && x.metric == headline)
-        else {
-            continue;
-        };
-        if cc.significant {
-            let group = vec![
-                t(format!("{} ", cell.dimension)),
-                code(cell.value.as_str()),
-                t(format!(" ({}, {})", signed(cc.delta), p_equals(cc.p_holm))),
-            ];
-            if cc.delta > 0.0 {
-                better.push(group);
-            } else {
-                worse.push(group);
-            }
-        }
-    }
-    for (label, groups) in [("; better for ", &better), ("; worse for ", &worse)] {
+    let findings = group_findings(r, c, headline);
+    for (label, better) in [("; better for ", true), ("; worse for ", false)] {
+        let groups: Vec<_> = findings.iter().filter(|(_, cc)| improves(cc) == better).collect();
         if groups.is_empty() {
             continue;
         }
         out.push(t(label));
-        for (i, g) in groups.iter().enumerate() {
+        for (i, (cell, cc)) in groups.iter().enumerate() {
             if i > 0 {
                 out.push(t(", "));
             }
-            out.extend(g.iter().cloned());
+            out.push(t(format!("{} ", cell.dimension)));
+            out.push(code(cell.value.as_str()));
+            out.push(t(format!(
+                " ({}, n = {}, {})",
+                signed(cc.delta),
+                cc.queries,
+                p_equals(cc.p_holm)
+            )));
         }
     }
-    if better.is_empty() && worse.is_empty() && !r.breakdowns.is_empty() {
-        out.push(t("; no query language or tag group differs detectably"));
+    if findings.is_empty() && !r.breakdowns.is_empty() {
+        if r.breakdowns.iter().any(|cell| !cell.too_small) {
+            out.push(t("; no query language or tag group differs detectably"));
+        } else {
+            out.push(t(format!(
+                "; no query language or tag group has the {MIN_BREAKDOWN_QUERIES} queries a test \
+                 needs"
+            )));
+        }
     }
     out.push(t("."));
     out
+}
+
+/// Whether any [`sentence`] names a query group (so the reader needs
+/// [`breakdown_caveat`] next to the sentences).
+pub fn names_groups(r: &Report, headline: &str) -> bool {
+    r.comparisons
+        .iter()
+        .filter(|c| c.metric == headline && not_tested(c).is_none())
+        .any(|c| !group_findings(r, c, headline).is_empty())
+}
+
+/// How to read a breakdown p-value: Holm adjusts it across the systems of
+/// one group only, not across the groups, so with many groups some will
+/// look significant by chance. `None` when no breakdown cell was tested.
+pub fn breakdown_caveat(r: &Report) -> Option<String> {
+    let tests: usize = r.breakdowns.iter().map(|cell| cell.comparisons.len()).sum();
+    (tests > 0).then(|| {
+        format!(
+            "Breakdown p-values are per group: Holm adjusts them across the systems within a \
+             group, not across the {tests} breakdown tests of this report, so treat a single \
+             group's finding as a lead to check (exploratory), not as a result."
+        )
+    })
 }
 
 /// A table both renderings draw alike: header cells, then rows of cells,
@@ -618,6 +694,137 @@ pub fn moved_tables(r: &Report, headline: &str) -> Vec<(String, Table)> {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::ids::ChainName;
+    use crate::report::model::{Counts, Settings, Timing, ToolInfo, SCHEMA_VERSION};
+
+    /// A comparison row of `system` against `standard` on ndcg@10.
+    fn row(
+        system: &str,
+        n: usize,
+        delta: f64,
+        ci: Option<(f64, f64)>,
+        p: Option<f64>,
+    ) -> ComparisonRow {
+        ComparisonRow {
+            baseline: ChainName::from("standard"),
+            system: ChainName::from(system),
+            metric: "ndcg@10".to_string(),
+            queries: n,
+            delta,
+            delta_ci_low: ci.map(|c| c.0),
+            delta_ci_high: ci.map(|c| c.1),
+            p_ttest: p,
+            p_randomization: p,
+            p_holm: p,
+            wins: 0,
+            losses: 0,
+            ties: 0,
+            min_detectable: None,
+            significant: p.is_some_and(|p| p < 0.05),
+        }
+    }
+
+    /// A report holding only what the sentences read.
+    fn report(comparisons: Vec<ComparisonRow>, breakdowns: Vec<BreakdownCell>) -> Report {
+        Report {
+            schema_version: SCHEMA_VERSION,
+            tool: ToolInfo { name: "postassay".into(), version: "0".into() },
+            command: "run".into(),
+            inputs: Vec::new(),
+            settings: Settings {
+                metrics: vec!["ndcg@10".into()],
+                relevant_from: 1,
+                gain: "exp".into(),
+                max_grade: 1,
+                baseline: ChainName::from("standard"),
+                seed: 42,
+                permutations: 10_000,
+                bootstrap_resamples: 10_000,
+                alpha: 0.05,
+                depth: None,
+                redact: false,
+                chains: Vec::new(),
+            },
+            counts: Counts {
+                posts: None,
+                queries: None,
+                queries_evaluated: 70,
+                queries_skipped: 0,
+                judgments: 0,
+            },
+            systems: Vec::new(),
+            summary: Vec::new(),
+            per_query: Vec::new(),
+            comparisons,
+            breakdowns,
+            skipped_queries: Vec::new(),
+            moved: Vec::new(),
+            diagnostics: None,
+            warnings: Vec::new(),
+            timing: Timing::default(),
+        }
+    }
+
+    fn cell(value: &str, rows: Vec<ComparisonRow>) -> BreakdownCell {
+        BreakdownCell {
+            dimension: "tag".into(),
+            value: value.into(),
+            queries: rows.first().map_or(2, |r| r.queries),
+            too_small: rows.is_empty(),
+            systems: Vec::new(),
+            comparisons: rows,
+        }
+    }
+
+    #[test]
+    fn sentence_gives_the_interval_and_each_group_size() {
+        // Numbers of the demo report's `stemmed` row (reports/report.md).
+        let overall = row("stemmed", 70, 0.092, Some((0.033, 0.154)), Some(0.012));
+        let r = report(
+            vec![overall.clone()],
+            vec![
+                cell("inflected", vec![row("stemmed", 12, 0.293, None, Some(0.0004))]),
+                cell("overstem", vec![row("stemmed", 6, -0.2, None, Some(0.031))]),
+                cell("short", vec![row("stemmed", 30, 0.01, None, Some(0.6))]),
+            ],
+        );
+        assert_eq!(
+            spans_markdown(&sentence(&r, &overall, "ndcg@10")),
+            "`stemmed` scores higher than `standard` on ndcg@10 overall (+0.092, 95% CI \
+             [0.033, 0.154], p = 0.012 after Holm); better for tag `inflected` (+0.293, n = 12, \
+             p < 0.001); worse for tag `overstem` (−0.200, n = 6, p = 0.031)."
+        );
+        assert!(names_groups(&r, "ndcg@10"));
+        // Three tested group rows (one system, one metric, three groups).
+        assert!(
+            breakdown_caveat(&r).is_some_and(|c| c.contains("not across the 3 breakdown tests"))
+        );
+    }
+
+    #[test]
+    fn sentence_without_a_test_says_so_and_why() {
+        // metrics.md: with n < 2 no test is computed (p and interval empty).
+        let untested = row("stemmed", 1, 0.632, None, None);
+        let r = report(vec![untested.clone()], vec![cell("short", Vec::new())]);
+        assert_eq!(
+            spans_markdown(&sentence(&r, &untested, "ndcg@10")),
+            "`stemmed` differs from `standard` by +0.632 on ndcg@10 overall, not tested: 1 \
+             evaluated query (a paired test needs at least 2)."
+        );
+        assert!(!names_groups(&r, "ndcg@10"));
+        assert_eq!(breakdown_caveat(&r), None, "no breakdown test, nothing to caveat");
+    }
+
+    #[test]
+    fn untested_groups_are_not_read_as_no_difference() {
+        let overall = row("stemmed", 8, 0.1, Some((0.0, 0.2)), Some(0.3));
+        let r = report(vec![overall.clone()], vec![cell("short", Vec::new())]);
+        let text = spans_markdown(&sentence(&r, &overall, "ndcg@10"));
+        assert!(
+            text.ends_with("; no query language or tag group has the 5 queries a test needs."),
+            "{text}"
+        );
+    }
 
     #[test]
     fn spans_render_alike_with_escaping() {

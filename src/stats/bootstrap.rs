@@ -30,11 +30,14 @@ pub const CONFIDENCE: f64 = 0.95;
 /// value, so a constant input gives exactly that constant as every mean and a
 /// degenerate interval at it (a plain Σv/n can be off by an ulp).
 ///
-/// `None` when `values` is empty, `resamples` is 0 or a value is not finite.
-/// One value gives the degenerate interval at it.
+/// `None` when `values` holds fewer than two values, `resamples` is 0 or a
+/// value is not finite. One value has no spread to resample: every resample
+/// would repeat it and the "interval" would be that value twice, which reads
+/// as certainty; the reports leave the interval empty instead (metrics.md:
+/// with n < 2 nothing is computed).
 pub fn bootstrap_ci(values: &[f64], resamples: u32, seed: u64) -> Option<(f64, f64)> {
     let &reference = values.first()?;
-    if resamples == 0 || values.iter().any(|v| !v.is_finite()) {
+    if values.len() < 2 || resamples == 0 || values.iter().any(|v| !v.is_finite()) {
         return None;
     }
     let n = values.len();
@@ -127,12 +130,14 @@ mod tests {
     fn constant_values_give_degenerate_interval() {
         // 0.1 is not dyadic: a plain sum / n would drift by an ulp.
         assert_eq!(bootstrap_ci(&[0.1; 7], 500, 3), Some((0.1, 0.1)));
-        assert_eq!(bootstrap_ci(&[0.3], 500, 3), Some((0.3, 0.3)));
+        assert_eq!(bootstrap_ci(&[0.3, 0.3], 500, 3), Some((0.3, 0.3)));
     }
 
     #[test]
     fn refuses_what_it_cannot_compute() {
         assert_eq!(bootstrap_ci(&[], 500, 3), None);
+        // One value: no spread to resample, no interval (not [0.3, 0.3]).
+        assert_eq!(bootstrap_ci(&[0.3], 500, 3), None);
         assert_eq!(bootstrap_ci(&[0.5, 0.2], 0, 3), None);
         assert_eq!(bootstrap_ci(&[0.5, f64::NAN], 500, 3), None);
     }

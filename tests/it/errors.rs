@@ -338,3 +338,86 @@ fn partial_input_flags_are_a_usage_error() {
         &["--judgments"],
     );
 }
+
+/// An I/O error prints the operating system's text once, whatever the
+/// command: the library error already holds it, and `main` prints the
+/// error's source chain too (the bug printed "No such file or directory
+/// (os error 2): No such file or directory (os error 2)").
+#[test]
+fn io_error_text_appears_once_in_every_command() {
+    let tmp = tempfile::tempdir().unwrap();
+    let qrels = fixture("score/qrels.csv");
+    let qrels = qrels.to_str().unwrap();
+    let run_a = format!("a={}", fixture("score/run_a.csv").display());
+    let queries = fixture("score/queries.csv");
+    let queries = queries.to_str().unwrap();
+    let data = fixture("diagnose/data");
+    let cases: Vec<(Vec<&str>, &str)> = vec![
+        (
+            vec!["score", "--judgments", qrels, "--run", &run_a, "--queries", "nosuch.csv"],
+            "nosuch.csv",
+        ),
+        (vec!["score", "--judgments", "nosuch-qrels.csv", "--run", &run_a], "nosuch-qrels.csv"),
+        (vec!["score", "--judgments", qrels, "--run", "a=nosuch-run.csv"], "nosuch-run.csv"),
+        (
+            vec![
+                "run",
+                "--corpus",
+                "nosuch.jsonl",
+                "--queries",
+                queries,
+                "--judgments",
+                qrels,
+                "--chains",
+                "standard",
+            ],
+            "nosuch.jsonl",
+        ),
+        (
+            vec!["vet", "--data", data.to_str().unwrap(), "--chain-file", "nosuch.toml"],
+            "nosuch.toml",
+        ),
+    ];
+    for (mut args, file) in cases {
+        let out = tmp.path().join("out");
+        let out_arg = out.to_str().unwrap().to_string();
+        if args[0] != "vet" {
+            args.extend(["--out", &out_arg]);
+        }
+        let res = postassay(tmp.path(), &args);
+        let (stdout, stderr) = texts(&res);
+        assert_eq!(res.status.code(), Some(2), "{args:?}: {stderr}");
+        assert!(stdout.is_empty(), "{args:?}: {stdout}");
+        assert_eq!(stderr.lines().count(), 1, "{args:?}: one line: {stderr}");
+        assert!(stderr.starts_with(&format!("postassay: {file}: ")), "{args:?}: {stderr}");
+        // The OS text (on Linux "No such file or directory (os error 2)") once.
+        assert_eq!(stderr.matches("(os error").count(), 1, "{args:?}: {stderr}");
+        assert!(!out.exists(), "--out must not be created on failure");
+    }
+}
+
+/// A `--baseline` that names no system quotes the name as the user typed
+/// it, not as the id type's debug form (`ChainName("nosuch")`).
+#[test]
+fn unknown_baseline_is_quoted_plainly() {
+    let tmp = tempfile::tempdir().unwrap();
+    let out = tmp.path().join("out");
+    let q = fixture("score/qrels.csv");
+    let a = format!("a={}", fixture("score/run_a.csv").display());
+    let b = format!("b={}", fixture("score/run_b.csv").display());
+    let args = [
+        "score",
+        "--judgments",
+        q.to_str().unwrap(),
+        "--run",
+        &a,
+        "--run",
+        &b,
+        "--baseline",
+        "nosuch",
+        "--out",
+        out.to_str().unwrap(),
+    ];
+    check(tmp.path(), &args, &out, &["--baseline \"nosuch\" is not one of the systems (a, b)"]);
+    assert!(!texts(&postassay(tmp.path(), &args)).1.contains("ChainName"));
+}

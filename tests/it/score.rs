@@ -160,3 +160,141 @@ fn score_is_byte_identical_across_runs() {
         assert_eq!(std::fs::read(o1.join(f)).unwrap(), std::fs::read(o2.join(f)).unwrap(), "{f}");
     }
 }
+
+/// The paired t-test of `score` end to end: per-query MRR of the runs in
+/// `tests/fixtures/score/scipy/` (each query has one relevant post; `system`
+/// finds nothing for q10), then `p_ttest` of comparisons.csv.
+#[test]
+fn p_ttest_of_score_matches_scipy_ttest_rel() {
+    // Source: scipy.stats.ttest_rel (scipy 1.17.1) on the same per-query
+    // values, case "score_fixture_mrr" written by scripts/scipy_stats.py
+    // (which computes the reciprocal ranks from the fixture's files) into
+    // tests/fixtures/stats/scipy_stats.json.
+    let doc: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(fixture("stats/scipy_stats.json")).unwrap())
+            .unwrap();
+    let case = doc["cases"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|c| c["name"] == "score_fixture_mrr")
+        .expect("the fixture holds the score case");
+    let values = |key: &str| -> Vec<f64> {
+        case[key].as_array().unwrap().iter().map(|v| v.as_f64().unwrap()).collect()
+    };
+    let tmp = tempfile::tempdir().unwrap();
+    let out = tmp.path().join("out");
+    let res = postassay(
+        &fixture("score/scipy"),
+        &[
+            "score",
+            "--quiet",
+            "--judgments",
+            "qrels.csv",
+            "--run",
+            "base=base.csv",
+            "--run",
+            "system=system.csv",
+            "--metrics",
+            "mrr",
+            "--out",
+            out.to_str().unwrap(),
+        ],
+    );
+    assert_eq!(res.status.code(), Some(0), "{}", texts(&res).1);
+    // The per-query values are the case's vectors, bit for bit (query ids
+    // q01…q10 sort the same in both).
+    let v = per_query(&out);
+    let column = |system: &str| -> Vec<f64> {
+        v.iter().filter(|(k, _)| k.0 == system && k.2 == "mrr").map(|(_, x)| *x).collect()
+    };
+    assert_eq!(column("system"), values("system"));
+    assert_eq!(column("base"), values("baseline"));
+    let cmp = read_csv(&out.join("comparisons.csv"));
+    assert_eq!(&cmp[1][..3], ["base", "system", "mrr"]);
+    let p: f64 = cmp[1][4].parse().unwrap();
+    assert_relative_eq!(p, case["p_ttest_rel"].as_f64().unwrap(), max_relative = 1e-9);
+}
+
+/// A queries file that lacks evaluated queries: those queries still count,
+/// but the breakdowns put them under language "(none)"; a warning says how
+/// many, on stderr and in the report.
+#[test]
+fn queries_file_missing_evaluated_queries_is_a_warning() {
+    let tmp = tempfile::tempdir().unwrap();
+    let out = tmp.path().join("out");
+    // q1 and q2 are evaluated (score/qrels.csv); the file has q1 only.
+    let queries = crate::util::write(tmp.path(), "q.csv", "query_id,text,lang\nq1,ferry,en\n");
+    let res = score(&out, "map", &["--queries", queries.to_str().unwrap()]);
+    let (_, stderr) = texts(&res);
+    assert_eq!(res.status.code(), Some(0), "{stderr}");
+    let expected = "1 of the 2 evaluated queries is not in the queries file";
+    assert!(
+        stderr.contains(&format!("postassay: warning: {}: {expected}", queries.display())),
+        "{stderr}"
+    );
+    assert!(stderr.contains("with no tag in the breakdowns: q2"), "{stderr}");
+    let report: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("report.json")).unwrap()).unwrap();
+    let warnings = report["warnings"].as_array().unwrap();
+    assert_eq!(warnings.iter().filter(|w| w.as_str().unwrap().contains(expected)).count(), 1);
+    // The full file (q1, q2, q3) raises no such warning.
+    let out2 = tmp.path().join("out2");
+    let full = fixture("score/queries.csv");
+    let res = score(&out2, "map", &["--queries", full.to_str().unwrap()]);
+    assert!(!texts(&res).1.contains("not in the queries file"));
+}
+
+/// One evaluated query: no interval (empty CSV cells, as formats.md leaves
+/// an absent value) and a sentence that says no test ran, and why.
+#[test]
+fn one_evaluated_query_has_no_interval_and_no_test() {
+    let tmp = tempfile::tempdir().unwrap();
+    let out = tmp.path().join("out");
+    // score/qrels.csv without q2's only relevant post: q1 alone is evaluated.
+    let qrels = std::fs::read_to_string(fixture("score/qrels.csv")).unwrap();
+    let qrels: String =
+        qrels.lines().filter(|l| !l.starts_with("q2,d5,")).map(|l| format!("{l}\n")).collect();
+    let qrels = crate::util::write(tmp.path(), "qrels.csv", &qrels);
+    let a = format!("a={}", fixture("score/run_a.csv").display());
+    let b = format!("b={}", fixture("score/run_b.csv").display());
+    let res = postassay(
+        tmp.path(),
+        &[
+            "score",
+            "--judgments",
+            qrels.to_str().unwrap(),
+            "--run",
+            &a,
+            "--run",
+            &b,
+            "--metrics",
+            "map",
+            "--out",
+            out.to_str().unwrap(),
+        ],
+    );
+    assert_eq!(res.status.code(), Some(0), "{}", texts(&res).1);
+    let summary = read_csv(&out.join("summary.csv"));
+    // Hand-computed MAP of q1 (see score_reproduces_hand_computed_values):
+    // a = (1 + 2/3) / 3 = 5/9, b = (1 + 1) / 3 = 2/3; no interval with n = 1.
+    assert_eq!(summary[1][..2], ["a", "map"]);
+    assert_relative_eq!(summary[1][2].parse::<f64>().unwrap(), 5.0 / 9.0, epsilon = 1e-12);
+    assert_eq!(
+        (summary[1][3].as_str(), summary[1][4].as_str(), summary[1][5].as_str()),
+        ("", "", "1")
+    );
+    assert_eq!((summary[2][3].as_str(), summary[2][4].as_str()), ("", ""));
+    let cmp = read_csv(&out.join("comparisons.csv"));
+    assert_eq!(cmp[1][4..7], ["", "", ""], "no p-values with n = 1 (metrics.md)");
+    let md = std::fs::read_to_string(out.join("report.md")).unwrap();
+    // Delta 2/3 − 5/9 = 1/9 ≈ +0.111.
+    assert!(
+        md.contains(
+            "- `b` differs from `a` by +0.111 on map overall, not tested: 1 evaluated query (a \
+             paired test needs at least 2)."
+        ),
+        "{md}"
+    );
+    assert!(!md.contains("p = n/a"), "{md}");
+}
