@@ -448,7 +448,10 @@ mod tests {
         if dir.is_dir() {
             true
         } else {
-            eprintln!("skipped: {} is absent", dir.display());
+            crate::analysis::testutil::report_line(&format!(
+                "skipped: {} is absent",
+                dir.display()
+            ));
             false
         }
     }

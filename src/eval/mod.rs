@@ -508,7 +508,7 @@ mod tests {
     fn cranfield_perfect_run() {
         let path = concat!(env!("CARGO_MANIFEST_DIR"), "/../shared/data/cranfield/qrels.csv");
         let Ok(mut reader) = csv::Reader::from_path(path) else {
-            eprintln!("skipped: {path} is absent");
+            crate::analysis::testutil::report_line(&format!("skipped: {path} is absent"));
             return;
         };
         let mut triples = Vec::new();
