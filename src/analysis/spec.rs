@@ -157,7 +157,9 @@ fn default_ngram_max() -> usize {
 pub enum StepSpec {
     /// Full Unicode lower-casing ([`Lowercase`](super::Lowercase)).
     Lowercase {
-        /// `tr`/`az` select the Turkic dotted/dotless i rules.
+        /// `tr`/`az` select the Turkic dotted/dotless i rules. Without a
+        /// language, a route branch's language or the chain's Turkish or
+        /// Azeri `stem`/`stop` language is filled in.
         #[serde(default, skip_serializing_if = "Option::is_none")]
         language: Option<LangCode>,
     },
@@ -701,6 +703,20 @@ fn check_pipeline(
     let in_branch = branch.map_or(String::new(), |l| {
         format!(" (give {l} its own steps in [chain.route.language.{l}])")
     });
+    // Lower-casing must follow the Turkish/Azeri dotted and dotless i rules
+    // when the steps that read its output (stop, stem) are Turkish or
+    // Azeri: a lowercase without a language takes theirs, as a route
+    // branch's takes the branch's.
+    let turkic = branch
+        .or_else(|| {
+            steps.iter().find_map(|s| match s.get_ref() {
+                StepSpec::Stem { language: Some(l), .. } | StepSpec::Stop { language: Some(l) } => {
+                    Some(*l)
+                }
+                _ => None,
+            })
+        })
+        .filter(|l| matches!(l.as_str(), "tr" | "az"));
     let mut seen_lowercase = false;
     let mut seen_fold = false;
     let mut seen_stem = false;
@@ -729,7 +745,7 @@ fn check_pipeline(
         match &mut step {
             StepSpec::Lowercase { language } => {
                 if language.is_none() {
-                    *language = branch.filter(|l| matches!(l.as_str(), "tr" | "az"));
+                    *language = turkic;
                 }
                 seen_lowercase = true;
             }
@@ -1264,6 +1280,26 @@ mod tests {
         assert_eq!(
             chains[0].route().expect("routed").branches[0].pipeline.steps[0],
             StepSpec::Lowercase { language: tr }
+        );
+        // So do plain chains whose stemmer is Turkish: `İSTANBUL` lower-cases
+        // to `istanbul` and `KIZLAR` to `kızlar` (Unicode SpecialCasing.txt,
+        // tr rules), which the Turkish Snowball stemmer reduces to `kız`
+        // (its plural suffix -lar; from memory of the algorithm).
+        let chains = parse_chains(
+            "[[chain]]\nname = \"t\"\nsteps = [{ step = \"lowercase\" }, \
+             { step = \"stem\", language = \"tr\" }]\n",
+            "t.toml",
+            &[],
+        )
+        .expect("valid");
+        let plain = chains[0].pipelines().next().expect("one pipeline");
+        assert_eq!(plain.steps[0], StepSpec::Lowercase { language: tr });
+        let built =
+            crate::analysis::Analyzer::build(&chains[0], &Default::default()).expect("builds");
+        let mut analyzer = built.fields()[0].analyzer.clone();
+        assert_eq!(
+            crate::analysis::testutil::texts(&mut analyzer, "İSTANBUL KIZLAR"),
+            ["istanbul", "kız"]
         );
     }
 
