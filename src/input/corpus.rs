@@ -2,13 +2,18 @@
 //! `lang`). Input stage: every chain indexes these posts.
 //!
 //! The layout is chosen by content, never by file name: when the first
-//! non-blank character (after a BOM) is `{` the file is JSON Lines, otherwise
-//! CSV located by header name. The file is streamed line by line (record by
+//! non-blank byte (after a BOM) is `{` the file is JSON Lines, otherwise
+//! CSV located by header name. The byte is looked at before any text is
+//! decoded, so a JSON Lines file whose first line is not UTF-8 is still read
+//! as JSON Lines and that line reported as not UTF-8. The file is streamed line by line (record by
 //! record), so only the posts themselves are held in memory.
 //!
 //! JSON Lines: one object per line; lines holding only whitespace are skipped.
-//! `id` is a string or an integer (`7` is the id `"7"`); a float, boolean,
-//! array, object or `null` id is an error. `text` must be a string; it may be
+//! `id` is a string or an integer (`7` is the id `"7"`); an integer of any
+//! size is kept as its literal digits (JSON puts no limit on integers, and
+//! serde_json would turn one beyond 64 bits into a float), read from the
+//! raw JSON text of the field; a float (`1.0`, `1e3`), boolean, array,
+//! object or `null` id is an error. `text` must be a string; it may be
 //! empty (Cranfield has two empty abstracts), and it is kept exactly. `lang`
 //! is optional: absent, `null` or `""` mean "not declared"; otherwise an ISO
 //! 639-1 code. Other fields are allowed and unused.
@@ -21,12 +26,13 @@ use std::collections::HashMap;
 use std::path::Path;
 
 use serde::Deserialize;
+use serde_json::value::RawValue;
 use serde_json::Value;
 
 use crate::error::{Problems, Result};
 use crate::ids::PostId;
 use crate::input::text::{
-    check_id, check_lang, first_non_blank_line, in_column, quoted, utf8_message, CsvTable, Lines,
+    check_id, check_lang, first_non_blank_byte, in_column, quoted, utf8_message, CsvTable, Lines,
 };
 use crate::input::LangCode;
 
@@ -44,7 +50,7 @@ pub struct Post {
 /// Read and validate a corpus file (JSON Lines or CSV, see the module docs),
 /// listing every bad line.
 pub fn read_corpus(path: &Path) -> Result<Vec<Post>> {
-    let is_jsonl = match first_non_blank_line(path)? {
+    let is_jsonl = match first_non_blank_byte(path)? {
         None => {
             return Err(crate::Error::in_file(
                 path,
@@ -52,9 +58,7 @@ pub fn read_corpus(path: &Path) -> Result<Vec<Post>> {
                  found an empty file",
             ))
         }
-        Some((_, Ok(line))) => line.trim_start().starts_with('{'),
-        // Not UTF-8: the CSV reader reports the line and column.
-        Some((_, Err(_))) => false,
+        Some(byte) => byte == b'{',
     };
     let mut posts =
         Collector { problems: Problems::new(path), first_line: HashMap::new(), posts: Vec::new() };
@@ -141,11 +145,12 @@ fn with_layout_hint(path: &Path, err: crate::Error) -> crate::Error {
 }
 
 /// The fields of one JSON line that matter; other fields are skipped
-/// without being stored.
+/// without being stored. The id is kept as raw JSON text so an integer's
+/// digits survive whatever its size.
 #[derive(Deserialize)]
-struct RawPost {
-    #[serde(default)]
-    id: Field,
+struct RawPost<'a> {
+    #[serde(default, borrow)]
+    id: RawField<'a>,
     #[serde(default)]
     text: Field,
     #[serde(default)]
@@ -159,6 +164,17 @@ struct Field(Option<Value>);
 impl<'de> Deserialize<'de> for Field {
     fn deserialize<D: serde::Deserializer<'de>>(d: D) -> std::result::Result<Self, D::Error> {
         Value::deserialize(d).map(|v| Field(Some(v)))
+    }
+}
+
+/// A JSON field kept as its raw text (borrowed from the line), `None` when
+/// absent.
+#[derive(Default)]
+struct RawField<'a>(Option<&'a RawValue>);
+
+impl<'de: 'a, 'a> Deserialize<'de> for RawField<'a> {
+    fn deserialize<D: serde::Deserializer<'de>>(d: D) -> std::result::Result<Self, D::Error> {
+        <&RawValue>::deserialize(d).map(|v| RawField(Some(v)))
     }
 }
 
@@ -231,14 +247,33 @@ fn parse_json_post(
     }
 }
 
-/// The id of a JSON post: a string (trimmed, non-empty) or an integer.
-fn json_id(value: Option<Value>) -> std::result::Result<String, String> {
+/// The id of a JSON post, from the field's raw JSON text: a string
+/// (trimmed, non-empty) or an integer, kept as its literal digits.
+fn json_id(raw: Option<&RawValue>) -> std::result::Result<String, String> {
     const EXPECTED: &str = "expected a string or an integer";
-    match value {
-        None => Err(format!("{EXPECTED}, found no such field")),
-        Some(Value::String(s)) => check_id(&s).map(str::to_string),
-        Some(Value::Number(n)) if n.is_i64() || n.is_u64() => Ok(n.to_string()),
-        Some(other) => Err(format!("{EXPECTED}, found {}", describe(&other))),
+    let Some(raw) = raw else { return Err(format!("{EXPECTED}, found no such field")) };
+    let text = raw.get();
+    if is_json_integer(text) {
+        return Ok(text.to_string());
+    }
+    // The line parsed, so the raw text is one valid JSON value.
+    match serde_json::from_str::<Value>(text) {
+        Ok(Value::String(s)) => check_id(&s).map(str::to_string),
+        // A float as written (`1e3`, not serde_json's `1000.0`).
+        Ok(Value::Number(_)) => Err(format!("{EXPECTED}, found the number {text}")),
+        Ok(other) => Err(format!("{EXPECTED}, found {}", describe(&other))),
+        Err(e) => Err(format!("{EXPECTED}, found {} ({e})", quoted(text))),
+    }
+}
+
+/// True when `text` is a JSON number without fraction or exponent
+/// (RFC 8259 section 6: `-`? then `0` or a digit 1-9 followed by digits).
+fn is_json_integer(text: &str) -> bool {
+    let digits = text.strip_prefix('-').unwrap_or(text);
+    match digits.as_bytes() {
+        [b'0'] => true,
+        [b'1'..=b'9', rest @ ..] => rest.iter().all(u8::is_ascii_digit),
+        _ => false,
     }
 }
 
@@ -345,6 +380,84 @@ mod tests {
             assert!(msg.contains(expected), "missing {expected:?} in {msg}");
         }
         assert_eq!(msg.lines().count(), 7, "{msg}");
+    }
+
+    #[test]
+    fn integer_ids_beyond_64_bits_keep_their_digits() {
+        // 2^64 = 18446744073709551616 (u64::MAX + 1) and 10^29 + … are
+        // beyond u64 and i64; JSON (RFC 8259 section 6) puts no limit on
+        // integers, so the literal digits are the id.
+        let posts = read(
+            "posts.jsonl",
+            b"{\"id\":123456789012345678901234567890,\"text\":\"a\"}\n\
+              {\"id\": -98765432109876543210987654321 , \"text\": \"b\"}\n\
+              {\"id\": 18446744073709551616, \"text\": \"c\"}\n{\"id\": 0, \"text\": \"d\"}\n",
+        );
+        let ids: Vec<&str> = posts.iter().map(|p| p.id.as_str()).collect();
+        assert_eq!(
+            ids,
+            [
+                "123456789012345678901234567890",
+                "-98765432109876543210987654321",
+                "18446744073709551616",
+                "0"
+            ]
+        );
+        // Still the same id as the string of its digits (formats.md).
+        let msg = error_of(
+            b"{\"id\": \"123456789012345678901234567890\", \"text\": \"a\"}\n\
+              {\"id\": 123456789012345678901234567890, \"text\": \"b\"}\n",
+        );
+        assert!(
+            msg.contains(
+                r#"posts.jsonl:2: duplicate id "123456789012345678901234567890" (first at line 1)"#
+            ),
+            "{msg}"
+        );
+    }
+
+    #[test]
+    fn float_ids_are_refused_as_written() {
+        let msg = error_of(
+            b"{\"id\": 1.0, \"text\": \"a\"}\n{\"id\": 1e3, \"text\": \"a\"}\n\
+              {\"id\": 123456789012345678901234567890.5, \"text\": \"a\"}\n{\"id\": -2E-1, \"text\": \"a\"}\n",
+        );
+        for expected in [
+            r#"posts.jsonl:1: field "id": expected a string or an integer, found the number 1.0"#,
+            r#"posts.jsonl:2: field "id": expected a string or an integer, found the number 1e3"#,
+            r#"posts.jsonl:3: field "id": expected a string or an integer, found the number 123456789012345678901234567890.5"#,
+            r#"posts.jsonl:4: field "id": expected a string or an integer, found the number -2E-1"#,
+        ] {
+            assert!(msg.contains(expected), "missing {expected:?} in {msg}");
+        }
+        assert_eq!(msg.lines().count(), 4, "{msg}");
+    }
+
+    #[test]
+    fn json_integer_grammar() {
+        // RFC 8259 section 6: int = zero / ( digit1-9 *DIGIT ), minus optional.
+        for yes in ["0", "-0", "7", "-3", "10", "123456789012345678901234567890"] {
+            assert!(is_json_integer(yes), "{yes}");
+        }
+        for no in ["", "-", "01", "1.0", "1e3", "+1", "1 ", "\"7\"", "0x1"] {
+            assert!(!is_json_integer(no), "{no}");
+        }
+    }
+
+    #[test]
+    fn jsonl_with_a_latin1_first_line_is_reported_as_not_utf8() {
+        // "café" in Latin-1: é is the single byte 0xE9, byte 23 of the line
+        // (`{"id": 1, "text": "caf` is 22 bytes, hand-counted).
+        let (_dir, path) = temp_file(
+            "lat1.jsonl",
+            b"{\"id\": 1, \"text\": \"caf\xE9\"}\n{\"id\": 2, \"text\": \"ok\"}\n",
+        );
+        let msg = read_corpus(&path).expect_err("not UTF-8").to_string();
+        assert!(
+            msg.ends_with("lat1.jsonl:1: expected UTF-8 text, found an invalid byte sequence at byte 23 of the line"),
+            "{msg}"
+        );
+        assert_eq!(msg.lines().count(), 1, "{msg}");
     }
 
     #[test]

@@ -17,6 +17,13 @@
 //! `\n` consumed, minus the newlines inside the record's fields, minus one
 //! when the terminator just consumed was `\n` ([`LineIndex`] remembers where
 //! the `\n` bytes are to tell).
+//!
+//! A quoted field may hold line ends (a post text with a newline), so an
+//! opening quote that is never closed makes the CSV parser read the rest of
+//! the file as that one field and return it without complaint (csv 1.4 ends
+//! the record at end of file). [`LineIndex`] therefore follows the parser's
+//! quoting rules byte by byte ([`QuoteState`]); a record still inside a quoted
+//! field at end of file is an error at the line where the record starts.
 
 use std::collections::VecDeque;
 use std::fs::File;
@@ -107,6 +114,24 @@ pub(super) fn first_non_blank_line(
     Ok(None)
 }
 
+/// The first byte of `path` (after a BOM) that is not ASCII whitespace;
+/// `None` when the file is empty or blank. Looked at before any decoding, so
+/// a layout can be chosen even when the first line is not UTF-8.
+pub(super) fn first_non_blank_byte(path: &Path) -> Result<Option<u8>> {
+    let mut reader = open(path)?;
+    loop {
+        let buf = reader.fill_buf().map_err(|e| Error::io(path, e))?;
+        if buf.is_empty() {
+            return Ok(None);
+        }
+        if let Some(&b) = buf.iter().find(|b| !b.is_ascii_whitespace()) {
+            return Ok(Some(b));
+        }
+        let n = buf.len();
+        reader.consume(n);
+    }
+}
+
 /// The message for bytes that are not UTF-8, naming the first bad byte
 /// (1-based) within `what` ("the line", "the field").
 pub(super) fn utf8_message(err: Utf8Error, what: &str) -> String {
@@ -152,21 +177,94 @@ pub(super) fn check_lang(raw: &str) -> std::result::Result<Option<LangCode>, Str
     LangCode::parse(value).map(Some).ok_or_else(|| LangCode::error_message(value))
 }
 
+/// Where the CSV parser stands with respect to quoting, after a byte. These
+/// are the parser's own states (csv-core's defaults: `,` separates fields,
+/// `\r` or `\n` ends a record, `"` quotes, `""` is a quote inside quotes, no
+/// escape byte, no comments) folded to the four that decide what a `"` means.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum QuoteState {
+    /// At the start of a field: a `"` opens a quoted field.
+    FieldStart,
+    /// Inside an unquoted field: a `"` is an ordinary byte.
+    Unquoted,
+    /// Inside a quoted field: everything up to the next `"` is text.
+    Quoted,
+    /// Just after a `"` inside a quoted field: a second `"` is a literal
+    /// quote, anything else closes the field.
+    QuoteInQuoted,
+}
+
+impl QuoteState {
+    /// The state after `byte`.
+    fn next(self, byte: u8) -> QuoteState {
+        use QuoteState::*;
+        match (self, byte) {
+            (Quoted, b'"') => QuoteInQuoted,
+            (Quoted, _) | (QuoteInQuoted, b'"') => Quoted,
+            (FieldStart, b'"') => Quoted,
+            (_, b',' | b'\r' | b'\n') => FieldStart,
+            (FieldStart | Unquoted | QuoteInQuoted, _) => Unquoted,
+        }
+    }
+}
+
+/// A quoted field opened at `offset` (a byte offset after the BOM) on
+/// physical line `line` and not closed before the end of the file.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+struct UnclosedQuote {
+    offset: u64,
+    line: u64,
+}
+
 /// A reader that remembers the byte offsets of the `\n` bytes it has passed
 /// on but the CSV parser has not yet moved beyond (a buffer's worth at most),
-/// so [`CsvTable`] can tell whether a record ended with `\n`.
+/// so [`CsvTable`] can tell whether a record ended with `\n`; and that
+/// follows the parser's quoting to tell a quoted field left open at end of
+/// file (module docs).
 struct LineIndex<R> {
     inner: R,
     offset: u64,
     newlines: VecDeque<u64>,
+    /// `\n` bytes passed on so far (the physical line is one more).
+    lines_before: u64,
+    quote: QuoteState,
+    /// Where the quoted field the parser is in (or last was in) opened.
+    opened: UnclosedQuote,
+    at_end: bool,
+}
+
+impl<R> LineIndex<R> {
+    fn new(inner: R) -> LineIndex<R> {
+        LineIndex {
+            inner,
+            offset: 0,
+            newlines: VecDeque::new(),
+            lines_before: 0,
+            quote: QuoteState::FieldStart,
+            opened: UnclosedQuote { offset: 0, line: 1 },
+            at_end: false,
+        }
+    }
 }
 
 impl<R: Read> Read for LineIndex<R> {
     fn read(&mut self, buf: &mut [u8]) -> std::io::Result<usize> {
         let n = self.inner.read(buf)?;
+        if n == 0 && !buf.is_empty() {
+            self.at_end = true;
+        }
         let read = buf.get(..n).unwrap_or(&[]);
-        for (i, _) in read.iter().enumerate().filter(|(_, &b)| b == b'\n') {
-            self.newlines.push_back(self.offset + i as u64);
+        for (i, &b) in read.iter().enumerate() {
+            let offset = self.offset + i as u64;
+            let next = self.quote.next(b);
+            if next == QuoteState::Quoted && self.quote == QuoteState::FieldStart {
+                self.opened = UnclosedQuote { offset, line: self.lines_before + 1 };
+            }
+            self.quote = next;
+            if b == b'\n' {
+                self.newlines.push_back(offset);
+                self.lines_before += 1;
+            }
         }
         self.offset += n as u64;
         Ok(n)
@@ -174,6 +272,12 @@ impl<R: Read> Read for LineIndex<R> {
 }
 
 impl<R> LineIndex<R> {
+    /// The quoted field left open at the end of the file, once the whole
+    /// file has been read; `None` before that or when every quote closed.
+    fn unclosed_quote(&self) -> Option<UnclosedQuote> {
+        (self.at_end && self.quote == QuoteState::Quoted).then_some(self.opened)
+    }
+
     /// True when the byte just before offset `end` is `\n`. Offsets before
     /// it are forgotten: the parser only moves forward.
     fn newline_before(&mut self, end: u64) -> bool {
@@ -225,7 +329,7 @@ impl CsvTable {
             // Field counts are checked per record to report every bad line
             // with its number instead of stopping at the first.
             .flexible(true)
-            .from_reader(LineIndex { inner: open(path)?, offset: 0, newlines: VecDeque::new() });
+            .from_reader(LineIndex::new(open(path)?));
         let mut table = CsvTable {
             path: path.to_path_buf(),
             reader,
@@ -241,6 +345,9 @@ impl CsvTable {
             ));
         }
         table.header_line = table.start_line(&raw);
+        if let Some(message) = table.unclosed_quote_message(&raw, table.header_line) {
+            return Err(Error::at_line(path, table.header_line, message));
+        }
         for (i, field) in raw.iter().enumerate() {
             match std::str::from_utf8(field) {
                 Ok(name) => table.header.push(name.trim().to_string()),
@@ -313,8 +420,40 @@ impl CsvTable {
         let after = self.reader.position().clone();
         let inner_newlines: u64 =
             record.iter().map(|f| f.iter().filter(|&&b| b == b'\n').count() as u64).sum();
-        let ended_with_newline = u64::from(self.reader.get_mut().newline_before(after.byte()));
-        after.line().saturating_sub(ended_with_newline + inner_newlines).max(1)
+        // A record left open at end of file has no terminator: every `\n`
+        // after its start is inside its last field.
+        let ended_with_newline =
+            self.unclosed_quote().is_none() && self.reader.get_mut().newline_before(after.byte());
+        after.line().saturating_sub(u64::from(ended_with_newline) + inner_newlines).max(1)
+    }
+
+    /// The quoted field left open at end of file when the record just read
+    /// holds it (as its last field); `None` for every other record.
+    fn unclosed_quote(&self) -> Option<UnclosedQuote> {
+        let quote = self.reader.get_ref().unclosed_quote()?;
+        // Records before the open one end at or before its quote.
+        (self.reader.position().byte() > quote.offset).then_some(quote)
+    }
+
+    /// The message for `record`, just read and starting at `line`, when it
+    /// holds the quoted field left open at end of file.
+    fn unclosed_quote_message(&self, record: &csv::ByteRecord, line: u64) -> Option<String> {
+        let quote = self.unclosed_quote()?;
+        let field = record.len().saturating_sub(1);
+        let opened = if quote.line == line {
+            "on this line".to_string()
+        } else {
+            format!("on line {}", quote.line)
+        };
+        let message = format!(
+            "expected a closing quote (\") for the quoted field opened {opened}, found the end \
+             of the file"
+        );
+        Some(match self.header.get(field) {
+            Some(name) => in_column(name, &message),
+            // The header itself (no names known yet).
+            None => format!("header field {}: {message}", field + 1),
+        })
     }
 
     fn find(&self, name: &str) -> Option<usize> {
@@ -337,6 +476,10 @@ impl CsvTable {
             let record = std::mem::take(&mut self.record);
             let line = self.start_line(&record);
             self.record = record;
+            if let Some(message) = self.unclosed_quote_message(&self.record, line) {
+                problems.push(line, message);
+                continue;
+            }
             if self.record.len() == 1 && self.record.iter().all(|f| f.trim_ascii().is_empty()) {
                 continue;
             }
@@ -459,6 +602,19 @@ mod tests {
     }
 
     #[test]
+    fn first_non_blank_byte_skips_bom_and_whitespace_before_decoding() {
+        let f = file_with(b"\xEF\xBB\xBF \r\n\t\n{\"id\": \"caf\xE9\"}\n");
+        assert_eq!(first_non_blank_byte(f.path()).expect("reads"), Some(b'{'));
+        // Past the reader's 8 KiB buffer.
+        let mut late = vec![b' '; 20_000];
+        late.push(0xE9);
+        let f = file_with(&late);
+        assert_eq!(first_non_blank_byte(f.path()).expect("reads"), Some(0xE9));
+        let blank = file_with(b"\xEF\xBB\xBF\n \r\n");
+        assert_eq!(first_non_blank_byte(blank.path()).expect("reads"), None);
+    }
+
+    #[test]
     fn quoted_cuts_long_values() {
         assert_eq!(quoted("deu-CH"), r#""deu-CH""#);
         let long = "é".repeat(100);
@@ -520,5 +676,78 @@ mod tests {
         let crlf = csv_lines(b"\xEF\xBB\xBFa,b\r\n\r\nx,y\r\n\"m\r\nl\",z\r\n3,4");
         let expected = vec![(3, "x".to_string()), (4, "m\r\nl".to_string()), (6, "3".to_string())];
         assert_eq!(crlf, (1, expected));
+    }
+
+    /// Every problem `next_row` records for `bytes`, as `line: message`.
+    fn csv_problems(bytes: &[u8]) -> Vec<String> {
+        let f = file_with(bytes);
+        let mut table = CsvTable::open(f.path(), "a,b").expect("header reads");
+        let mut problems = Problems::new(f.path());
+        while table.next_row(&mut problems).expect("reads").is_some() {}
+        let Err(err) = problems.finish(()) else { return Vec::new() };
+        match err.kind() {
+            crate::ErrorKind::Input { problems, .. } => problems
+                .iter()
+                .map(|p| format!(":{}: {}", p.line.unwrap_or(0), p.message))
+                .collect(),
+            other => vec![format!("{other:?}")],
+        }
+    }
+
+    #[test]
+    fn quote_state_follows_the_csv_parser() {
+        use QuoteState::*;
+        let walk = |bytes: &[u8]| bytes.iter().fold(FieldStart, |s, &b| s.next(b));
+        // Hand-traced against csv-core's transition_nfa (default settings).
+        assert_eq!(walk(b"a,\"x"), Quoted);
+        assert_eq!(walk(b"a,\"x\ny,z"), Quoted, "a line end inside quotes is text");
+        assert_eq!(walk(b"a,\"x\"\"y"), Quoted, "a doubled quote is a literal quote");
+        assert_eq!(walk(b"a,\"x\""), QuoteInQuoted, "closed at end of input");
+        assert_eq!(walk(b"a,5\" screen"), Unquoted, "a quote inside an unquoted field is text");
+        assert_eq!(walk(b"a, \"x"), Unquoted, "a quote after a space does not open quoting");
+        assert_eq!(walk(b"\"x\"y,"), FieldStart);
+        assert_eq!(walk(b"\"x\"\r\n\""), Quoted);
+    }
+
+    #[test]
+    fn csv_quote_left_open_at_end_of_file_is_an_error_at_its_record() {
+        // The corpus and query cases of the audit: the open quote on line 2
+        // swallowed lines 3-4 with no error before.
+        let corpus = b"id,text\np1,\"ferry delayed\np2,ferries late\np3,bike stolen\n";
+        assert_eq!(
+            csv_problems(corpus),
+            [":2: column \"text\": expected a closing quote (\") for the quoted field opened \
+              on this line, found the end of the file"]
+        );
+        // The record starts on line 3; its first field spans lines 3-4 and
+        // closes; the second field's quote opens on line 4 and never closes.
+        let later = b"a,b\nx,y\n\"m\nl\",\"open\r\nrest\r\n";
+        assert_eq!(
+            csv_problems(later),
+            [":3: column \"b\": expected a closing quote (\") for the quoted field opened on \
+              line 4, found the end of the file"]
+        );
+        // Past the parser's 8 KiB buffer: the open quote on line 3 is found
+        // only when the reader reaches the end of the file.
+        let mut long = b"a,b\nx,y\nx,\"open\n".to_vec();
+        long.extend(b"y,z\n".repeat(20_000));
+        assert_eq!(
+            csv_problems(&long),
+            [":3: column \"b\": expected a closing quote (\") for the quoted field opened on \
+              this line, found the end of the file"]
+        );
+        // Quoted line ends, doubled quotes and a closing quote right at the
+        // end of the file (no final line end) stay valid.
+        assert!(csv_problems(b"a,b\n\"x\ny\",\"say \"\"hi\"\"\"\n5\" tall,\"z\"").is_empty());
+        // An open quote in the header swallows the whole file.
+        let f = file_with(b"a,\"b\nx,y\n");
+        let err = CsvTable::open(f.path(), "a,b").err().map(|e| e.to_string()).unwrap_or_default();
+        assert!(
+            err.ends_with(
+                ":1: header field 2: expected a closing quote (\") for the quoted \
+                           field opened on this line, found the end of the file"
+            ),
+            "{err}"
+        );
     }
 }

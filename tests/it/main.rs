@@ -7,6 +7,7 @@ mod errors;
 mod explain;
 mod gate;
 mod html;
+mod input_errors;
 mod judge;
 mod pool;
 mod run;
