@@ -27,8 +27,8 @@ use crate::diagnose::render::{
 use crate::report::model::Report;
 use crate::report::svg::{self, esc, Bar, Estimate, Panel, Point, Series};
 use crate::report::text::{
-    breakdown_caveat, cost_table, fixed, improves, interval, lower_is_better, moved_tables,
-    names_groups, p_equals, pvalue, ratio, recommended, reindex_case, sentence, signed, spans_html,
+    breakdown_caveat, build_time, cost_table, fixed, headline, improves, interval, lower_is_better,
+    moved_tables, names_groups, p_equals, pvalue, reindex_case, sentence, signed, spans_html,
 };
 
 /// Marks the start of the Timing section, the only part of the page that
@@ -39,7 +39,7 @@ pub const TIMING_END: &str = "<!-- timing: end -->";
 
 /// Render the whole page.
 pub fn render(r: &Report) -> String {
-    let headline = r.settings.metrics.first().cloned().unwrap_or_default();
+    let headline = headline(r);
     let mut s = String::new();
     let _ = write!(
         s,
@@ -55,7 +55,7 @@ pub fn render(r: &Report) -> String {
     s.push_str("</section>\n");
     scores(&mut s, r);
     against_baseline(&mut s, r, &headline);
-    moved(&mut s, r, &headline);
+    moved(&mut s, r);
     breakdowns(&mut s, r, &headline);
     cost(&mut s, r, &headline);
     diagnostics(&mut s, r);
@@ -247,10 +247,11 @@ fn scores(s: &mut String, r: &Report) {
 }
 
 /// The queries that moved most, one table per chain, with example posts.
-fn moved(s: &mut String, r: &Report, headline: &str) {
+fn moved(s: &mut String, r: &Report) {
     if r.moved.is_empty() {
         return;
     }
+    let headline = r.settings.metrics.first().map(String::as_str).unwrap_or_default();
     let base = esc(r.settings.baseline.as_str());
     let _ = writeln!(
         s,
@@ -775,20 +776,8 @@ fn timing(s: &mut String, r: &Report, headline: &str) {
         r.timing.total_seconds
     );
     if !r.timing.chains.is_empty() {
-        let base = r.timing.chains.iter().find(|c| c.name == r.settings.baseline);
-        if let (Some(rec), Some(b)) = (recommended(r, headline), base) {
-            if let Some(t) = r.timing.chains.iter().find(|c| c.name == rec.system) {
-                let _ = writeln!(
-                    s,
-                    "<p>Build time of the recommended <code>{}</code>: {} that of <code>{}</code> \
-                     ({:.3} s against {:.3} s).</p>",
-                    esc(rec.system.as_str()),
-                    ratio(t.build_seconds, b.build_seconds),
-                    esc(b.name.as_str()),
-                    t.build_seconds,
-                    b.build_seconds
-                );
-            }
+        if let Some(line) = build_time(r, headline) {
+            let _ = writeln!(s, "<p>{}</p>", spans_html(&line));
         }
         let mi = r.metric_index(headline);
         let colours = series(r);

@@ -10,14 +10,14 @@ use crate::diagnose::render::{
 };
 use crate::report::model::Report;
 use crate::report::text::{
-    breakdown_caveat, cost_table, fixed, interval, moved_tables, names_groups, pvalue,
-    reindex_case, sentence, signed, spans_markdown,
+    breakdown_caveat, build_time, cost_table, fixed, headline, interval, moved_tables,
+    names_groups, pvalue, reindex_case, sentence, signed, spans_markdown,
 };
 
 /// Render the whole Markdown report.
 pub fn render(r: &Report) -> String {
     let mut s = String::new();
-    let headline = r.settings.metrics.first().cloned().unwrap_or_default();
+    let headline = headline(r);
     let _ = writeln!(s, "# postassay report\n");
     let _ = writeln!(
         s,
@@ -36,7 +36,7 @@ pub fn render(r: &Report) -> String {
     verdict(&mut s, r, &headline);
     scores(&mut s, r);
     against_baseline(&mut s, r, &headline);
-    moved(&mut s, r, &headline);
+    moved(&mut s, r);
     breakdowns(&mut s, r, &headline);
     cost(&mut s, r);
     diagnostics(&mut s, r);
@@ -52,7 +52,7 @@ pub fn render(r: &Report) -> String {
         }
         s.push('\n');
     }
-    timing(&mut s, r);
+    timing(&mut s, r, &headline);
     s
 }
 
@@ -147,10 +147,13 @@ fn against_baseline(s: &mut String, r: &Report, headline: &str) {
     s.push('\n');
 }
 
-fn moved(s: &mut String, r: &Report, headline: &str) {
+/// The queries that moved most, on the metric the bench picked them by
+/// (the first of `--metrics`).
+fn moved(s: &mut String, r: &Report) {
     if r.moved.is_empty() {
         return;
     }
+    let headline = r.settings.metrics.first().map(String::as_str).unwrap_or_default();
     let _ = writeln!(s, "## Queries that moved most\n");
     let _ = writeln!(
         s,
@@ -291,7 +294,7 @@ fn diagnostics(s: &mut String, r: &Report) {
     s.push('\n');
 }
 
-fn timing(s: &mut String, r: &Report) {
+fn timing(s: &mut String, r: &Report, headline: &str) {
     let _ = writeln!(s, "## Timing\n");
     let _ = writeln!(
         s,
@@ -301,6 +304,9 @@ fn timing(s: &mut String, r: &Report) {
     );
     if r.timing.chains.is_empty() {
         return;
+    }
+    if let Some(line) = build_time(r, headline) {
+        let _ = writeln!(s, "{}\n", spans_markdown(&line));
     }
     let _ = writeln!(
         s,

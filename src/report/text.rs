@@ -56,6 +56,36 @@ pub enum Span {
     Code(String),
     /// Emphasised text.
     Strong(Vec<Span>),
+    /// A link to a section of the same report, with its text.
+    Link(Section, Vec<Span>),
+}
+
+/// A section of the report that the reindex case links to.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Section {
+    /// Queries that moved most (`run` only).
+    Moved,
+    /// Timing, the wall-clock part.
+    Timing,
+}
+
+impl Section {
+    /// The `id` of the section in `report.html`.
+    pub fn html_id(self) -> &'static str {
+        match self {
+            Section::Moved => "moved",
+            Section::Timing => "timing",
+        }
+    }
+
+    /// The anchor a Markdown viewer gives the section's heading (lowercase,
+    /// spaces as hyphens).
+    pub fn markdown_anchor(self) -> &'static str {
+        match self {
+            Section::Moved => "queries-that-moved-most",
+            Section::Timing => "timing",
+        }
+    }
 }
 
 /// Plain text span.
@@ -76,6 +106,9 @@ pub fn spans_markdown(spans: &[Span]) -> String {
             Span::Text(x) => x.clone(),
             Span::Code(x) => format!("`{x}`"),
             Span::Strong(inner) => format!("**{}**", spans_markdown(inner)),
+            Span::Link(to, inner) => {
+                format!("[{}](#{})", spans_markdown(inner), to.markdown_anchor())
+            }
         })
         .collect()
 }
@@ -88,6 +121,9 @@ pub fn spans_html(spans: &[Span]) -> String {
             Span::Text(x) => esc(x),
             Span::Code(x) => format!("<code>{}</code>", esc(x)),
             Span::Strong(inner) => format!("<strong>{}</strong>", spans_html(inner)),
+            Span::Link(to, inner) => {
+                format!("<a href=\"#{}\">{}</a>", to.html_id(), spans_html(inner))
+            }
         })
         .collect()
 }
@@ -95,6 +131,14 @@ pub fn spans_html(spans: &[Span]) -> String {
 /// Whether a smaller value of `metric` is the better one (`unjudged@k`).
 pub fn lower_is_better(metric: &str) -> bool {
     metric.starts_with("unjudged@")
+}
+
+/// The headline metric of a report: the first of `--metrics` that measures
+/// quality, skipping `unjudged@k` (a count of judging holes, lower is
+/// better, which cannot carry a recommendation). Empty when every metric is
+/// an `unjudged@k`.
+pub fn headline(r: &Report) -> String {
+    r.settings.metrics.iter().find(|m| !lower_is_better(m)).cloned().unwrap_or_default()
 }
 
 /// Whether a comparison row shows a difference in the metric's good direction.
@@ -118,10 +162,14 @@ pub fn recommended<'a>(r: &'a Report, headline: &str) -> Option<&'a ComparisonRo
     best
 }
 
-/// The `unjudged@k` metric the judging-hole figures come from: `unjudged@10`
-/// when measured, else the first `unjudged@k` of the metric list.
-fn holes_metric(r: &Report) -> Option<(usize, &str)> {
-    r.metric_index("unjudged@10")
+/// The `unjudged@k` metric the judging-hole figures come from: the one at
+/// the headline's cutoff (`unjudged@10` for `ndcg@10`) when measured, else
+/// `unjudged@10`, else the first `unjudged@k` of the metric list.
+fn holes_metric<'a>(r: &'a Report, headline: &str) -> Option<(usize, &'a str)> {
+    headline
+        .split_once('@')
+        .and_then(|(_, k)| r.metric_index(&format!("unjudged@{k}")))
+        .or_else(|| r.metric_index("unjudged@10"))
         .or_else(|| r.settings.metrics.iter().position(|m| m.starts_with("unjudged@")))
         .and_then(|i| r.settings.metrics.get(i).map(|m| (i, m.as_str())))
 }
@@ -240,6 +288,7 @@ pub fn reindex_case(r: &Report, headline: &str) -> Vec<Vec<Span>> {
                 )),
             ]);
             out.push(other_metrics(r, c, headline));
+            out.extend(largest_gain(r, c.system.as_str(), headline));
             out.push(cost_case(r, c.system.as_str(), base));
             let mut rests = rests_on;
             if let Some(m) = c.min_detectable {
@@ -249,7 +298,7 @@ pub fn reindex_case(r: &Report, headline: &str) -> Vec<Vec<Span>> {
                 )));
             }
             out.push(rests);
-            out.push(holes_case(r, Some(c.system.as_str()), base));
+            out.push(holes_case(r, Some(c.system.as_str()), base, headline));
         }
         None => {
             out.push(vec![
@@ -326,8 +375,9 @@ pub fn reindex_case(r: &Report, headline: &str) -> Vec<Vec<Span>> {
                 )));
             }
             out.push(p);
+            out.extend(closest.and_then(|c| largest_gain(r, c.system.as_str(), headline)));
             out.push(rests_on);
-            out.push(holes_case(r, closest.map(|c| c.system.as_str()), base));
+            out.push(holes_case(r, closest.map(|c| c.system.as_str()), base, headline));
         }
     }
     out
@@ -365,8 +415,8 @@ fn cost_case(r: &Report, system: &str, base: &str) -> Vec<Span> {
             code(base),
             t(format!(
                 ": index size {} ({} against {}), vocabulary {} ({} against {} distinct terms), \
-                 {:.1} against {:.1} tokens per post. Build time is wall-clock and varies from \
-                 run to run; it is under Timing.",
+                 {:.1} against {:.1} tokens per post; build time: its ratio to the baseline is \
+                 under ",
                 ratio(c.index_bytes as f64, b.index_bytes as f64),
                 bytes(c.index_bytes),
                 bytes(b.index_bytes),
@@ -376,6 +426,8 @@ fn cost_case(r: &Report, system: &str, base: &str) -> Vec<Span> {
                 c.mean_tokens_per_post,
                 b.mean_tokens_per_post
             )),
+            Span::Link(Section::Timing, vec![t("Timing")]),
+            t(" (wall-clock, so it varies between runs and machines)."),
         ],
         _ => vec![t(
             "Cost: not measured — these systems were scored from run files, not indexed by this \
@@ -384,9 +436,70 @@ fn cost_case(r: &Report, system: &str, base: &str) -> Vec<Span> {
     }
 }
 
-/// The judging holes of `system` (the recommended or closest chain) and the baseline.
-fn holes_case(r: &Report, system: Option<&str>, base: &str) -> Vec<Span> {
-    let Some((mi, key)) = holes_metric(r) else {
+/// The build time of the recommended chain against the baseline's, for the
+/// Timing section of both renderings (wall-clock, so never in the
+/// deterministic part): `None` without a recommendation or timings.
+pub fn build_time(r: &Report, headline: &str) -> Option<Vec<Span>> {
+    let rec = recommended(r, headline)?;
+    let b = r.timing.chains.iter().find(|c| c.name == r.settings.baseline)?;
+    let c = r.timing.chains.iter().find(|c| c.name == rec.system)?;
+    Some(vec![
+        t("Build time of the recommended "),
+        code(rec.system.as_str()),
+        t(format!(": {} that of ", ratio(c.build_seconds, b.build_seconds))),
+        code(b.name.as_str()),
+        t(format!(" ({:.3} s against {:.3} s).", c.build_seconds, b.build_seconds)),
+    ])
+}
+
+/// The largest gain of `system` among the queries that moved most, as one
+/// line pointing at that section: query, example post with both ranks and
+/// the query terms it matched under `system`. Ids and terms only, never the
+/// post text, so it holds under `--redact`. `None` for `score` (no moved
+/// queries), without a gain, or when the moved queries were picked on
+/// another metric than the headline.
+fn largest_gain(r: &Report, system: &str, headline: &str) -> Option<Vec<Span>> {
+    if r.settings.metrics.first().map(String::as_str) != Some(headline) {
+        return None;
+    }
+    let m = r
+        .moved
+        .iter()
+        .filter(|m| m.system.as_str() == system && m.delta > 0.0)
+        .max_by(|a, b| a.delta.total_cmp(&b.delta).then_with(|| b.query_id.cmp(&a.query_id)))?;
+    let rank =
+        |x: Option<usize>| x.map_or_else(|| "not retrieved".to_string(), |v| format!("rank {v}"));
+    let mut p =
+        vec![t("Largest gain: "), code(m.query_id.as_str()), t(format!(" ({})", signed(m.delta)))];
+    if let Some(id) = &m.post_id {
+        p.push(t(", post "));
+        p.push(code(id.as_str()));
+        p.push(t(format!(" from {} to {}", rank(m.rank_baseline), rank(m.rank_system))));
+        if !m.matched_system.is_empty() {
+            p.push(t(" (matched "));
+            for (i, term) in m.matched_system.iter().enumerate() {
+                if i > 0 {
+                    p.push(t(", "));
+                }
+                p.push(code(term.as_str()));
+            }
+            p.push(t(")"));
+        }
+    }
+    p.push(t("; see "));
+    p.push(Span::Link(Section::Moved, vec![t("Queries that moved most")]));
+    p.push(t("."));
+    Some(p)
+}
+
+/// The judging holes of `system` (the recommended or closest chain) and the
+/// baseline, measured by the `unjudged@k` at the headline's cutoff. Judging
+/// a hole can move a score either way: a post found relevant adds to the
+/// system's DCG but also to the ideal DCG and to R, the number of relevant
+/// posts, so nDCG and MAP can fall. The paragraph therefore gives the size
+/// of the holes and draws no direction from it.
+fn holes_case(r: &Report, system: Option<&str>, base: &str, headline: &str) -> Vec<Span> {
+    let Some((mi, key)) = holes_metric(r, headline) else {
         return vec![
             t("Judging holes: unknown, because no "),
             code("unjudged@k"),
@@ -416,22 +529,11 @@ fn holes_case(r: &Report, system: Option<&str>, base: &str) -> Vec<Span> {
         }
     }
     p.push(t(
-        " Unjudged posts count as not relevant, and judging them can only raise a system's score",
+        " Unjudged posts count as not relevant. Judging them can move a score either way: a \
+         post found relevant raises a system's gain but also the ideal ranking's and the number \
+         of relevant posts, so nDCG and MAP can fall as well as rise, and the difference can \
+         grow, shrink or reverse. ",
     ));
-    match (sys_holes, mean_of(r, base, mi)) {
-        (Some((_, h)), Some(b)) if b > h => {
-            p.push(t(
-                ": the baseline has more holes, so judging them could narrow the difference.",
-            ));
-        }
-        (Some((s, h)), Some(b)) if h > b => {
-            p.push(t(": "));
-            p.push(code(s));
-            p.push(t(" has more holes, so its score is the more likely to be understated."));
-        }
-        _ => p.push(t(".")),
-    }
-    p.push(t(" "));
     p.push(code(format!("postassay pool --depth {k}")));
     p.push(t(" gathers the unjudged pairs to judge."));
     p
@@ -851,6 +953,34 @@ mod tests {
              <th scope=\"col\">n</th></tr></thead>\n<tbody>\n<tr><th scope=\"row\">\
              <code>x&lt;y</code></th><td class=\"num\">1\n2</td></tr>\n</tbody>\n</table></div>\n"
         );
+    }
+
+    #[test]
+    fn holes_do_not_claim_a_direction() {
+        // Hand-computed counterexample to "judging holes can only raise a
+        // score": one relevant post at rank 1 and an unjudged post at rank
+        // 10. nDCG@10 = 1 with R = 1; judged relevant, the post adds
+        // 1/log2(11) = 0.289 to DCG but 1/log2(3) = 0.631 to the ideal DCG,
+        // so nDCG@10 = 1.289/1.631 = 0.790, and MAP = (1 + 2/10)/2 = 0.6.
+        let mut r = report(vec![row("stemmed", 70, 0.1, Some((0.0, 0.2)), Some(0.01))], vec![]);
+        r.settings.metrics = vec!["ndcg@10".into(), "unjudged@10".into()];
+        let case: String = reindex_case(&r, "ndcg@10").iter().map(|p| spans_markdown(p)).collect();
+        assert!(!case.contains("only raise"), "{case}");
+        assert!(!case.contains("understated") && !case.contains("narrow"), "{case}");
+        assert!(case.contains("Judging them can move a score either way"), "{case}");
+        assert!(case.contains("nDCG and MAP can fall as well as rise"), "{case}");
+    }
+
+    #[test]
+    fn headline_skips_unjudged_and_holes_follow_its_cutoff() {
+        let mut r = report(Vec::new(), Vec::new());
+        r.settings.metrics = vec!["unjudged@5".into(), "ndcg@5".into(), "unjudged@10".into()];
+        assert_eq!(headline(&r), "ndcg@5");
+        // unjudged@5 is at index 0: the hole at the headline's cutoff.
+        assert_eq!(holes_metric(&r, "ndcg@5"), Some((0, "unjudged@5")));
+        assert_eq!(holes_metric(&r, "map"), Some((2, "unjudged@10")));
+        r.settings.metrics = vec!["unjudged@10".into()];
+        assert_eq!(headline(&r), "");
     }
 
     #[test]

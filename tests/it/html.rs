@@ -296,7 +296,9 @@ fn run_with_limit(cmd: &mut Command, limit: Duration) -> bool {
 #[test]
 fn chromium_renders_the_page() {
     let Some(browser) = chromium() else {
-        eprintln!("skipped: no chromium at /usr/bin/chromium (apt-get install -y chromium)");
+        crate::util::report_line(
+            "skipped: no chromium at /usr/bin/chromium (apt-get install -y chromium)",
+        );
         return;
     };
     let tmp = tempfile::tempdir().expect("temp dir");

@@ -219,3 +219,86 @@ fn detected_routing_detects_texts_that_declare_a_language() {
     sorted.sort_unstable();
     assert_eq!(sorted, ["p1", "p2", "p3"], "{run}");
 }
+
+/// `run --redact` on the small `html/bench` fixture leaves no post text in
+/// the reports (ids stay).
+#[test]
+fn redacted_run_reports_hold_no_post_text() {
+    let tmp = tempfile::tempdir().unwrap();
+    let out = tmp.path().join("out");
+    let res = postassay(
+        &fixture("html/bench"),
+        &[
+            "run",
+            "--quiet",
+            "--redact",
+            "--corpus",
+            "posts.jsonl",
+            "--queries",
+            "queries.csv",
+            "--judgments",
+            "qrels.csv",
+            "--chains",
+            "standard,stemmed",
+            "--out",
+            out.to_str().unwrap(),
+        ],
+    );
+    assert_eq!(res.status.code(), Some(0), "{}", texts(&res).1);
+    for f in ["report.md", "report.html", "report.json"] {
+        let text = std::fs::read_to_string(out.join(f)).unwrap();
+        // Distinctive phrases of tests/fixtures/html/bench/posts.jsonl.
+        for post in ["All ferries delayed", "Ferry delay again", "repainted downtown", "sold out"] {
+            assert!(!text.contains(post), "{f} holds post text {post:?}");
+        }
+    }
+    let md = std::fs::read_to_string(out.join("report.md")).unwrap();
+    assert!(md.contains("(post texts redacted)"), "the moved section is there, redacted");
+}
+
+/// The stemming fixture's single query moves from nothing to rank 1, and the
+/// case points at it.
+#[test]
+fn run_report_shows_moved_queries_and_the_largest_gain() {
+    let tmp = tempfile::tempdir().unwrap();
+    let (corpus, queries, qrels) = (
+        fixture("stemming/posts.jsonl"),
+        fixture("stemming/queries.csv"),
+        fixture("stemming/qrels.csv"),
+    );
+    let out = tmp.path().join("out");
+    let res = postassay(
+        tmp.path(),
+        &[
+            "run",
+            "--quiet",
+            "--corpus",
+            corpus.to_str().unwrap(),
+            "--queries",
+            queries.to_str().unwrap(),
+            "--judgments",
+            qrels.to_str().unwrap(),
+            "--chains",
+            "standard,stemmed",
+            "--metrics",
+            "mrr",
+            "--out",
+            out.to_str().unwrap(),
+        ],
+    );
+    assert_eq!(res.status.code(), Some(0), "{}", texts(&res).1);
+    let md = std::fs::read_to_string(out.join("report.md")).unwrap();
+    assert!(md.contains("## Queries that moved most"), "{md}");
+    // Hand-derived: standard retrieves nothing for "ferry delay", stemmed
+    // puts p1 first (MRR 0 → 1); English Snowball: ferry, ferries → ferri;
+    // delay, delayed → delay (terms listed in byte order).
+    assert!(
+        md.contains(
+            "Largest gain: `q1` (+1.000), post `p1` from not retrieved to rank 1 (matched \
+             `delay`, `ferri`); see [Queries that moved most](#queries-that-moved-most)."
+        ),
+        "{md}"
+    );
+    let html = std::fs::read_to_string(out.join("report.html")).unwrap();
+    assert!(html.contains("see <a href=\"#moved\">Queries that moved most</a>."), "{html}");
+}
