@@ -163,14 +163,8 @@ pub fn run(plan: &RunPlan, progress: &mut dyn FnMut(&str)) -> Result<BenchOutput
 
     // Judged queries missing from the query file cannot be run: they are left
     // out of the population (rather than scored 0) and named in a warning.
-    let in_file: BTreeSet<&QueryId> = queries.iter().map(|q| &q.id).collect();
     let mut population = eval::query_population(&judgments, &plan.options.eval);
-    let missing: Vec<String> = population
-        .evaluated
-        .iter()
-        .filter(|q| !in_file.contains(q))
-        .map(ToString::to_string)
-        .collect();
+    let missing = evaluated_not_in(&population, &queries);
     if !missing.is_empty() {
         warnings.push(format!(
             "{}: {} judged queries are not in the query file and were not evaluated: {}",
@@ -178,7 +172,10 @@ pub fn run(plan: &RunPlan, progress: &mut dyn FnMut(&str)) -> Result<BenchOutput
             missing.len(),
             abbreviate(&missing)
         ));
-        population.evaluated.retain(|q| in_file.contains(q));
+        // Both lists are in byte order of the ids.
+        population
+            .evaluated
+            .retain(|q| missing.binary_search_by(|m| m.as_str().cmp(q.as_str())).is_err());
     }
 
     let mut inputs = vec![
@@ -295,13 +292,7 @@ pub fn score(plan: &ScorePlan, progress: &mut dyn FnMut(&str)) -> Result<BenchOu
         // Breakdowns read each query's language and tags from the queries
         // file; an evaluated query it lacks still counts everywhere else but
         // lands in the `(none)` language cell with no tag, so say how many.
-        let in_file: BTreeSet<&QueryId> = qs.iter().map(|q| &q.id).collect();
-        let missing: Vec<String> = population
-            .evaluated
-            .iter()
-            .filter(|q| !in_file.contains(q))
-            .map(ToString::to_string)
-            .collect();
+        let missing = evaluated_not_in(&population, qs);
         if !missing.is_empty() {
             warnings.push(format!(
                 "{}: {} of the {} evaluated queries {} not in the queries file; they are scored \
@@ -333,6 +324,13 @@ pub fn score(plan: &ScorePlan, progress: &mut dyn FnMut(&str)) -> Result<BenchOu
     out.report.timing.total_seconds = started.elapsed().as_secs_f64();
     announce_warnings(&out.report, progress);
     Ok(out)
+}
+
+/// The evaluated queries that `queries` lacks, in the population's (byte)
+/// order of ids.
+fn evaluated_not_in(population: &eval::QueryPopulation, queries: &[Query]) -> Vec<String> {
+    let in_file: BTreeSet<&QueryId> = queries.iter().map(|q| &q.id).collect();
+    population.evaluated.iter().filter(|q| !in_file.contains(q)).map(ToString::to_string).collect()
 }
 
 /// Hand each warning of the finished report to `progress` as one line
