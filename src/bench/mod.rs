@@ -17,11 +17,8 @@ pub mod explain;
 pub mod moved;
 
 use std::collections::{BTreeMap, BTreeSet};
-use std::io::Read;
 use std::path::{Path, PathBuf};
 use std::time::Instant;
-
-use sha2::{Digest, Sha256};
 
 use self::detect_cache::DetectCache;
 use crate::analysis::detect::{Detection, LangDetector};
@@ -604,20 +601,9 @@ fn abbreviate(items: &[String]) -> String {
     }
 }
 
-/// SHA-256 of a file, streamed.
+/// An input file's role, path and SHA-256, for the report.
 fn hash_input(role: &str, path: &Path) -> Result<InputFile> {
-    let mut file = std::fs::File::open(path).map_err(|e| Error::io(path, e))?;
-    let mut hasher = Sha256::new();
-    let mut buf = vec![0u8; 1 << 16];
-    loop {
-        let n = file.read(&mut buf).map_err(|e| Error::io(path, e))?;
-        if n == 0 {
-            break;
-        }
-        hasher.update(&buf[..n]);
-    }
-    let digest = hasher.finalize();
-    let sha256 = digest.iter().map(|b| format!("{b:02x}")).collect();
+    let sha256 = input::sha256_of(path)?;
     Ok(InputFile { role: role.to_string(), path: path.display().to_string(), sha256 })
 }
 

@@ -22,10 +22,7 @@
 //! and the 1-based line (see [`Problems`]). A leading BOM and CRLF line ends
 //! are accepted.
 
-use std::io::Read;
 use std::path::{Path, PathBuf};
-
-use sha2::{Digest, Sha256};
 
 use crate::error::{Error, Problems, Result};
 use crate::input::LangCode;
@@ -134,21 +131,6 @@ fn files_with_suffix(
 /// The language of a data set's name: the part before the first `-`.
 pub fn language_of_name(name: &str) -> Option<LangCode> {
     LangCode::parse(name.split('-').next().unwrap_or(name))
-}
-
-/// Hex SHA-256 of a file's bytes, streamed.
-pub fn sha256_of(path: &Path) -> Result<String> {
-    let mut file = std::fs::File::open(path).map_err(|e| Error::io(path, e))?;
-    let mut hasher = Sha256::new();
-    let mut buf = vec![0u8; 1 << 16];
-    loop {
-        let n = file.read(&mut buf).map_err(|e| Error::io(path, e))?;
-        if n == 0 {
-            break;
-        }
-        hasher.update(buf.get(..n).unwrap_or_default());
-    }
-    Ok(hasher.finalize().iter().map(|b| format!("{b:02x}")).collect())
 }
 
 /// A whole text file without its BOM; not UTF-8 is an error naming the line.
@@ -368,15 +350,5 @@ mod tests {
         assert_eq!(sets.sentence_sets.len(), 1);
         assert!(sets.gold_sets.is_empty());
         assert!(discover(&ud.join("tr.lemmas.tsv")).is_err());
-    }
-
-    #[test]
-    fn sha256_of_a_known_string() {
-        // SHA-256("abc") from FIPS 180-2, appendix B.1.
-        let (_d, path) = temp("abc.txt", "abc");
-        assert_eq!(
-            sha256_of(&path).expect("readable"),
-            "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad"
-        );
     }
 }

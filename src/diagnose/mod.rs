@@ -449,7 +449,7 @@ fn input_file(role: &str, path: &std::path::Path) -> Result<InputFile> {
     Ok(InputFile {
         role: role.to_string(),
         path: path.display().to_string(),
-        sha256: data::sha256_of(path)?,
+        sha256: crate::input::sha256_of(path)?,
     })
 }
 
