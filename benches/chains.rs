@@ -27,6 +27,9 @@
 //! for tantivy's, or only detect with `detect`, for a profiler). DEVELOPERS.md
 //! ("Benchmarks") explains how to read the output.
 
+mod common;
+use common::median;
+
 use std::collections::HashSet;
 use std::hint::black_box;
 use std::sync::Arc;
@@ -317,16 +320,6 @@ impl Samples {
             median(&self.seconds),
             format!("{lo:.2}–{hi:.2}")
         );
-    }
-}
-
-fn median(values: &[f64]) -> f64 {
-    let mut v = values.to_vec();
-    v.sort_by(f64::total_cmp);
-    match v.len() {
-        0 => f64::NAN,
-        n if n % 2 == 1 => v[n / 2],
-        n => (v[n / 2 - 1] + v[n / 2]) / 2.0,
     }
 }
 

@@ -20,12 +20,14 @@
 //! `POSTASSAY_BENCH_REPEATS=N` (rounds, default 3). DEVELOPERS.md
 //! ("Benchmarks") explains the output.
 
-use std::io::Read;
+mod common;
+use common::median;
+
 use std::path::{Path, PathBuf};
 use std::process::Command;
 use std::time::Instant;
 
-use sha2::{Digest, Sha256};
+use postassay::input::sha256_of;
 
 /// Rounds when `POSTASSAY_BENCH_REPEATS` is not set.
 const DEFAULT_REPEATS: usize = 3;
@@ -147,30 +149,16 @@ fn read_inputs(json: &Path) -> Vec<(PathBuf, String)> {
         .collect()
 }
 
-/// Seconds to read every input whole and hash it with SHA-256; each digest
-/// is checked against the one the pass recorded.
+/// Seconds to read every input and hash it with SHA-256 (the library's own
+/// streamed hashing, as the pass does); each digest is checked against the
+/// one the pass recorded.
 fn read_and_hash(root: &Path, inputs: &[(PathBuf, String)]) -> f64 {
     let started = Instant::now();
-    let mut buf = Vec::new();
     for (path, expected) in inputs {
-        buf.clear();
-        std::fs::File::open(root.join(path))
-            .and_then(|mut f| f.read_to_end(&mut buf))
-            .unwrap_or_else(|e| panic!("{}: {e}", path.display()));
-        let digest: String = Sha256::digest(&buf).iter().map(|b| format!("{b:02x}")).collect();
+        let digest = sha256_of(&root.join(path)).unwrap_or_else(|e| panic!("{e}"));
         assert_eq!(&digest, expected, "{} changed during the benchmark", path.display());
     }
     started.elapsed().as_secs_f64()
-}
-
-fn median(values: &[f64]) -> f64 {
-    let mut v = values.to_vec();
-    v.sort_by(f64::total_cmp);
-    match v.len() {
-        0 => f64::NAN,
-        n if n % 2 == 1 => v[n / 2],
-        n => (v[n / 2 - 1] + v[n / 2]) / 2.0,
-    }
 }
 
 fn range(values: &[f64]) -> (f64, f64) {

@@ -1,0 +1,14 @@
+//! Helpers shared by the benchmark programs (`benches/chains.rs`,
+//! `benches/vet.rs`); not a benchmark itself.
+
+/// The median of `values` (the mean of the middle two for an even count);
+/// NaN when there are none.
+pub fn median(values: &[f64]) -> f64 {
+    let mut v = values.to_vec();
+    v.sort_by(f64::total_cmp);
+    match v.len() {
+        0 => f64::NAN,
+        n if n % 2 == 1 => v[n / 2],
+        n => (v[n / 2 - 1] + v[n / 2]) / 2.0,
+    }
+}
