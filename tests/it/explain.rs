@@ -4,35 +4,23 @@
 
 use crate::util::{fixture, postassay, root, texts};
 
+/// `explain --query q1 --doc p1` on the stemming fixture with `extra`
+/// flags; asserts exit 0 and returns stdout and stderr.
+fn explain_q1_p1(extra: &[&str]) -> (String, String) {
+    let input = |name: &str| fixture(&format!("stemming/{name}")).display().to_string();
+    let (c, q, j) = (input("posts.jsonl"), input("queries.csv"), input("qrels.csv"));
+    let mut args = vec!["explain", "--query", "q1", "--doc", "p1", "--corpus", &c, "--queries", &q];
+    args.extend(["--judgments", j.as_str()]);
+    args.extend(extra);
+    let res = postassay(&root(), &args);
+    let out = texts(&res);
+    assert_eq!(res.status.code(), Some(0), "{}", out.1);
+    out
+}
+
 #[test]
 fn explain_shows_stemming_matches() {
-    let (c, q, j) = (
-        fixture("stemming/posts.jsonl"),
-        fixture("stemming/queries.csv"),
-        fixture("stemming/qrels.csv"),
-    );
-    let res = postassay(
-        &root(),
-        &[
-            "explain",
-            "--query",
-            "q1",
-            "--doc",
-            "p1",
-            "--corpus",
-            c.to_str().unwrap(),
-            "--queries",
-            q.to_str().unwrap(),
-            "--judgments",
-            j.to_str().unwrap(),
-            "--chains",
-            "standard,stemmed",
-            "--format",
-            "json",
-        ],
-    );
-    let (stdout, stderr) = texts(&res);
-    assert_eq!(res.status.code(), Some(0), "{stderr}");
+    let (stdout, _) = explain_q1_p1(&["--chains", "standard,stemmed", "--format", "json"]);
     let v: serde_json::Value = serde_json::from_str(&stdout).unwrap();
     assert_eq!(v["grade"], 2);
     let standard = &v["chains"][0];
@@ -68,31 +56,7 @@ fn explain_unknown_query_is_exit_2() {
 /// n 1, dl 5).
 #[test]
 fn explain_text_shows_the_bm25_explanation() {
-    let (c, q, j) = (
-        fixture("stemming/posts.jsonl"),
-        fixture("stemming/queries.csv"),
-        fixture("stemming/qrels.csv"),
-    );
-    let res = postassay(
-        &root(),
-        &[
-            "explain",
-            "--query",
-            "q1",
-            "--doc",
-            "p1",
-            "--corpus",
-            c.to_str().unwrap(),
-            "--queries",
-            q.to_str().unwrap(),
-            "--judgments",
-            j.to_str().unwrap(),
-            "--chains",
-            "stemmed",
-        ],
-    );
-    let (stdout, stderr) = texts(&res);
-    assert_eq!(res.status.code(), Some(0), "{stderr}");
+    let (stdout, _) = explain_q1_p1(&["--chains", "stemmed"]);
     let (n_docs, n, tf, dl, avgdl, k1, b) = (3.0, 1.0, 1.0, 5.0, 11.0 / 3.0, 1.2, 0.75);
     let idf = f64::ln(1.0 + (n_docs - n + 0.5) / (n + 0.5));
     let per_term = idf * (k1 + 1.0) * tf / (tf + k1 * (1.0 - b + b * dl / avgdl));

@@ -53,26 +53,23 @@ fn demo_bench_end_to_end() {
     }
 }
 
-#[test]
-fn stemming_finds_inflected_forms() {
-    let tmp = tempfile::tempdir().unwrap();
-    let (corpus, queries, qrels) = (
-        fixture("stemming/posts.jsonl"),
-        fixture("stemming/queries.csv"),
-        fixture("stemming/qrels.csv"),
-    );
-    let out = tmp.path().join("out");
+/// `run` of `standard` and `stemmed` on the stemming fixture (MRR only)
+/// into `dir/out`, which it returns.
+fn run_stemming_fixture(dir: &std::path::Path) -> std::path::PathBuf {
+    let input = |name: &str| fixture(&format!("stemming/{name}")).display().to_string();
+    let (corpus, queries, qrels) = (input("posts.jsonl"), input("queries.csv"), input("qrels.csv"));
+    let out = dir.join("out");
     let res = postassay(
-        tmp.path(),
+        dir,
         &[
             "run",
             "--quiet",
             "--corpus",
-            corpus.to_str().unwrap(),
+            &corpus,
             "--queries",
-            queries.to_str().unwrap(),
+            &queries,
             "--judgments",
-            qrels.to_str().unwrap(),
+            &qrels,
             "--chains",
             "standard,stemmed",
             "--metrics",
@@ -82,6 +79,13 @@ fn stemming_finds_inflected_forms() {
         ],
     );
     assert_eq!(res.status.code(), Some(0), "{}", texts(&res).1);
+    out
+}
+
+#[test]
+fn stemming_finds_inflected_forms() {
+    let tmp = tempfile::tempdir().unwrap();
+    let out = run_stemming_fixture(tmp.path());
     // English Snowball: ferries → ferri = ferry → ferri; delayed → delay.
     let standard = read_csv(&out.join("runs/standard.csv"));
     assert_eq!(standard.len(), 1, "standard finds nothing: {standard:?}");
@@ -261,32 +265,7 @@ fn redacted_run_reports_hold_no_post_text() {
 #[test]
 fn run_report_shows_moved_queries_and_the_largest_gain() {
     let tmp = tempfile::tempdir().unwrap();
-    let (corpus, queries, qrels) = (
-        fixture("stemming/posts.jsonl"),
-        fixture("stemming/queries.csv"),
-        fixture("stemming/qrels.csv"),
-    );
-    let out = tmp.path().join("out");
-    let res = postassay(
-        tmp.path(),
-        &[
-            "run",
-            "--quiet",
-            "--corpus",
-            corpus.to_str().unwrap(),
-            "--queries",
-            queries.to_str().unwrap(),
-            "--judgments",
-            qrels.to_str().unwrap(),
-            "--chains",
-            "standard,stemmed",
-            "--metrics",
-            "mrr",
-            "--out",
-            out.to_str().unwrap(),
-        ],
-    );
-    assert_eq!(res.status.code(), Some(0), "{}", texts(&res).1);
+    let out = run_stemming_fixture(tmp.path());
     let md = std::fs::read_to_string(out.join("report.md")).unwrap();
     assert!(md.contains("## Queries that moved most"), "{md}");
     // Hand-derived: standard retrieves nothing for "ferry delay", stemmed
