@@ -211,6 +211,11 @@ pub fn run(plan: &RunPlan, progress: &mut dyn FnMut(&str)) -> Result<BenchOutput
             moved::ChainRun { analyzer, run, post_detections, query_detections }
         })
         .collect();
+    // The moved queries are picked on the report's headline metric: the
+    // first of --metrics that measures quality (not `unjudged@k`), the rule
+    // of `report::text::headline`.
+    let headline_index =
+        plan.options.metrics.iter().position(|m| !m.is_diagnostic()).unwrap_or_default();
     let headline = out
         .report
         .per_query
@@ -218,7 +223,7 @@ pub fn run(plan: &RunPlan, progress: &mut dyn FnMut(&str)) -> Result<BenchOutput
         .map(|s| {
             s.queries
                 .iter()
-                .filter_map(|q| q.values.first().map(|v| (q.query_id.clone(), *v)))
+                .filter_map(|q| q.values.get(headline_index).map(|v| (q.query_id.clone(), *v)))
                 .collect()
         })
         .collect();

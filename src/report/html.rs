@@ -251,7 +251,7 @@ fn moved(s: &mut String, r: &Report) {
     if r.moved.is_empty() {
         return;
     }
-    let headline = r.settings.metrics.first().map(String::as_str).unwrap_or_default();
+    let headline = &super::text::headline(r);
     let base = esc(r.settings.baseline.as_str());
     let _ = writeln!(
         s,

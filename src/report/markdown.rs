@@ -148,12 +148,12 @@ fn against_baseline(s: &mut String, r: &Report, headline: &str) {
 }
 
 /// The queries that moved most, on the metric the bench picked them by
-/// (the first of `--metrics`).
+/// (the headline metric, [`super::text::headline`]).
 fn moved(s: &mut String, r: &Report) {
     if r.moved.is_empty() {
         return;
     }
-    let headline = r.settings.metrics.first().map(String::as_str).unwrap_or_default();
+    let headline = &super::text::headline(r);
     let _ = writeln!(s, "## Queries that moved most\n");
     let _ = writeln!(
         s,

@@ -288,7 +288,7 @@ pub fn reindex_case(r: &Report, headline: &str) -> Vec<Vec<Span>> {
                 )),
             ]);
             out.push(other_metrics(r, c, headline));
-            out.extend(largest_gain(r, c.system.as_str(), headline));
+            out.extend(largest_gain(r, c.system.as_str()));
             out.push(cost_case(r, c.system.as_str(), base));
             let mut rests = rests_on;
             if let Some(m) = c.min_detectable {
@@ -375,7 +375,7 @@ pub fn reindex_case(r: &Report, headline: &str) -> Vec<Vec<Span>> {
                 )));
             }
             out.push(p);
-            out.extend(closest.and_then(|c| largest_gain(r, c.system.as_str(), headline)));
+            out.extend(closest.and_then(|c| largest_gain(r, c.system.as_str())));
             out.push(rests_on);
             out.push(holes_case(r, closest.map(|c| c.system.as_str()), base, headline));
         }
@@ -456,12 +456,9 @@ pub fn build_time(r: &Report, headline: &str) -> Option<Vec<Span>> {
 /// line pointing at that section: query, example post with both ranks and
 /// the query terms it matched under `system`. Ids and terms only, never the
 /// post text, so it holds under `--redact`. `None` for `score` (no moved
-/// queries), without a gain, or when the moved queries were picked on
-/// another metric than the headline.
-fn largest_gain(r: &Report, system: &str, headline: &str) -> Option<Vec<Span>> {
-    if r.settings.metrics.first().map(String::as_str) != Some(headline) {
-        return None;
-    }
+/// queries) or without a gain. The bench picks the moved queries on the
+/// headline metric.
+fn largest_gain(r: &Report, system: &str) -> Option<Vec<Span>> {
     let m = r
         .moved
         .iter()

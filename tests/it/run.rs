@@ -53,9 +53,9 @@ fn demo_bench_end_to_end() {
     }
 }
 
-/// `run` of `standard` and `stemmed` on the stemming fixture (MRR only)
-/// into `dir/out`, which it returns.
-fn run_stemming_fixture(dir: &std::path::Path) -> std::path::PathBuf {
+/// `run` of `standard` and `stemmed` on the stemming fixture with
+/// `--metrics metrics` into `dir/out`, which it returns.
+fn run_stemming_fixture(dir: &std::path::Path, metrics: &str) -> std::path::PathBuf {
     let input = |name: &str| fixture(&format!("stemming/{name}")).display().to_string();
     let (corpus, queries, qrels) = (input("posts.jsonl"), input("queries.csv"), input("qrels.csv"));
     let out = dir.join("out");
@@ -73,7 +73,7 @@ fn run_stemming_fixture(dir: &std::path::Path) -> std::path::PathBuf {
             "--chains",
             "standard,stemmed",
             "--metrics",
-            "mrr",
+            metrics,
             "--out",
             out.to_str().unwrap(),
         ],
@@ -85,7 +85,7 @@ fn run_stemming_fixture(dir: &std::path::Path) -> std::path::PathBuf {
 #[test]
 fn stemming_finds_inflected_forms() {
     let tmp = tempfile::tempdir().unwrap();
-    let out = run_stemming_fixture(tmp.path());
+    let out = run_stemming_fixture(tmp.path(), "mrr");
     // English Snowball: ferries → ferri = ferry → ferri; delayed → delay.
     let standard = read_csv(&out.join("runs/standard.csv"));
     assert_eq!(standard.len(), 1, "standard finds nothing: {standard:?}");
@@ -265,7 +265,7 @@ fn redacted_run_reports_hold_no_post_text() {
 #[test]
 fn run_report_shows_moved_queries_and_the_largest_gain() {
     let tmp = tempfile::tempdir().unwrap();
-    let out = run_stemming_fixture(tmp.path());
+    let out = run_stemming_fixture(tmp.path(), "mrr");
     let md = std::fs::read_to_string(out.join("report.md")).unwrap();
     assert!(md.contains("## Queries that moved most"), "{md}");
     // Hand-derived: standard retrieves nothing for "ferry delay", stemmed
@@ -280,4 +280,20 @@ fn run_report_shows_moved_queries_and_the_largest_gain() {
     );
     let html = std::fs::read_to_string(out.join("report.html")).unwrap();
     assert!(html.contains("see <a href=\"#moved\">Queries that moved most</a>."), "{html}");
+}
+
+/// With `unjudged@k` first in --metrics, the headline (and the metric the
+/// moved queries are picked on) is the first quality metric, MRR here: the
+/// same largest-gain line as with MRR alone (q1 goes from not retrieved to
+/// rank 1 under `stemmed`, hand-derived from the English Snowball stems).
+#[test]
+fn headline_and_moved_queries_skip_a_leading_unjudged_metric() {
+    let tmp = tempfile::tempdir().unwrap();
+    let out = run_stemming_fixture(tmp.path(), "unjudged@10,mrr");
+    let md = std::fs::read_to_string(out.join("report.md")).unwrap();
+    assert!(md.contains("Per chain, the queries whose mrr gained or lost most"), "{md}");
+    assert!(
+        md.contains("Largest gain: `q1` (+1.000), post `p1` from not retrieved to rank 1"),
+        "{md}"
+    );
 }
