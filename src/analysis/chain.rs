@@ -31,8 +31,8 @@ use super::length_limit::LengthLimit;
 use super::lowercase::Lowercase;
 use super::post_tokenizer::PostTokenizer;
 use super::spec::{
-    ChainBody, ChainSpec, Pipeline, PostRouting, QueryRouting, RouteSpec, StepSpec, TagVocabulary,
-    TokenizerKind,
+    ChainBody, ChainSpec, FallbackPosts, Pipeline, PostRouting, QueryRouting, QuerySearch,
+    RouteSpec, StepSpec, TagVocabulary, TokenizerKind,
 };
 use super::stem::Stem;
 use super::stop_words::StopWords;
@@ -172,8 +172,10 @@ impl Analyzer {
         self.spec.route().is_some_and(|r| r.queries == QueryRouting::Detected)
     }
 
-    /// The field a post is indexed in, from its declared language and its
-    /// detection (see [`PostRouting`]). Always 0 for a plain chain.
+    /// The field a post is routed to, from its declared language and its
+    /// detection (see [`PostRouting`]). Always 0 for a plain chain. With
+    /// `fallback_posts = "all"` the post is also indexed in the fallback
+    /// field ([`Analyzer::fields_for_post`]); this is its own field.
     pub fn field_for_post(
         &self,
         declared: Option<LangCode>,
@@ -186,18 +188,60 @@ impl Analyzer {
         }
     }
 
-    /// The fields a query searches, from its declared language and its
-    /// detection (see [`QueryRouting`]). Always `[0]` for a plain chain.
+    /// Every field a post is indexed in: its own field
+    /// ([`Analyzer::field_for_post`]) and, with `fallback_posts = "all"`,
+    /// the fallback field too (once, when it is the post's own).
+    pub fn fields_for_post(
+        &self,
+        declared: Option<LangCode>,
+        detected: Option<&Detection>,
+    ) -> Vec<usize> {
+        let own = self.field_for_post(declared, detected);
+        match self.spec.route() {
+            Some(route) if route.fallback_posts == FallbackPosts::All => {
+                let fallback = route.branches.len();
+                if own == fallback {
+                    vec![own]
+                } else {
+                    vec![own, fallback]
+                }
+            }
+            _ => vec![own],
+        }
+    }
+
+    /// The field of a query's language, from its declared language and its
+    /// detection (see [`QueryRouting`]): its branch, else the fallback.
+    /// Always 0 for a plain chain.
+    pub fn field_for_query(
+        &self,
+        declared: Option<LangCode>,
+        detected: Option<&Detection>,
+    ) -> usize {
+        let Some(route) = self.spec.route() else { return 0 };
+        match (route.queries, declared) {
+            (QueryRouting::Declared, Some(lang)) => self.field_of(route, lang),
+            _ => self.field_of_detection(route, detected),
+        }
+    }
+
+    /// The fields a query searches, its own field first (see
+    /// [`QuerySearch`]). Always `[0]` for a plain chain.
     pub fn fields_for_query(
         &self,
         declared: Option<LangCode>,
         detected: Option<&Detection>,
     ) -> Vec<usize> {
-        let Some(route) = self.spec.route() else { return vec![0] };
-        match (route.queries, declared) {
-            (QueryRouting::Every, _) => (0..self.fields.len()).collect(),
-            (QueryRouting::Declared, Some(lang)) => vec![self.field_of(route, lang)],
-            _ => vec![self.field_of_detection(route, detected)],
+        let own = self.field_for_query(declared, detected);
+        let Some(route) = self.spec.route() else { return vec![own] };
+        let fallback = route.branches.len();
+        match route.search {
+            QuerySearch::Own => vec![own],
+            QuerySearch::OwnAndFallback if own == fallback => vec![own],
+            QuerySearch::OwnAndFallback => vec![own, fallback],
+            QuerySearch::All => {
+                std::iter::once(own).chain((0..self.fields.len()).filter(|&f| f != own)).collect()
+            }
         }
     }
 
@@ -529,15 +573,26 @@ mod tests {
     fn routing_of_queries() {
         let a = builtin("routed");
         let det = Detection { lang: lang("nl"), confidence: 0.8 };
-        assert_eq!(a.fields_for_query(Some(lang("es")), Some(&det)), [3]);
-        assert_eq!(a.fields_for_query(None, Some(&det)), [6]);
+        // The built-in searches the query's own field and the fallback (7).
+        assert_eq!(a.fields_for_query(Some(lang("es")), Some(&det)), [3, 7]);
+        assert_eq!(a.fields_for_query(None, Some(&det)), [6, 7]);
         assert_eq!(a.fields_for_query(None, None), [7]);
+        assert_eq!(a.field_for_query(Some(lang("es")), Some(&det)), 3);
         assert_eq!(builtin("stemmed").fields_for_query(None, None), [0]);
         let text = "[[chain]]\nname = \"e\"\n[chain.route]\nlanguages = [\"en\", \"de\"]\n\
-                    queries = \"every\"\nposts = \"detected\"\n";
+                    search = \"all\"\nposts = \"detected\"\nfallback_posts = \"all\"\n";
         let spec = &parse_chains(text, "e.toml", &[]).expect("valid")[0];
         let every = Analyzer::build(spec, &AnalysisContext::default()).expect("builds");
-        assert_eq!(every.fields_for_query(Some(lang("en")), None), [0, 1, 2]);
+        // The query's own field first, then the others in field order.
+        assert_eq!(every.fields_for_query(Some(lang("de")), None), [1, 0, 2]);
+        assert_eq!(every.fields_for_query(Some(lang("sv")), None), [2, 0, 1]);
+        // With fallback_posts = "all" a post is also in the fallback, once.
+        assert_eq!(
+            every.fields_for_post(None, Some(&Detection { lang: lang("de"), confidence: 0.9 })),
+            [1, 2]
+        );
+        assert_eq!(every.fields_for_post(None, None), [2]);
+        assert_eq!(a.fields_for_post(Some(lang("de")), None), [1]);
         // posts = "detected" ignores the declared language, so such a chain
         // needs the detections of declared posts too; the built-in does not.
         assert_eq!(every.field_for_post(Some(lang("en")), None), 2);

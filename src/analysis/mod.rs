@@ -76,8 +76,8 @@ pub use lowercase::Lowercase;
 pub use post_tokenizer::{PostTokenStream, PostTokenizer};
 pub use spec::{
     builtin_chains, parse_chains, read_chain_file, select_chains, Branch, ChainBody, ChainSpec,
-    Pipeline, PostRouting, QueryRouting, RouteSpec, StepSpec, TagVocabulary, TokenizerKind,
-    BUILTIN_CHAINS_TOML, DEFAULT_MIN_CONFIDENCE,
+    FallbackPosts, Fusion, Pipeline, PostRouting, QueryRouting, QuerySearch, RouteSpec, StepSpec,
+    TagVocabulary, TokenizerKind, BUILTIN_CHAINS_TOML, DEFAULT_MIN_CONFIDENCE,
 };
 pub use stem::{stem_languages, Stem, StemGeneration, StemWork, STEM_CACHE_CAPACITY};
 pub use stop_words::{stop_languages, StopWords};

@@ -24,7 +24,10 @@
 //! languages = ["en", "de"]
 //! min_confidence = 0.5                # default 0.5
 //! posts = "declared"                  # declared (default) | detected
-//! queries = "declared"                # declared (default) | detected | every
+//! queries = "declared"                # declared (default) | detected
+//! search = "own_and_fallback"         # own | own_and_fallback (default) | all
+//! fusion = "normalised_score"         # normalised_score (default) | reciprocal_rank
+//! fallback_posts = "unrouted"         # unrouted (default) | all
 //! tokenizer = "words"                 # each language's chain (default words)
 //! steps = [{ step = "lowercase" }, { step = "stem" }]   # (the default)
 //! fallback = "standard"               # a plain chain's name, or an inline
@@ -295,7 +298,7 @@ pub enum PostRouting {
     Detected,
 }
 
-/// How a routed chain picks the fields a query searches.
+/// How a routed chain finds a query's language (its field).
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Hash, Serialize, Deserialize)]
 #[serde(rename_all = "snake_case")]
 pub enum QueryRouting {
@@ -305,8 +308,84 @@ pub enum QueryRouting {
     Declared,
     /// The detected language, else the fallback field.
     Detected,
-    /// Every field (each language and the fallback).
-    Every,
+}
+
+/// Which fields a routed chain's query searches, once its language is known.
+/// Where more than one field is searched, each field is searched on its own
+/// (with that field's BM25 statistics) and the rankings are fused by
+/// reciprocal rank fusion: raw BM25 scores of different fields are not
+/// comparable.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Hash, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum QuerySearch {
+    /// The query's own field only (its language's, else the fallback): the
+    /// same ranking as an index holding only that language's posts.
+    Own,
+    /// The query's own field and the fallback field, fused: posts whose
+    /// language was not detected are still found.
+    #[default]
+    OwnAndFallback,
+    /// Every field (each language and the fallback), fused.
+    All,
+}
+
+impl QuerySearch {
+    /// The name used in chain files.
+    pub fn as_str(self) -> &'static str {
+        match self {
+            QuerySearch::Own => "own",
+            QuerySearch::OwnAndFallback => "own_and_fallback",
+            QuerySearch::All => "all",
+        }
+    }
+}
+
+/// How a routed chain combines the rankings of several searched fields.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Hash, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Fusion {
+    /// Reciprocal rank fusion (Cormack, Clarke & Büttcher, SIGIR 2009): a
+    /// post scores the sum of `1 / (60 + rank)` over the fields' rankings.
+    ReciprocalRank,
+    /// Each field's BM25 score divided by the most that field could give
+    /// the query (the sum of its terms' `rarity × (k1 + 1)`, a post holding
+    /// every term infinitely often), so that every field's scores lie in
+    /// [0, 1]; a post's fused score is the sum over fields (CombSUM, Fox &
+    /// Shaw, TREC-2 1994).
+    #[default]
+    NormalisedScore,
+}
+
+impl Fusion {
+    /// The name used in chain files.
+    pub fn as_str(self) -> &'static str {
+        match self {
+            Fusion::ReciprocalRank => "reciprocal_rank",
+            Fusion::NormalisedScore => "normalised_score",
+        }
+    }
+}
+
+/// Which posts a routed chain's fallback field holds.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Hash, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum FallbackPosts {
+    /// Only the posts routed to no language.
+    #[default]
+    Unrouted,
+    /// Every post, as well as its language's field: a misrouted post is
+    /// still found by a query that searches the fallback.
+    All,
+}
+
+impl FallbackPosts {
+    /// The name used in chain files.
+    pub fn as_str(self) -> &'static str {
+        match self {
+            FallbackPosts::Unrouted => "unrouted",
+            FallbackPosts::All => "all",
+        }
+    }
 }
 
 /// One language's chain inside a route.
@@ -328,8 +407,14 @@ pub struct RouteSpec {
     pub min_confidence: f64,
     /// How posts are routed.
     pub posts: PostRouting,
-    /// How queries are routed.
+    /// How a query's language is found.
     pub queries: QueryRouting,
+    /// Which fields a query searches.
+    pub search: QuerySearch,
+    /// How the rankings of several searched fields are combined.
+    pub fusion: Fusion,
+    /// Which posts the fallback field holds.
+    pub fallback_posts: FallbackPosts,
     /// One chain per language, in the order of `languages`.
     pub branches: Vec<Branch>,
     /// The chain of everything else.
@@ -574,8 +659,13 @@ struct RawRoute {
     min_confidence: Option<Spanned<f64>>,
     #[serde(default)]
     posts: PostRouting,
+    queries: Option<Spanned<String>>,
     #[serde(default)]
-    queries: QueryRouting,
+    search: QuerySearch,
+    #[serde(default)]
+    fusion: Fusion,
+    #[serde(default)]
+    fallback_posts: FallbackPosts,
     tokenizer: Option<Spanned<TokenizerKind>>,
     steps: Option<Vec<Spanned<toml::Value>>>,
     fallback: Option<Spanned<toml::Value>>,
@@ -1045,7 +1135,42 @@ fn check_route(
         },
     };
 
-    RouteSpec { languages, min_confidence, posts: r.posts, queries: r.queries, branches, fallback }
+    let queries = match &r.queries {
+        None => QueryRouting::default(),
+        Some(q) => match q.get_ref().as_str() {
+            "declared" => QueryRouting::Declared,
+            "detected" => QueryRouting::Detected,
+            "every" => {
+                issues.push(
+                    q.span(),
+                    format!(
+                        "{label}: queries = \"every\" is now written search = \"all\" (and \
+                         fields' rankings are fused by reciprocal rank, not added)"
+                    ),
+                );
+                QueryRouting::default()
+            }
+            other => {
+                issues.push(
+                    q.span(),
+                    format!("{label}: queries = {other:?}: expected \"declared\" or \"detected\""),
+                );
+                QueryRouting::default()
+            }
+        },
+    };
+
+    RouteSpec {
+        languages,
+        min_confidence,
+        posts: r.posts,
+        queries,
+        search: r.search,
+        fusion: r.fusion,
+        fallback_posts: r.fallback_posts,
+        branches,
+        fallback,
+    }
 }
 
 /// A per-language override: its tokenizer and steps, when given.
@@ -1250,12 +1375,22 @@ mod tests {
     #[test]
     fn routes() {
         let text = "[[chain]]\nname = \"mine\"\nsteps = [{ step = \"lowercase\" }, { step = \"fold\" }]\n\n\
-                    [[chain]]\nname = \"r\"\n[chain.route]\nlanguages = [\"de\", \"ja\"]\nqueries = \"every\"\n\
+                    [[chain]]\nname = \"r\"\n[chain.route]\nlanguages = [\"de\", \"ja\"]\nqueries = \"detected\"\n\
+                    search = \"all\"\nfusion = \"normalised_score\"\nfallback_posts = \"all\"\n\
                     fallback = \"mine\"\n[chain.route.language.ja]\nsteps = [{ step = \"lowercase\" }]\n";
         let chains = parse_chains(text, "r.toml", &[]).expect("valid");
         let route = chains[1].route().expect("routed");
         assert_eq!(route.min_confidence, DEFAULT_MIN_CONFIDENCE);
-        assert_eq!(route.queries, QueryRouting::Every);
+        assert_eq!(route.queries, QueryRouting::Detected);
+        assert_eq!(
+            (route.search, route.fusion, route.fallback_posts),
+            (QuerySearch::All, Fusion::NormalisedScore, FallbackPosts::All)
+        );
+        // Unknown values name the accepted ones.
+        let e = err(
+            "[[chain]]\nname = \"r\"\n[chain.route]\nlanguages = [\"de\"]\nsearch = \"both\"\n",
+        );
+        assert!(e.contains("own_and_fallback"), "{e}");
         assert_eq!(
             route.fallback.steps,
             [StepSpec::Lowercase { language: None }, StepSpec::Fold {}]

@@ -1,7 +1,7 @@
 //! Why one chain finds a post and another does not: for one query and one
 //! post, each chain's analysed query terms, the post's analysed terms, the
-//! terms they share, the post's rank and BM25 score, and tantivy's
-//! explanation of that score.
+//! terms they share, the post's rank and score, and the score taken apart:
+//! each searched field's BM25 score as the sum of its matched terms' shares.
 
 use std::path::PathBuf;
 
@@ -46,10 +46,15 @@ pub struct ChainExplanation {
     pub matched_terms: Vec<String>,
     /// Rank of the post among everything the query retrieves.
     pub rank: Option<usize>,
-    /// BM25 score of the post.
+    /// The post's score: BM25, or the fused score when the chain searches
+    /// several fields.
     pub score: Option<f64>,
-    /// tantivy's score explanation.
-    pub explanation: Option<serde_json::Value>,
+    /// Whether `score` fuses several fields' rankings (reciprocal rank
+    /// fusion, `k` = [`search::FUSION_K`]).
+    pub fused: bool,
+    /// Each searched field the post is indexed in: its rank and BM25 score
+    /// there and each matched term's share of that score.
+    pub fields: Vec<search::FieldStanding>,
 }
 
 /// The whole explanation.
@@ -95,15 +100,17 @@ pub fn explain(plan: &ExplainPlan) -> Result<Explanation> {
     for analyzer in &analyzers {
         let (post_det, query_det) = detections.for_analyzer(analyzer);
         let index = ChainIndex::build(analyzer, &posts, post_det)?;
+        let slots =
+            analyzer.fields_for_query(query.lang, query_det.first().and_then(Option::as_ref));
         let tm = search::match_terms(
             analyzer,
-            &analyzer.fields_for_query(query.lang, query_det.first().and_then(Option::as_ref)),
+            &slots,
             &query.text,
             analyzer.field_for_post(post.lang, post_det.get(post_pos).and_then(Option::as_ref)),
             &post.text,
         );
         let terms = tm.query_terms;
-        let m = search::explain_post(&index, analyzer, &terms, &post.id)?;
+        let m = search::explain_post(&index, analyzer, &slots, &terms, &post.id)?;
         chains.push(ChainExplanation {
             chain: analyzer.name().clone(),
             query_terms: terms
@@ -115,7 +122,8 @@ pub fn explain(plan: &ExplainPlan) -> Result<Explanation> {
             matched_terms: tm.matched,
             rank: m.rank,
             score: m.score,
-            explanation: m.explanation,
+            fused: slots.len() > 1,
+            fields: m.fields,
         });
     }
     Ok(Explanation {

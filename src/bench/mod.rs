@@ -31,8 +31,8 @@ use crate::ids::{ChainName, QueryId};
 use crate::index::ChainIndex;
 use crate::input::{self, Judgments, Post, Query, Run};
 use crate::report::model::{
-    ChainTiming, Cost, Counts, InputFile, PerQuery, QueryValues, Report, Settings, SystemInfo,
-    Timing, ToolInfo, SCHEMA_VERSION,
+    ChainTiming, Cost, Counts, InputFile, PerQuery, QueryValues, Report, RoutingInfo, Settings,
+    SystemInfo, Timing, ToolInfo, SCHEMA_VERSION,
 };
 use crate::search;
 use crate::stats::StatSettings;
@@ -154,7 +154,11 @@ pub fn run(plan: &RunPlan, progress: &mut dyn FnMut(&str)) -> Result<BenchOutput
             query_ms_mean: mean_ms,
             query_ms_p95: p95_ms,
         });
-        infos.push(SystemInfo { name: analyzer.name().clone(), cost: Some(Cost::from(cost)) });
+        infos.push(SystemInfo {
+            name: analyzer.name().clone(),
+            cost: Some(Cost::from(cost)),
+            routing: routing_info(analyzer, &posts, post_det, &queries, query_det),
+        });
         runs.push((analyzer.name().clone(), outcome.run));
     }
 
@@ -307,7 +311,8 @@ pub fn score(plan: &ScorePlan, progress: &mut dyn FnMut(&str)) -> Result<BenchOu
             ));
         }
     }
-    let infos = names.iter().map(|n| SystemInfo { name: n.clone(), cost: None }).collect();
+    let infos =
+        names.iter().map(|n| SystemInfo { name: n.clone(), cost: None, routing: None }).collect();
     let assembled = Assembly {
         command: "score",
         inputs,
@@ -343,6 +348,71 @@ fn announce_warnings(report: &Report, progress: &mut dyn FnMut(&str)) {
     for w in &report.warnings {
         progress(&format!("warning: {}", w.replace('\n', " ")));
     }
+}
+
+/// What a routed chain did with the posts and queries (`None` for a plain
+/// chain): its settings in words, posts per branch (each post counted once,
+/// in its own field) and the queries whose language has no branch.
+fn routing_info(
+    analyzer: &Analyzer,
+    posts: &[Post],
+    post_det: &[Option<Detection>],
+    queries: &[Query],
+    query_det: &[Option<Detection>],
+) -> Option<RoutingInfo> {
+    let route = analyzer.spec().route()?;
+    let label = |slot: usize| {
+        analyzer
+            .fields()
+            .get(slot)
+            .and_then(|f| f.language)
+            .map_or_else(|| "fallback".to_string(), |l| l.to_string())
+    };
+    let mut posts_per_branch: BTreeMap<String, u64> = route
+        .languages
+        .iter()
+        .map(|l| (l.to_string(), 0))
+        .chain([("fallback".to_string(), 0)])
+        .collect();
+    for (i, post) in posts.iter().enumerate() {
+        let slot = analyzer.field_for_post(post.lang, post_det.get(i).and_then(Option::as_ref));
+        *posts_per_branch.entry(label(slot)).or_default() += 1;
+    }
+    let fallback = route.branches.len();
+    let queries_without_branch = queries
+        .iter()
+        .enumerate()
+        .filter(|(i, q)| {
+            analyzer.field_for_query(q.lang, query_det.get(*i).and_then(Option::as_ref)) == fallback
+        })
+        .count();
+    let detector = match analyzer.detector() {
+        Some(d) => format!(
+            "whatlang over {} languages, confidence ≥ {}",
+            d.allowlist().map_or(0, <[_]>::len),
+            d.min_confidence()
+        ),
+        None => "none".to_string(),
+    };
+    Some(RoutingInfo {
+        detector,
+        posts: serde_plain(&route.posts),
+        queries: serde_plain(&route.queries),
+        search: route.search.as_str().to_string(),
+        fusion: route.fusion.as_str().to_string(),
+        fallback_posts: route.fallback_posts.as_str().to_string(),
+        posts_per_branch,
+        queries_run: queries.len(),
+        queries_without_branch,
+    })
+}
+
+/// A unit enum's serde name (`declared`).
+fn serde_plain<T: serde::Serialize>(value: &T) -> String {
+    serde_json::to_value(value)
+        .ok()
+        .and_then(|v| v.as_str().map(str::to_string))
+        .unwrap_or_default()
 }
 
 /// Build every chain, learning the hashtag word frequencies from the posts

@@ -8,6 +8,7 @@ use clap::{Args, ValueEnum};
 
 use postassay::bench::explain::{self, ExplainPlan, Explanation};
 use postassay::ids::{PostId, QueryId};
+use postassay::search;
 
 use super::common::{ChainFlags, InputFlags};
 
@@ -75,35 +76,60 @@ fn render(e: &Explanation) -> String {
             }
         ));
         match (c.rank, c.score) {
+            (Some(r), Some(sc)) if c.fused => s.push_str(&format!(
+                "  rank {r}, fused score {sc:.4} (reciprocal rank over {} fields, k = {})\n",
+                c.fields.len(),
+                search::FUSION_K
+            )),
             (Some(r), Some(sc)) => s.push_str(&format!("  rank {r}, BM25 score {sc:.4}\n")),
             _ => s.push_str("  not retrieved\n"),
         }
-        if let Some(tree) = &c.explanation {
-            s.push_str("  score explanation (tantivy):\n");
-            explanation_lines(tree, 2, &mut s);
+        for f in &c.fields {
+            standing_lines(f, &mut s);
         }
     }
     s
 }
 
-/// tantivy's score explanation as an indented tree, one node per line:
-/// `value  description [context]`, children two spaces deeper.
-fn explanation_lines(node: &serde_json::Value, depth: usize, out: &mut String) {
-    let value = node.get("value").and_then(serde_json::Value::as_f64);
-    let description = node.get("description").and_then(serde_json::Value::as_str).unwrap_or("");
-    let context: Vec<&str> = node
-        .get("context")
-        .and_then(serde_json::Value::as_array)
-        .map(|c| c.iter().filter_map(serde_json::Value::as_str).collect())
-        .unwrap_or_default();
-    let indent = "  ".repeat(depth);
-    let value = value.map_or_else(|| "?".to_string(), |v| format!("{v:.4}"));
-    out.push_str(&format!("{indent}{value}  {description}"));
-    if !context.is_empty() {
-        out.push_str(&format!(" [{}]", context.join("; ")));
+/// One searched field's standing: its rank and BM25 score, then one line per
+/// matched term with its share and what the share is made of.
+fn standing_lines(f: &search::FieldStanding, out: &mut String) {
+    let (Some(rank), Some(bm25)) = (f.rank, f.bm25) else {
+        out.push_str(&format!("  in {}: not retrieved\n", f.field));
+        return;
+    };
+    let fused =
+        f.fused_share.map_or(String::new(), |x| format!(", adds {x:.4} to the fused score"));
+    out.push_str(&format!("  in {}: rank {rank}, BM25 {bm25:.4}{fused}\n", f.field));
+    let rows: Vec<[String; 5]> = f
+        .terms
+        .iter()
+        .map(|t| {
+            [
+                t.term.clone(),
+                format!("{:.4}", t.share),
+                format!("{:.4} ({} of {} posts)", t.rarity, t.posts_with_term, t.posts),
+                t.occurrences.to_string(),
+                format!("{} vs {:.2}", t.length, t.mean_length),
+            ]
+        })
+        .collect();
+    let header = ["term", "share", "rarity", "times", "length vs mean"].map(String::from);
+    let mut widths = header.clone().map(|h| h.chars().count());
+    for row in &rows {
+        for (w, cell) in widths.iter_mut().zip(row) {
+            *w = (*w).max(cell.chars().count());
+        }
     }
-    out.push('\n');
-    for child in node.get("details").and_then(serde_json::Value::as_array).into_iter().flatten() {
-        explanation_lines(child, depth + 1, out);
+    for row in std::iter::once(&header).chain(&rows) {
+        let cells: Vec<String> =
+            row.iter().zip(widths).map(|(cell, w)| format!("{cell:<w$}")).collect();
+        out.push_str(&format!("    {}\n", cells.join("  ").trim_end()));
     }
+    let total: f64 = f.terms.iter().map(|t| t.share).sum();
+    out.push_str(&format!(
+        "    shares add up to {total:.4} (k1 = {}, b = {})\n",
+        search::BM25_K1,
+        search::BM25_B
+    ));
 }

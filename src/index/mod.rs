@@ -6,9 +6,11 @@
 //! Each post is indexed under a dense ordinal (its position in the corpus) in
 //! a fast field, so search maps hits back to [`PostId`]s without stored
 //! fields. A routed chain has one text field per language plus a fallback
-//! field; every post goes to exactly one of them, chosen by the chain from the
+//! field; every post goes to one of them, chosen by the chain from the
 //! post's declared language or the detection made once per post by the
-//! caller.
+//! caller (and, with `fallback_posts = "all"`, to the fallback field too).
+//! Each field's BM25 statistics are its own ([`FieldStatistics`]), as if
+//! each field were an index of its own.
 
 use std::collections::{BTreeMap, HashSet};
 use std::path::Path;
@@ -16,10 +18,11 @@ use std::time::Instant;
 
 use serde::Serialize;
 use tantivy::indexer::NoMergePolicy;
+use tantivy::query::Bm25StatisticsProvider;
 use tantivy::schema::{
     Field, IndexRecordOption, NumericOptions, Schema, TextFieldIndexing, TextOptions,
 };
-use tantivy::{Index, IndexReader, IndexWriter, ReloadPolicy, TantivyDocument};
+use tantivy::{Index, IndexReader, IndexWriter, ReloadPolicy, Searcher, TantivyDocument, Term};
 
 use crate::analysis::detect::Detection;
 use crate::analysis::Analyzer;
@@ -71,6 +74,7 @@ pub struct ChainIndex {
     index: Index,
     reader: IndexReader,
     fields: Vec<Field>,
+    field_posts: Vec<u64>,
     ords: Vec<PostId>,
     cost: BuildCost,
     _dir: tempfile::TempDir,
@@ -112,17 +116,22 @@ impl ChainIndex {
         let mut posts_per_field: BTreeMap<String, u64> =
             analyzer.fields().iter().map(|f| (f.key.clone(), 0)).collect();
         let mut ords = Vec::with_capacity(posts.len());
+        let mut field_posts = vec![0u64; fields.len()];
         for (i, post) in posts.iter().enumerate() {
             let detected = detections.get(i).and_then(Option::as_ref);
-            let slot = analyzer.field_for_post(post.lang, detected);
-            let (field, fa) = fields
-                .get(slot)
-                .zip(analyzer.fields().get(slot))
-                .ok_or_else(|| Error::index(format!("chain routed a post to field {slot}")))?;
-            *posts_per_field.entry(fa.key.clone()).or_default() += 1;
             let mut doc = TantivyDocument::default();
             doc.add_u64(ord_field, i as u64);
-            doc.add_text(*field, &post.text);
+            for slot in analyzer.fields_for_post(post.lang, detected) {
+                let (field, fa) = fields
+                    .get(slot)
+                    .zip(analyzer.fields().get(slot))
+                    .ok_or_else(|| Error::index(format!("chain routed a post to field {slot}")))?;
+                *posts_per_field.entry(fa.key.clone()).or_default() += 1;
+                if let Some(n) = field_posts.get_mut(slot) {
+                    *n += 1;
+                }
+                doc.add_text(*field, &post.text);
+            }
             writer.add_document(doc).map_err(tantivy_err)?;
             ords.push(post.id.clone());
         }
@@ -145,6 +154,7 @@ impl ChainIndex {
             index,
             reader,
             fields,
+            field_posts,
             ords,
             cost: BuildCost {
                 build_seconds,
@@ -172,6 +182,20 @@ impl ChainIndex {
         &self.fields
     }
 
+    /// The BM25 statistics of the field at `slot` (see [`FieldStatistics`]);
+    /// `None` when the chain has no such field.
+    pub fn statistics<'a>(
+        &self,
+        searcher: &'a Searcher,
+        slot: usize,
+    ) -> Option<FieldStatistics<'a>> {
+        Some(FieldStatistics {
+            searcher,
+            field: *self.fields.get(slot)?,
+            posts: *self.field_posts.get(slot)?,
+        })
+    }
+
     /// The post id at a corpus ordinal.
     pub fn post_id(&self, ord: u64) -> Option<&PostId> {
         usize::try_from(ord).ok().and_then(|i| self.ords.get(i))
@@ -180,6 +204,58 @@ impl ChainIndex {
     /// What building this index cost.
     pub fn cost(&self) -> &BuildCost {
         &self.cost
+    }
+}
+
+/// The BM25 statistics of one field of a chain's index, as an index holding
+/// only that field's posts would have them: N is the number of posts
+/// indexed in the field (not every post of the corpus), the mean field
+/// length is the field's tokens over those posts, and document frequencies
+/// are the field's own. A plain chain's one field holds every post, so its
+/// statistics are the index's. A routed chain's language field then scores
+/// exactly as a separate index of that language's posts would (one searcher
+/// still serves every field; a query searches one field at a time, see
+/// [`crate::search`]).
+pub struct FieldStatistics<'a> {
+    searcher: &'a Searcher,
+    field: Field,
+    posts: u64,
+}
+
+impl FieldStatistics<'_> {
+    /// The field these statistics describe.
+    pub fn field(&self) -> Field {
+        self.field
+    }
+
+    /// Posts indexed in the field (BM25's N).
+    pub fn posts(&self) -> u64 {
+        self.posts
+    }
+
+    /// Tokens indexed in the field over every post.
+    pub fn total_tokens(&self) -> Result<u64> {
+        Bm25StatisticsProvider::total_num_tokens(self.searcher, self.field).map_err(tantivy_err)
+    }
+
+    /// Posts of the field containing `term`.
+    pub fn posts_with(&self, term: &Term) -> Result<u64> {
+        self.searcher.doc_freq(term).map_err(tantivy_err)
+    }
+}
+
+impl Bm25StatisticsProvider for FieldStatistics<'_> {
+    fn total_num_tokens(&self, field: Field) -> tantivy::Result<u64> {
+        debug_assert_eq!(field, self.field, "one field's statistics asked for another's");
+        Bm25StatisticsProvider::total_num_tokens(self.searcher, field)
+    }
+
+    fn total_num_docs(&self) -> tantivy::Result<u64> {
+        Ok(self.posts)
+    }
+
+    fn doc_freq(&self, term: &Term) -> tantivy::Result<u64> {
+        self.searcher.doc_freq(term)
     }
 }
 

@@ -28,7 +28,8 @@ use crate::report::model::Report;
 use crate::report::svg::{self, esc, Bar, Estimate, Panel, Point, Series};
 use crate::report::text::{
     breakdown_caveat, build_time, cost_table, fixed, headline, improves, interval, lower_is_better,
-    moved_tables, names_groups, p_equals, pvalue, reindex_case, sentence, signed, spans_html,
+    moved_tables, names_groups, p_equals, pvalue, reindex_case, route_table, sentence, signed,
+    spans_html, ROUTING_NOTE,
 };
 
 /// Marks the start of the Timing section, the only part of the page that
@@ -610,6 +611,9 @@ fn cost(s: &mut String, r: &Report, headline: &str) {
     }
     if let Some(table) = cost_table(r) {
         s.push_str(&table.html());
+    }
+    if let Some(table) = route_table(r) {
+        s.push_str(&format!("<h3>Routing</h3>\n<p>{}</p>\n{}", esc(ROUTING_NOTE), table.html()));
     }
     s.push_str("</section>\n");
 }

@@ -11,7 +11,8 @@ use crate::diagnose::render::{
 use crate::report::model::Report;
 use crate::report::text::{
     breakdown_caveat, build_time, cost_table, fixed, headline, interval, moved_tables,
-    names_groups, pvalue, reindex_case, sentence, signed, spans_markdown,
+    names_groups, pvalue, reindex_case, route_table, sentence, signed, spans_markdown,
+    ROUTING_NOTE,
 };
 
 /// Render the whole Markdown report.
@@ -231,6 +232,9 @@ fn breakdowns(s: &mut String, r: &Report, headline: &str) {
 fn cost(s: &mut String, r: &Report) {
     if let Some(table) = cost_table(r) {
         let _ = writeln!(s, "## Cost\n\n{}", table.markdown());
+    }
+    if let Some(table) = route_table(r) {
+        let _ = writeln!(s, "### Routing\n\n{ROUTING_NOTE}\n\n{}", table.markdown());
     }
 }
 

@@ -127,6 +127,32 @@ pub struct SystemInfo {
     pub name: ChainName,
     /// Index cost of a chain (`run` only). Build time is under `timing`.
     pub cost: Option<Cost>,
+    /// How a language-routed chain routed this run's posts and queries.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub routing: Option<RoutingInfo>,
+}
+
+/// What a language-routed chain did with this run's posts and queries.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
+pub struct RoutingInfo {
+    /// The language detector and its settings, in words.
+    pub detector: String,
+    /// How a post's field is chosen (`declared` or `detected`).
+    pub posts: String,
+    /// How a query's language is found (`declared` or `detected`).
+    pub queries: String,
+    /// Which fields a query searches (`own`, `own_and_fallback`, `all`).
+    pub search: String,
+    /// How several fields' rankings are combined.
+    pub fusion: String,
+    /// Which posts the fallback field holds (`unrouted` or `all`).
+    pub fallback_posts: String,
+    /// Posts routed to each language, and to no language (`fallback`).
+    pub posts_per_branch: std::collections::BTreeMap<String, u64>,
+    /// Queries run.
+    pub queries_run: usize,
+    /// Queries whose language has no branch (they search the fallback).
+    pub queries_without_branch: usize,
 }
 
 /// The deterministic part of what a chain costs.

@@ -736,6 +736,65 @@ pub fn cost_table(r: &Report) -> Option<Table> {
     })
 }
 
+/// What the routing table shows, in one paragraph.
+pub const ROUTING_NOTE: &str = "Each language field is scored with its own BM25 statistics (its \
+     posts, their mean length, its document frequencies), as a separate index of that \
+     language's posts would be. Where a query searches several fields, their rankings are \
+     combined by the fusion rule shown, never by adding raw BM25 scores. A query whose \
+     language has no branch searches the fallback field.";
+
+/// The routing table: per language-routed chain, its detector, how posts
+/// and queries find their field, which fields a query searches and how
+/// their rankings are combined, what the fallback holds, posts per branch
+/// and the queries whose language has no branch. `None` without routed
+/// chains.
+pub fn route_table(r: &Report) -> Option<Table> {
+    let rows: Vec<Vec<Vec<Span>>> = r
+        .systems
+        .iter()
+        .filter_map(|sys| {
+            let g = sys.routing.as_ref()?;
+            let posts: Vec<String> =
+                g.posts_per_branch.iter().map(|(k, v)| format!("{k}: {v}")).collect();
+            let share = if g.queries_run == 0 {
+                String::new()
+            } else {
+                format!(" ({:.1}%)", 100.0 * g.queries_without_branch as f64 / g.queries_run as f64)
+            };
+            Some(vec![
+                vec![code(sys.name.as_str())],
+                vec![t(g.detector.clone())],
+                vec![t(format!("posts {}, queries {}", g.posts, g.queries))],
+                vec![code(g.search.clone())],
+                vec![code(g.fusion.clone())],
+                vec![code(g.fallback_posts.clone())],
+                vec![t(posts.join(", "))],
+                vec![t(format!("{} of {}{share}", g.queries_without_branch, g.queries_run))],
+            ])
+        })
+        .collect();
+    if rows.is_empty() {
+        return None;
+    }
+    Some(Table {
+        header: [
+            "chain",
+            "detector",
+            "language taken as",
+            "query searches",
+            "fusion",
+            "fallback holds",
+            "posts per branch",
+            "queries with no branch",
+        ]
+        .map(|h| vec![t(h)])
+        .to_vec(),
+        numeric: vec![false, false, false, false, false, false, false, true],
+        row_headers: true,
+        rows,
+    })
+}
+
 /// The queries that moved most, one table per compared chain, in report order.
 pub fn moved_tables(r: &Report, headline: &str) -> Vec<(String, Table)> {
     let base = r.settings.baseline.as_str();

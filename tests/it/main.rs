@@ -10,6 +10,7 @@ mod html;
 mod input_errors;
 mod judge;
 mod pool;
+mod routing;
 mod run;
 mod run_vet;
 mod score;
