@@ -3,7 +3,10 @@
 version 3.1.1) as a `word<TAB>count` list for postassay's hashtag splitter.
 
 Usage: python3 scripts/wordfreq_export.py [LANG] [N] [OUT]
-Defaults: en, 30000, tests/fixtures/analysis/hashtag/wordfreq_en.tsv
+Defaults: en, 30000, tests/fixtures/analysis/hashtag/wordfreq_LANG.tsv
+The committed lists (de en es fr it nl pt, built into the binary) were made
+with N = 30000: `for l in de en es fr it nl pt; do python3
+scripts/wordfreq_export.py $l 30000; done`.
 
 Counts are wordfreq's frequencies scaled to a corpus of 10^9 tokens and
 rounded (only ratios matter to the splitter). Words that contain a digit or no

@@ -37,6 +37,7 @@ use super::spec::{
 use super::stem::Stem;
 use super::stop_words::StopWords;
 use super::whitespace_tokenizer::WhitespaceTokenizer;
+use super::word_lists;
 use super::word_tokenizer::WordTokenizer;
 use crate::error::{Error, Result};
 use crate::ids::ChainName;
@@ -367,16 +368,33 @@ fn drop_tokens(step: &StepSpec) -> Result<DropTokens> {
 
 /// The filter of a `hashtags` step.
 fn hashtags(step: &StepSpec, ctx: &AnalysisContext) -> Result<HashtagSplit> {
-    match step {
-        StepSpec::Hashtags { vocabulary } => {
-            let freqs = match vocabulary {
-                TagVocabulary::Corpus => ctx.word_freqs.clone(),
-                TagVocabulary::None => None,
-            };
-            Ok(HashtagSplit::new(freqs))
-        }
-        _ => Err(unsupported(step, "not a hashtags step")),
-    }
+    Ok(HashtagSplit::new(tag_table(step, ctx)?))
+}
+
+/// The word-frequency table a `hashtags` step segments with (`None`: case,
+/// digit and underscore boundaries only): the context's corpus table
+/// (`corpus`), the step's built-in list (`lists`; see
+/// [`word_lists::builtin_list`]), or both mixed with equal weight
+/// (`corpus+lists`; the list alone without a corpus table), the mixture
+/// exempting the list's one-letter words from the one-letter penalty.
+pub fn tag_table(step: &StepSpec, ctx: &AnalysisContext) -> Result<Option<Arc<WordFreqs>>> {
+    let StepSpec::Hashtags { vocabulary, language } = step else {
+        return Err(unsupported(step, "not a hashtags step"));
+    };
+    let list = || {
+        word_lists::builtin_list(*language)
+            .ok_or_else(|| unsupported(step, "no built-in word list for the language"))
+    };
+    let freqs = match (vocabulary, &ctx.word_freqs) {
+        (TagVocabulary::Corpus, corpus) => corpus.clone(),
+        (TagVocabulary::Lists, _) | (TagVocabulary::CorpusAndLists, None) => Some(list()?),
+        (TagVocabulary::CorpusAndLists, Some(corpus)) => Some(Arc::new(
+            WordFreqs::mix(&[corpus.as_ref(), list()?.as_ref()])
+                .with_free_letters(word_lists::free_letters(*language)),
+        )),
+        (TagVocabulary::None, _) => None,
+    };
+    Ok(freqs)
 }
 
 /// Append one step. Settings a validated spec cannot hold (a missing or
@@ -551,6 +569,60 @@ mod tests {
                 .analyzer
                 .clone();
         assert_eq!(texts(&mut plain, "#harbourmarket"), ["harbourmarket"]);
+    }
+
+    #[test]
+    fn hashtags_step_uses_the_branch_list_and_the_merged_list_elsewhere() {
+        let text = "[[chain]]\nname = \"tags\"\n[chain.route]\nlanguages = [\"en\", \"de\", \"ru\"]\n\
+                    tokenizer = \"posts\"\nsteps = [{ step = \"hashtags\", vocabulary = \"lists\" }, \
+                    { step = \"lowercase\" }]\nfallback = { tokenizer = \"posts\", steps = \
+                    [{ step = \"hashtags\", vocabulary = \"lists\" }, { step = \"lowercase\" }] }\n";
+        let spec = parse_chains(text, "tags.toml", &[]).expect("valid").remove(0);
+        let built = Analyzer::build(&spec, &AnalysisContext::default()).expect("builds");
+        let split = |field: usize, tag: &str| {
+            let mut a = built.fields()[field].analyzer.clone();
+            texts(&mut a, tag)
+        };
+        assert_eq!(split(0, "#harbourmarket"), ["harbourmarket", "harbour", "market"]);
+        assert_eq!(
+            split(1, "#wetterberichtberlin"),
+            ["wetterberichtberlin", "wetterbericht", "berlin"]
+        );
+        // ru has no list and the fallback no language: the merged list.
+        assert_eq!(split(3, "#rentréescolaire"), ["rentréescolaire", "rentrée", "scolaire"]);
+        assert_eq!(split(2, "#gutenmorgen"), ["gutenmorgen", "guten", "morgen"]);
+    }
+
+    #[test]
+    fn corpus_and_lists_mix_the_corpus_table_with_the_list() {
+        let step = |vocabulary, language: &str| StepSpec::Hashtags {
+            vocabulary,
+            language: LangCode::parse(language),
+        };
+        let corpus = Arc::new(WordFreqs::learn(["zorble harbour zorble"]));
+        let ctx = AnalysisContext { word_freqs: Some(Arc::clone(&corpus)) };
+        let table = |s: &StepSpec, ctx: &AnalysisContext| {
+            tag_table(s, ctx).expect("builds").expect("a table")
+        };
+        let mixed = table(&step(TagVocabulary::CorpusAndLists, "es"), &ctx);
+        let es = word_lists::builtin_list(LangCode::parse("es")).expect("es");
+        assert!(mixed.count("zorble") > 0 && mixed.count("amistad") > 0);
+        // The mixture keeps the Spanish list's free one-letter words (`y`).
+        let parts = crate::analysis::hashtag::split_tag("amoryamistad", Some(&mixed));
+        assert_eq!(parts, ["amor", "y", "amistad"]);
+        assert_eq!(
+            mixed.len(),
+            es.len() + usize::from(es.count("zorble") == 0) + usize::from(es.count("harbour") == 0)
+        );
+        // Without corpus frequencies, the list alone; `lists` ignores them.
+        let alone = table(&step(TagVocabulary::CorpusAndLists, "es"), &AnalysisContext::default());
+        assert!(Arc::ptr_eq(&alone, &es));
+        assert!(Arc::ptr_eq(&table(&step(TagVocabulary::Lists, "es"), &ctx), &es));
+        assert!(Arc::ptr_eq(&table(&step(TagVocabulary::Corpus, "es"), &ctx), &corpus));
+        assert!(tag_table(&step(TagVocabulary::None, ""), &ctx).expect("builds").is_none());
+        // A spec built in code with a language that has no list is an error.
+        let e = tag_table(&step(TagVocabulary::Lists, "ru"), &ctx).expect_err("no ru list");
+        assert!(e.to_string().contains("no built-in word list for the language"), "{e}");
     }
 
     #[test]

@@ -58,13 +58,15 @@ mod stem;
 mod stop_words;
 pub mod token_shape;
 mod whitespace_tokenizer;
+pub mod word_lists;
 mod word_tokenizer;
 
 #[cfg(test)]
 pub(crate) mod testutil;
 
 pub use chain::{
-    build_pipeline, AnalysisContext, Analyzer, FieldAnalyzer, FALLBACK_FIELD, PLAIN_FIELD,
+    build_pipeline, tag_table, AnalysisContext, Analyzer, FieldAnalyzer, FALLBACK_FIELD,
+    PLAIN_FIELD,
 };
 pub use drop_tokens::{DropKind, DropTokens};
 pub use each_token::{EachTokenFilter, EachTokenStream, TokenEdit};

@@ -38,7 +38,10 @@
 //!
 //! In a route's `steps`, `stem` and `stop` without a `language` take each
 //! branch's language, and so does `lowercase` (which only changes behaviour
-//! for `tr` and `az`).
+//! for `tr` and `az`). So does `hashtags` with `vocabulary = "lists"` or
+//! `"corpus+lists"` when the branch's language has a built-in list; other
+//! branches, the fallback and plain chains use the merged list of all
+//! built-in languages.
 //!
 //! # Steps and their options (defaults in brackets)
 //!
@@ -52,7 +55,7 @@
 //! | `length` | `min` [1], `max` [40] (characters) |
 //! | `edge_ngrams` | `min` [2], `max` [15] |
 //! | `drop` | `kinds` = list of `mentions` `urls` `emoji` `numbers` `hashtags` |
-//! | `hashtags` | `vocabulary` = `"corpus"` \| `"none"` [corpus] |
+//! | `hashtags` | `vocabulary` = `"corpus"` \| `"lists"` \| `"corpus+lists"` \| `"none"` [corpus]; `language` (a built-in list: de en es fr it nl pt; none = all merged) |
 //!
 //! # Orders that are rejected, and why
 //!
@@ -88,6 +91,7 @@ use super::drop_tokens::DropKind;
 use super::elision::ELISION_LANGUAGES;
 use super::stem::{stem_languages, StemGeneration};
 use super::stop_words::stop_languages;
+use super::word_lists;
 use crate::error::{Error, Result, MAX_LISTED_PROBLEMS};
 use crate::ids::ChainName;
 use crate::input::LangCode;
@@ -134,8 +138,39 @@ pub enum TagVocabulary {
     /// falls back to case, digit and underscore boundaries.
     #[default]
     Corpus,
+    /// The built-in word-frequency list of the step's language (a route
+    /// branch's language), or the merged list of all built-in languages
+    /// when no language is known ([`word_lists`](super::word_lists)).
+    Lists,
+    /// The corpus's words and the built-in list mixed with equal weight
+    /// ([`WordFreqs::mix`](super::hashtag::WordFreqs::mix)); the list alone
+    /// when no corpus frequencies are given.
+    #[serde(rename = "corpus+lists")]
+    CorpusAndLists,
     /// Split on case, digit and underscore boundaries only.
     None,
+}
+
+impl TagVocabulary {
+    /// The name used in chain files.
+    pub fn as_str(self) -> &'static str {
+        match self {
+            TagVocabulary::Corpus => "corpus",
+            TagVocabulary::Lists => "lists",
+            TagVocabulary::CorpusAndLists => "corpus+lists",
+            TagVocabulary::None => "none",
+        }
+    }
+
+    /// True when the corpus's word frequencies are used.
+    pub fn uses_corpus(self) -> bool {
+        matches!(self, TagVocabulary::Corpus | TagVocabulary::CorpusAndLists)
+    }
+
+    /// True when a built-in list is used.
+    pub fn uses_lists(self) -> bool {
+        matches!(self, TagVocabulary::Lists | TagVocabulary::CorpusAndLists)
+    }
 }
 
 fn default_generation() -> StemGeneration {
@@ -217,6 +252,11 @@ pub enum StepSpec {
         /// Where word frequencies come from.
         #[serde(default)]
         vocabulary: TagVocabulary,
+        /// The built-in list's language (`lists`, `corpus+lists`): taken
+        /// from the branch in a route when the branch's language has a
+        /// list; without one, the merged list of all languages.
+        #[serde(default, skip_serializing_if = "Option::is_none")]
+        language: Option<LangCode>,
     },
 }
 
@@ -254,7 +294,12 @@ impl StepSpec {
                 let kinds: Vec<&str> = kinds.iter().map(|k| k.as_str()).collect();
                 format!("drop({})", kinds.join(", "))
             }
-            StepSpec::Hashtags { vocabulary: TagVocabulary::None } => "hashtags(none)".into(),
+            StepSpec::Hashtags { vocabulary: TagVocabulary::None, .. } => "hashtags(none)".into(),
+            StepSpec::Hashtags { vocabulary, language } if vocabulary.uses_lists() => format!(
+                "hashtags({}:{})",
+                vocabulary.as_str(),
+                language.as_ref().map_or("all", LangCode::as_str)
+            ),
             other => other.name().to_string(),
         }
     }
@@ -274,7 +319,7 @@ impl Pipeline {
     pub fn needs_word_freqs(&self) -> bool {
         self.steps
             .iter()
-            .any(|s| matches!(s, StepSpec::Hashtags { vocabulary: TagVocabulary::Corpus }))
+            .any(|s| matches!(s, StepSpec::Hashtags { vocabulary, .. } if vocabulary.uses_corpus()))
     }
 
     /// `words + lowercase`.
@@ -955,7 +1000,24 @@ fn check_pipeline(
                     }
                 }
             }
-            StepSpec::Hashtags { .. } => {
+            StepSpec::Hashtags { vocabulary, language } => {
+                let listed = word_lists::list_languages();
+                match (vocabulary.uses_lists(), *language) {
+                    (false, Some(l)) => err(format!(
+                        "hashtags: language = {:?} picks a built-in list, which vocabulary = \
+                         {:?} does not use; use vocabulary = \"lists\" or \"corpus+lists\"",
+                        l.as_str(),
+                        vocabulary.as_str()
+                    )),
+                    (true, Some(l)) if !listed.contains(&l) => err(format!(
+                        "hashtags: no built-in word list for language {:?}; accepted: {} (or \
+                         no language for the merged list of all of them)",
+                        l.as_str(),
+                        join_codes(&listed)
+                    )),
+                    (true, None) => *language = branch.filter(|b| listed.contains(b)),
+                    _ => {}
+                }
                 if kind == TokenizerKind::Words {
                     err("hashtags needs tokenizer = \"posts\" (or \"whitespace\"): the words \
                          tokenizer drops the '#'"
@@ -1318,6 +1380,57 @@ mod tests {
         assert!(e.contains("accepted: ca, fr, it"), "{e}");
         let e = err(&chain("  { step = \"stem\", language = \"xx\" },"));
         assert_eq!(e, "my.toml:5: chain \"a\": expected an ISO 639-1 code, found \"xx\"");
+    }
+
+    #[test]
+    fn hashtags_vocabulary_and_list_language() {
+        let tags = |opts: &str| chain(&format!("  {{ step = \"hashtags\"{opts} }},"));
+        let step = |text: &str| {
+            let chains = parse_chains(text, "ok.toml", &[]).expect("valid");
+            let first = chains[0].pipelines().next().expect("one pipeline").steps[0].clone();
+            first
+        };
+        // A plain chain knows no language: no language means the merged list.
+        let merged = step(&tags(", vocabulary = \"lists\""));
+        assert_eq!(merged, StepSpec::Hashtags { vocabulary: TagVocabulary::Lists, language: None });
+        assert_eq!(merged.label(), "hashtags(lists:all)");
+        let de = step(&tags(", vocabulary = \"corpus+lists\", language = \"de\""));
+        assert_eq!(de.label(), "hashtags(corpus+lists:de)");
+        assert_eq!(step(&tags("")).label(), "hashtags");
+        // Bad values name the line and what is accepted.
+        let e = err(&tags(", vocabulary = \"words\""));
+        assert!(e.starts_with("my.toml:5: chain \"a\": unknown variant `words`"), "{e}");
+        assert!(e.contains("`corpus`, `lists`, `corpus+lists`, `none`"), "{e}");
+        let e = err(&tags(", vocabulary = \"lists\", language = \"ru\""));
+        assert_eq!(
+            e,
+            "my.toml:5: chain \"a\": hashtags: no built-in word list for language \"ru\"; \
+             accepted: de, en, es, fr, it, nl, pt (or no language for the merged list of all of \
+             them)"
+        );
+        let e = err(&tags(", language = \"de\""));
+        assert!(
+            e.starts_with(
+                "my.toml:5: chain \"a\": hashtags: language = \"de\" picks a built-in list, \
+                 which vocabulary = \"corpus\" does not use"
+            ),
+            "{e}"
+        );
+        // In a route, a branch whose language has a list takes it; others
+        // (ru) and the fallback use the merged list.
+        let text = "[[chain]]\nname = \"r\"\n[chain.route]\nlanguages = [\"de\", \"ru\"]\n\
+                    tokenizer = \"posts\"\nsteps = [{ step = \"hashtags\", vocabulary = \"lists\" }, \
+                    { step = \"lowercase\" }]\nfallback = { tokenizer = \"posts\", steps = \
+                    [{ step = \"hashtags\", vocabulary = \"lists\" }] }\n";
+        let chains = parse_chains(text, "r.toml", &[]).expect("valid");
+        let labels: Vec<String> = chains[0].pipelines().map(|p| p.steps[0].label()).collect();
+        assert_eq!(labels, ["hashtags(lists:de)", "hashtags(lists:all)", "hashtags(lists:all)"]);
+        // A corpus vocabulary takes no branch language.
+        let text = text.replace("\"lists\"", "\"corpus\"");
+        let chains = parse_chains(&text, "r.toml", &[]).expect("valid");
+        assert!(chains[0].pipelines().all(|p| p.steps[0]
+            == StepSpec::Hashtags { vocabulary: TagVocabulary::Corpus, language: None }));
+        assert!(chains[0].needs_word_freqs());
     }
 
     #[test]

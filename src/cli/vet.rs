@@ -8,7 +8,7 @@ use std::process::ExitCode;
 
 use clap::Args;
 
-use postassay::analysis::{self, ChainSpec, StepSpec, TagVocabulary};
+use postassay::analysis::{self, ChainSpec, StepSpec};
 use postassay::diagnose::{self, render, DiagnosePlan, FreqSource, Sections};
 use postassay::error::Error;
 use postassay::input::LangCode;
@@ -49,6 +49,11 @@ pub struct VetArgs {
     /// list tests/fixtures/analysis/hashtag/wordfreq_en.tsv when it exists]
     #[arg(long, value_name = "FILE")]
     freq_list: Vec<PathBuf>,
+    /// Word lists built into the binary to measure as sources, comma-
+    /// separated: de, en, es, fr, it, nl, pt, or all for the merged list of
+    /// the seven (e.g. `en,all`). Measured beside the sources above.
+    #[arg(long, value_name = "LIST")]
+    freq_builtin: Option<String>,
     /// Worst offenders and misses listed per result.
     #[arg(long, value_name = "N", default_value_t = DEFAULT_TOP)]
     top: usize,
@@ -124,6 +129,9 @@ fn plan(args: &VetArgs) -> Result<DiagnosePlan, Error> {
     } else {
         freq_sources.extend(args.freq_list.iter().cloned().map(FreqSource::List));
     }
+    if let Some(list) = &args.freq_builtin {
+        freq_sources.extend(builtin_sources(list)?);
+    }
     Ok(DiagnosePlan {
         data,
         chains: diagnose::chains_under_test(chains(args)?)?,
@@ -135,6 +143,35 @@ fn plan(args: &VetArgs) -> Result<DiagnosePlan, Error> {
     })
 }
 
+/// The built-in lists named by `--freq-builtin` (`all`: the merged list),
+/// in the order given, each once.
+fn builtin_sources(list: &str) -> Result<Vec<FreqSource>, Error> {
+    let listed = analysis::word_lists::list_languages();
+    let mut sources = Vec::new();
+    for name in list.split(',').map(str::trim).filter(|n| !n.is_empty()) {
+        let source = match LangCode::parse(name).filter(|l| listed.contains(l)) {
+            Some(code) => FreqSource::Builtin(Some(code)),
+            None if name == "all" => FreqSource::Builtin(None),
+            None => {
+                return Err(Error::usage(format!(
+                    "--freq-builtin: no built-in word list {name:?}; accepted: {}, all",
+                    diagnose::join_list_languages()
+                )))
+            }
+        };
+        if !sources.contains(&source) {
+            sources.push(source);
+        }
+    }
+    if sources.is_empty() {
+        return Err(Error::usage(format!(
+            "--freq-builtin: name at least one list; accepted: {}, all",
+            diagnose::join_list_languages()
+        )));
+    }
+    Ok(sources)
+}
+
 /// Why the default English list was not measured, when segmentation ran
 /// with learned frequencies and no `--freq-list` was given but the list is
 /// not where it is expected.
@@ -143,8 +180,7 @@ fn missing_default_list(
     plan: &DiagnosePlan,
     found: &diagnose::Diagnostics,
 ) -> Option<String> {
-    let learns =
-        |step: &StepSpec| matches!(step, StepSpec::Hashtags { vocabulary: TagVocabulary::Corpus });
+    let learns = |step: &StepSpec| matches!(step, StepSpec::Hashtags { vocabulary, .. } if vocabulary.uses_corpus());
     let learned = !found.segmentation.is_empty()
         && plan.chains.iter().any(|c| c.spec().pipelines().any(|p| p.steps.iter().any(learns)));
     (learned && args.freq_list.is_empty() && !Path::new(DEFAULT_FREQ_LIST).is_file()).then(|| {

@@ -47,8 +47,8 @@ use serde::{Deserialize, Serialize};
 
 use crate::analysis::hashtag::WordFreqs;
 use crate::analysis::{
-    build_pipeline, builtin_chains, AnalysisContext, Analyzer, ChainBody, ChainSpec, Pipeline,
-    StepSpec, TagVocabulary,
+    build_pipeline, builtin_chains, tag_table, word_lists, AnalysisContext, Analyzer, ChainBody,
+    ChainSpec, Pipeline, StepSpec, TagVocabulary,
 };
 use crate::error::{Error, Result};
 use crate::ids::ChainName;
@@ -175,6 +175,10 @@ pub enum FreqSource {
     Corpus(PathBuf),
     /// Read from a `word<TAB>count` list.
     List(PathBuf),
+    /// A word list built into the binary: one language's, or the merged
+    /// list of all of them for `None`
+    /// ([`word_lists`](crate::analysis::word_lists)).
+    Builtin(Option<LangCode>),
 }
 
 /// Everything a diagnostics run needs.
@@ -243,7 +247,9 @@ pub struct SegmentationResult {
     pub chain: ChainName,
     /// The gold set's name.
     pub gold: String,
-    /// The frequency source's label (`corpus:PATH`, `list:PATH` or `none`).
+    /// The frequency source's label (`corpus:PATH`, `list:PATH`, `lists:LANG`
+    /// for a built-in list, `lists:all` for the merged one, `SOURCE+lists:LANG`
+    /// for a `corpus+lists` step, or `none`).
     pub source: String,
     /// Distinct words in its table.
     pub source_words: usize,
@@ -578,7 +584,7 @@ fn hashtag_prefix(spec: &ChainSpec) -> Option<(Pipeline, TagVocabulary)> {
     let cut = |p: &Pipeline| {
         let at = p.steps.iter().position(|s| matches!(s, StepSpec::Hashtags { .. }))?;
         let vocabulary = match p.steps.get(at) {
-            Some(StepSpec::Hashtags { vocabulary }) => *vocabulary,
+            Some(StepSpec::Hashtags { vocabulary, .. }) => *vocabulary,
             _ => return None,
         };
         Some((Pipeline { tokenizer: p.tokenizer, steps: p.steps.get(..=at)?.to_vec() }, vocabulary))
@@ -615,18 +621,54 @@ fn load_sources(
                 inputs.push(input_file("freq-corpus", path)?);
                 (
                     format!("corpus:{}", path.display()),
-                    WordFreqs::learn(posts.iter().map(|p| p.text.as_str())),
+                    Arc::new(WordFreqs::learn(posts.iter().map(|p| p.text.as_str()))),
                 )
             }
             FreqSource::List(path) => {
                 let freqs = WordFreqs::read_counts(path)?;
                 inputs.push(input_file("freq-list", path)?);
-                (format!("list:{}", path.display()), freqs)
+                (format!("list:{}", path.display()), Arc::new(freqs))
+            }
+            FreqSource::Builtin(language) => {
+                let freqs = word_lists::builtin_list(*language).ok_or_else(|| {
+                    Error::usage(format!(
+                        "no built-in word list for language {:?}; accepted: {}, all",
+                        language.as_ref().map_or("", LangCode::as_str),
+                        join_list_languages()
+                    ))
+                })?;
+                (builtin_label(*language), freqs)
             }
         };
-        loaded.push(LoadedSource { label, freqs: Some(Arc::new(freqs)) });
+        loaded.push(LoadedSource { label, freqs: Some(freqs) });
     }
     Ok(loaded)
+}
+
+/// The languages of the built-in lists, comma-separated.
+pub fn join_list_languages() -> String {
+    word_lists::list_languages().iter().map(LangCode::as_str).collect::<Vec<_>>().join(", ")
+}
+
+/// The label of a built-in list: `lists:de`, or `lists:all` for the merged one.
+fn builtin_label(language: Option<LangCode>) -> String {
+    format!("lists:{}", language.as_ref().map_or("all", LangCode::as_str))
+}
+
+/// The label of the table a chain's `hashtags` step segments with, given
+/// the measured source (`corpus`: the source itself; `lists`: the step's
+/// list; `corpus+lists`: both, joined by `+`).
+fn table_label(step: Option<&StepSpec>, source: &LoadedSource) -> String {
+    match step {
+        Some(StepSpec::Hashtags { vocabulary, language }) if vocabulary.uses_lists() => {
+            let list = builtin_label(*language);
+            match (vocabulary.uses_corpus(), &source.freqs) {
+                (true, Some(_)) => format!("{}+{list}", source.label),
+                _ => list,
+            }
+        }
+        _ => source.label.clone(),
+    }
 }
 
 fn segmentation_section(
@@ -643,12 +685,13 @@ fn segmentation_section(
         inputs.push(input_file(&format!("gold:{}", file.name), &file.path)?);
         golds.push((file, gold));
     }
-    let needs_freqs = tagged.iter().any(|(_, _, v)| *v == TagVocabulary::Corpus);
+    let needs_freqs = tagged.iter().any(|(_, _, v)| v.uses_corpus());
     let mut sources = if needs_freqs { load_sources(plan, inputs, progress)? } else { Vec::new() };
     if needs_freqs && sources.is_empty() {
         notes.push(
-            "segmentation: no word-frequency source (--freq-corpus or --freq-list): \
-             tags split on case, digit and underscore boundaries only"
+            "segmentation: no word-frequency source (--freq-corpus, --freq-list or \
+             --freq-builtin): chains that learn from the corpus split tags on case, digit and \
+             underscore boundaries only (with corpus+lists, on their built-in list alone)"
                 .to_string(),
         );
         sources.push(LoadedSource { label: "none".into(), freqs: None });
@@ -657,24 +700,30 @@ fn segmentation_section(
     let mut out = Vec::new();
     for (chain, pipeline, vocabulary) in tagged {
         let chain_sources: &[LoadedSource] =
-            if *vocabulary == TagVocabulary::Corpus { &sources } else { &none };
+            if vocabulary.uses_corpus() { &sources } else { &none };
         for source in chain_sources {
             let ctx = AnalysisContext { word_freqs: source.freqs.clone() };
+            let step = pipeline.steps.last();
+            let table = match step {
+                Some(step) => tag_table(step, &ctx)?,
+                None => None,
+            };
+            let label = table_label(step, source);
             let mut analyzer = build_pipeline(pipeline, &ctx)?;
             for (file, gold) in &golds {
                 progress(&format!(
                     "segmentation: {} on {} with {} ({} tags)",
                     chain.name(),
                     file.name,
-                    source.label,
+                    label,
                     gold.len()
                 ));
                 let figures = segmentation::assess(&mut analyzer, gold, plan.top);
                 out.push(SegmentationResult {
                     chain: chain.name().clone(),
                     gold: file.name.clone(),
-                    source: source.label.clone(),
-                    source_words: source.freqs.as_ref().map_or(0, |f| f.len()),
+                    source: label.clone(),
+                    source_words: table.as_ref().map_or(0, |f| f.len()),
                     figures,
                 });
             }

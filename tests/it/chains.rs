@@ -51,3 +51,40 @@ fn bad_chain_file_exits_2_with_every_problem_and_writes_nothing() {
     assert!(stderr.contains("bad.toml:7"), "the second problem is listed too: {stderr}");
     assert!(!out.exists(), "--out must not be created on failure");
 }
+
+/// A `hashtags` step with a vocabulary or list language that does not
+/// exist exits 2, naming the line and the accepted values.
+#[test]
+fn bad_hashtags_options_exit_2_naming_line_and_accepted_values() {
+    let tmp = tempfile::tempdir().unwrap();
+    let chains = write(
+        tmp.path(),
+        "tags.toml",
+        "[[chain]]\nname = \"a\"\ntokenizer = \"posts\"\n\
+         steps = [{ step = \"hashtags\", vocabulary = \"dictionary\" }]\n\n\
+         [[chain]]\nname = \"b\"\ntokenizer = \"posts\"\n\
+         steps = [{ step = \"hashtags\", vocabulary = \"lists\", language = \"sv\" }]\n",
+    );
+    let res = postassay(
+        tmp.path(),
+        &["tokens", "--chain-file", chains.to_str().unwrap(), "--chain", "a", "#x"],
+    );
+    let (stdout, stderr) = texts(&res);
+    assert_eq!(res.status.code(), Some(2), "stderr: {stderr}");
+    assert!(stdout.is_empty());
+    assert!(!stderr.contains("panicked"), "{stderr}");
+    assert!(
+        stderr.contains(
+            "tags.toml:4: chain \"a\": unknown variant `dictionary`, expected one of `corpus`, \
+             `lists`, `corpus+lists`, `none`"
+        ),
+        "{stderr}"
+    );
+    assert!(
+        stderr.contains(
+            "tags.toml:9: chain \"b\": hashtags: no built-in word list for language \"sv\"; \
+             accepted: de, en, es, fr, it, nl, pt"
+        ),
+        "{stderr}"
+    );
+}

@@ -12,6 +12,25 @@ fn json(args: &[&str]) -> serde_json::Value {
     serde_json::from_str(&stdout).unwrap()
 }
 
+/// Run `tokens` in `cwd` (exit 0 expected): the first text's JSON, the
+/// texts of its tokens (none with `--trace`), and stderr.
+fn first_text_tokens(
+    cwd: &std::path::Path,
+    args: &[&str],
+) -> (serde_json::Value, Vec<String>, String) {
+    let res = postassay(cwd, args);
+    let (stdout, stderr) = texts(&res);
+    assert_eq!(res.status.code(), Some(0), "{stderr}");
+    let v: serde_json::Value = serde_json::from_str(&stdout).unwrap();
+    (v[0].clone(), token_texts(&v[0]["tokens"]), stderr)
+}
+
+/// The `text` of each token of a JSON token list.
+fn token_texts(tokens: &serde_json::Value) -> Vec<String> {
+    let tokens = tokens.as_array().map(Vec::as_slice).unwrap_or_default();
+    tokens.iter().map(|t| t["text"].as_str().unwrap().to_string()).collect()
+}
+
 #[test]
 fn tokens_with_positions_and_byte_offsets() {
     // Snowball English (Porter 1980 rule examples, from memory): "ponies" →
@@ -98,19 +117,10 @@ fn unknown_chain_and_bad_language_exit_2() {
 #[test]
 fn hashtag_words_default_to_the_demo_corpus_and_say_so() {
     let words = |cwd: &std::path::Path| {
-        let res = postassay(
+        let (_, tokens, stderr) = first_text_tokens(
             cwd,
             &["tokens", "--chain", "hashtag", "--format", "json", "#harbourmarketday"],
         );
-        let (stdout, stderr) = texts(&res);
-        assert_eq!(res.status.code(), Some(0), "{stderr}");
-        let v: serde_json::Value = serde_json::from_str(&stdout).unwrap();
-        let tokens: Vec<String> = v[0]["tokens"]
-            .as_array()
-            .unwrap()
-            .iter()
-            .map(|t| t["text"].as_str().unwrap().to_string())
-            .collect();
         (tokens, stderr)
     };
     let (tokens, note) = words(&root());
@@ -123,4 +133,45 @@ fn hashtag_words_default_to_the_demo_corpus_and_say_so() {
     // Chains without such a step say nothing.
     let res = postassay(elsewhere.path(), &["tokens", "--chain", "standard", "#harbourmarketday"]);
     assert_eq!(texts(&res).1, "");
+}
+
+/// `vocabulary = "lists"` (`tags_by_language` of chains/hashtag_lists.toml):
+/// the built-in word lists split all-lowercase tags with no corpus at all; a
+/// routed chain's branch uses its language's list and the fallback
+/// (language unknown) the merged list of all seven.
+/// Expected splits: the words as written apart (gold of
+/// tests/fixtures/analysis/hashtag/invented_gold.tsv, invented).
+#[test]
+fn built_in_lists_split_tags_per_branch_language() {
+    let tmp = tempfile::tempdir().unwrap();
+    let chains = root().join("chains/hashtag_lists.toml");
+    let chains = chains.to_str().unwrap();
+    // Run outside the repository: no demo corpus, nothing read but the file.
+    // The field, and the label and output of the hashtags step (before
+    // lower-casing and stemming).
+    let words = |lang: &str, text: &str| {
+        let args =
+            ["tokens", "--chain-file", chains, "--chain", "tags_by_language", "--lang", lang];
+        let (v, _, _) = first_text_tokens(
+            tmp.path(),
+            &[&args[..], &["--trace", "--format", "json", text]].concat(),
+        );
+        let stage = &v["stages"][1];
+        (
+            v["field"].as_str().unwrap().to_string(),
+            stage["stage"].as_str().unwrap().to_string(),
+            token_texts(&stage["tokens"]),
+        )
+    };
+    // The German list spells ß as ss (wordfreq case-folds); parts keep ß.
+    let (field, step, tokens) = words("de", "#fußballistunserleben");
+    assert_eq!((field.as_str(), step.as_str()), ("text_de", "hashtags(lists:de)"));
+    assert_eq!(tokens, ["fußballistunserleben", "fußball", "ist", "unser", "leben"]);
+    let (field, step, tokens) = words("fr", "#rentréescolaire");
+    assert_eq!((field.as_str(), step.as_str()), ("text_fr", "hashtags(lists:fr)"));
+    assert_eq!(tokens, ["rentréescolaire", "rentrée", "scolaire"]);
+    // Spanish has no branch here: the fallback, with the merged list.
+    let (field, step, tokens) = words("es", "#buenosdías");
+    assert_eq!((field.as_str(), step.as_str()), ("text_other", "hashtags(lists:all)"));
+    assert_eq!(tokens, ["buenosdías", "buenos", "días"]);
 }

@@ -515,3 +515,36 @@ fn full_pass_over_the_shared_data() {
         assert!(num(row, "exact_accuracy") > num(corpus, "exact_accuracy"), "{}", row["gold"]);
     }
 }
+
+/// `--freq-builtin` measures the word lists built into the binary, each as
+/// its own source (`lists:LANG`, `lists:all` for the merged one), once per
+/// name; an unknown name exits 2 listing the accepted ones. Three invented
+/// tags (English, French, German): the English list splits only the English
+/// one, the French list only the French one, the merged list all three.
+#[test]
+fn built_in_lists_are_sources_of_their_own() {
+    let gold = "rentréescolaire\trentrée scolaire\nharbourmarketday\tharbour market day\n\
+                gutenmorgen\tguten morgen\n";
+    let (tmp, res) = vet_gold(gold, &["--quiet", "--freq-builtin", "en,all,fr,en", "--out", "out"]);
+    assert_eq!(res.status.code(), Some(0), "{}", texts(&res).1);
+    let seg = rows(&tmp.path().join("out/diagnostics-segmentation.csv"));
+    let got: Vec<(&str, &str, &str)> = seg
+        .iter()
+        .map(|r| (r["source"].as_str(), r["source_words"].as_str(), r["exact"].as_str()))
+        .collect();
+    // Word counts: the lists' distinct words (tests/fixtures/analysis/hashtag/README.md);
+    // the merged list holds the union of the seven.
+    assert_eq!(
+        got,
+        [("lists:en", "29244", "1"), ("lists:all", "156858", "3"), ("lists:fr", "29773", "1")]
+    );
+    let (_tmp, res) = vet_gold(gold, &["--freq-builtin", "en,sv"]);
+    assert_eq!(res.status.code(), Some(2));
+    assert!(
+        texts(&res).1.contains(
+            "--freq-builtin: no built-in word list \"sv\"; accepted: de, en, es, fr, it, nl, pt, all"
+        ),
+        "{}",
+        texts(&res).1
+    );
+}
