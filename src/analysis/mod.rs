@@ -57,6 +57,7 @@ mod spec;
 mod stem;
 mod stop_words;
 pub mod token_shape;
+mod unspaced;
 mod whitespace_tokenizer;
 mod word_tokenizer;
 
@@ -81,5 +82,6 @@ pub use spec::{
 };
 pub use stem::{stem_languages, Stem, StemGeneration, StemWork, STEM_CACHE_CAPACITY};
 pub use stop_words::{stop_languages, StopWords};
+pub use unspaced::Unspaced;
 pub use whitespace_tokenizer::{WhitespaceTokenStream, WhitespaceTokenizer};
 pub use word_tokenizer::{WordTokenStream, WordTokenizer};
