@@ -244,8 +244,10 @@ fn push_pairs(run: &str, base: usize, out: &mut Vec<(usize, usize)>) {
 pub(crate) enum Segments<'a> {
     /// Today's UAX #29 segments.
     Plain(WordSegments<'a>),
-    /// Runs cut by the setting.
-    Cut(RunSegments<'a>),
+    /// Runs cut by the setting (boxed, so that the default variant stays
+    /// as small as [`WordSegments`] for the tokenizers that create one per
+    /// text or gap).
+    Cut(Box<RunSegments<'a>>),
 }
 
 impl<'a> Segments<'a> {
@@ -253,7 +255,7 @@ impl<'a> Segments<'a> {
     pub(crate) fn new(text: &'a str, keep_emoji: bool, setting: Unspaced) -> Segments<'a> {
         match setting {
             Unspaced::Characters => Segments::Plain(WordSegments::new(text, keep_emoji)),
-            _ => Segments::Cut(RunSegments {
+            _ => Segments::Cut(Box::new(RunSegments {
                 text,
                 keep_emoji,
                 setting,
@@ -261,7 +263,7 @@ impl<'a> Segments<'a> {
                 gap: None,
                 words: Vec::new(),
                 next_word: 0,
-            }),
+            })),
         }
     }
 }
