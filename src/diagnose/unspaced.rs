@@ -44,6 +44,7 @@ use serde::{Deserialize, Serialize};
 use tantivy::tokenizer::{TextAnalyzer, Token};
 
 use super::data::GoldSentence;
+use super::segmentation::precision_recall_f1;
 use crate::analysis::{Unspaced, WordTokenizer};
 
 /// A sentence where the prediction differs from the gold.
@@ -65,13 +66,13 @@ pub struct WordFigures {
     /// Sentences whose gold words do not spell the text (not scored).
     pub unaligned: usize,
     /// Tokens produced on the scored sentences.
-    pub tokens: u64,
+    pub tokens: usize,
     /// Predicted boundaries (places where a token starts or ends).
-    pub predicted_boundaries: u64,
+    pub predicted_boundaries: usize,
     /// Gold boundaries.
-    pub gold_boundaries: u64,
+    pub gold_boundaries: usize,
     /// Places in both.
-    pub correct_boundaries: u64,
+    pub correct_boundaries: usize,
     /// Σ correct / Σ predicted.
     pub precision: Option<f64>,
     /// Σ correct / Σ gold.
@@ -79,9 +80,9 @@ pub struct WordFigures {
     /// Harmonic mean of precision and recall.
     pub f1: Option<f64>,
     /// Gold words with a letter or digit.
-    pub gold_words: u64,
+    pub gold_words: usize,
     /// Of those, found as a token with the same span.
-    pub words_found: u64,
+    pub words_found: usize,
     /// `words_found / gold_words`.
     pub word_recall: Option<f64>,
     /// The first sentences (file order) where the boundaries differ.
@@ -129,7 +130,7 @@ fn boundaries(spans: &[(usize, usize)], places: &BTreeSet<usize>) -> BTreeSet<us
     spans.iter().flat_map(|&(a, b)| [a, b]).filter(|p| places.contains(p)).collect()
 }
 
-fn share(part: u64, whole: u64) -> Option<f64> {
+fn share(part: usize, whole: usize) -> Option<f64> {
     (whole > 0).then(|| part as f64 / whole as f64)
 }
 
@@ -165,18 +166,18 @@ pub fn assess(analyzer: &mut TextAnalyzer, gold: &[GoldSentence], top: usize) ->
         analyzer
             .token_stream(&sentence.text)
             .process(&mut |t: &Token| spans.push((t.offset_from, t.offset_to)));
-        f.tokens += spans.len() as u64;
+        f.tokens += spans.len();
         let places = places(&sentence.text);
         let gold_b = boundaries(&gold_spans, &places);
         let ours_b = boundaries(&spans, &places);
-        f.gold_boundaries += gold_b.len() as u64;
-        f.predicted_boundaries += ours_b.len() as u64;
-        f.correct_boundaries += gold_b.intersection(&ours_b).count() as u64;
+        f.gold_boundaries += gold_b.len();
+        f.predicted_boundaries += ours_b.len();
+        f.correct_boundaries += gold_b.intersection(&ours_b).count();
         let found: BTreeSet<&(usize, usize)> = spans.iter().collect();
         for (span, word) in gold_spans.iter().zip(&sentence.words) {
             if word.chars().any(char::is_alphanumeric) {
                 f.gold_words += 1;
-                f.words_found += u64::from(found.contains(span));
+                f.words_found += usize::from(found.contains(span));
             }
         }
         if gold_b != ours_b && f.misses.len() < top {
@@ -188,13 +189,8 @@ pub fn assess(analyzer: &mut TextAnalyzer, gold: &[GoldSentence], top: usize) ->
             });
         }
     }
-    f.precision = share(f.correct_boundaries, f.predicted_boundaries);
-    f.recall = share(f.correct_boundaries, f.gold_boundaries);
-    f.f1 = match (f.precision, f.recall) {
-        (Some(p), Some(r)) if p + r > 0.0 => Some(2.0 * p * r / (p + r)),
-        (Some(_), Some(_)) => Some(0.0),
-        _ => None,
-    };
+    (f.precision, f.recall, f.f1) =
+        precision_recall_f1(f.correct_boundaries, f.predicted_boundaries, f.gold_boundaries);
     f.word_recall = share(f.words_found, f.gold_words);
     f
 }

@@ -662,7 +662,7 @@ fn diagnostics(s: &mut String, r: &Report) {
         let _ = writeln!(
             s,
             "<h3>Scripts written without spaces</h3>\n<p>{}</p>",
-            esc(&UNSPACED_LEGEND.replace('`', "").replace('*', ""))
+            esc(&UNSPACED_LEGEND.replace(['`', '*'], ""))
         );
         diagnostics_table(s, &unspaced_table(&d.unspaced));
     }

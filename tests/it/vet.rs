@@ -307,7 +307,8 @@ fn langs_on_a_directory_without_language_data_says_what_it_expects() {
     assert!(
         stderr.contains(
             "--langs: no language data in data: expected data/ud/LANG.lemmas.tsv, \
-             data/ud/LANG.sentences.tsv or data/ud_pud/LANG.sentences.tsv"
+             data/ud/LANG.sentences.tsv, data/ud_pud/LANG.sentences.tsv or \
+             data/ud_nospace/LANG.words.tsv"
         ),
         "{stderr}"
     );
