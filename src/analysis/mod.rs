@@ -17,6 +17,9 @@
 //! several tokens for one (`EdgeNgrams`, `HashtagSplit`) have their own:
 //! - tokenizers: [`WordTokenizer`] (`words`, UAX #29), [`PostTokenizer`]
 //!   (`posts`: tags, mentions, URLs, emoji whole), [`WhitespaceTokenizer`];
+//!   the first two take an [`Unspaced`] setting that cuts Thai, Lao, Khmer,
+//!   Burmese, Chinese and Japanese into words (icu_segmenter) or character
+//!   pairs;
 //! - filters: [`Lowercase`], [`Fold`], [`StopWords`], [`Stem`] (two Snowball
 //!   generations), [`Elision`], [`LengthLimit`], [`EdgeNgrams`],
 //!   [`DropTokens`], and [`hashtag::HashtagSplit`].
