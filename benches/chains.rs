@@ -12,7 +12,11 @@
 //!   `default` tokenizer and the same schema and writer settings;
 //! - language detection for the `routed` chain, cold (detected on 2
 //!   threads and written to an empty cache) and warm (read back from the
-//!   cache), added to the routed build.
+//!   cache), added to the routed build;
+//! - the `words` tokenizer's `unspaced` settings on the Thai, Chinese and
+//!   Japanese sentences of the shared open data (`ud_nospace/`, from
+//!   `POSTASSAY_BENCH_DATA`, default `../shared/data`), against
+//!   `characters`; skipped with a note when the data is absent.
 //!
 //! Machines are noisy, so the figures to keep are the ratios to the default
 //! build measured in the same run: each chain's build follows its own
@@ -37,7 +41,7 @@ use std::time::Instant;
 
 use postassay::analysis::detect::{Detection, LangDetector};
 use postassay::analysis::hashtag::WordFreqs;
-use postassay::analysis::{builtin_chains, AnalysisContext, Analyzer};
+use postassay::analysis::{builtin_chains, AnalysisContext, Analyzer, Unspaced, WordTokenizer};
 use postassay::bench::detect_cache::DetectCache;
 use postassay::ids::PostId;
 use postassay::index::{deterministic_writer, ChainIndex};
@@ -137,6 +141,8 @@ fn main() {
     println!();
     analysis_table(&posts, &analyzers, &detections);
     println!();
+    unspaced_table();
+    println!();
     build_table(&posts, &analyzers, &texts, repeats, &detector, learn_seconds);
     println!(
         "(routed: {:.1}% of posts detected confidently in one of {} languages)",
@@ -216,6 +222,57 @@ fn analysis_table(posts: &[Post], analyzers: &[Analyzer], detections: &[Option<D
         );
     }
     println!("  (routed: analysis only, posts routed by the detections above)");
+}
+
+/// Analysis time of the `words` tokenizer with each `unspaced` setting on
+/// the gold sentences of `ud_nospace/` (each text 20 times), against
+/// `characters`.
+fn unspaced_table() {
+    let data = std::env::var_os("POSTASSAY_BENCH_DATA")
+        .map_or_else(|| std::path::PathBuf::from("../shared/data"), std::path::PathBuf::from);
+    let dir = data.join(postassay::diagnose::data::NOSPACE_DIR);
+    if !dir.is_dir() {
+        println!("unspaced: skipped, {} is absent (set POSTASSAY_BENCH_DATA=DIR)", dir.display());
+        return;
+    }
+    println!(
+        "unspaced settings of the words tokenizer on {} (20 passes; µs per sentence, time ÷ \
+         characters)",
+        dir.display()
+    );
+    for lang in ["th", "zh", "ja"] {
+        let path = dir.join(format!("{lang}.words.tsv"));
+        let Ok(gold) = postassay::diagnose::data::read_word_gold(&path) else {
+            println!("  {lang}: {} unreadable", path.display());
+            continue;
+        };
+        let bytes: usize = gold.iter().map(|g| g.text.len()).sum();
+        let mut line = format!("  {lang} ({} sentences, {bytes} bytes):", gold.len());
+        let mut base = f64::NAN;
+        for setting in Unspaced::ALL {
+            let mut analyzer = TextAnalyzer::from(WordTokenizer::new(setting));
+            let row = time_analysis(setting.as_str(), |mut h| {
+                let mut n = 0;
+                for _ in 0..20 {
+                    for g in &gold {
+                        n += count_tokens(&mut analyzer, &g.text, h.as_deref_mut());
+                    }
+                    h = None;
+                }
+                n
+            });
+            let per_sentence = row.seconds / (20 * gold.len().max(1)) as f64 * 1e6;
+            if setting == Unspaced::Characters {
+                base = row.seconds;
+            }
+            line.push_str(&format!(
+                " {} {per_sentence:.1} µs ({:.1}×)",
+                setting.as_str(),
+                row.seconds / base
+            ));
+        }
+        println!("{line}");
+    }
 }
 
 /// Run `work` twice (the first, with a digest of every token, warms caches

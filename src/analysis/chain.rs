@@ -36,6 +36,7 @@ use super::spec::{
 };
 use super::stem::Stem;
 use super::stop_words::StopWords;
+use super::unspaced::Unspaced;
 use super::whitespace_tokenizer::WhitespaceTokenizer;
 use super::word_lists;
 use super::word_tokenizer::WordTokenizer;
@@ -272,22 +273,23 @@ pub(crate) fn build_prefix(
     ctx: &AnalysisContext,
 ) -> Result<TextAnalyzer> {
     let steps = pipeline.steps.get(..steps).unwrap_or(&pipeline.steps);
-    if let Some(analyzer) = build_static(pipeline.tokenizer, steps, ctx)? {
+    if let Some(analyzer) = build_static(pipeline.tokenizer, pipeline.unspaced, steps, ctx)? {
         return Ok(analyzer);
     }
-    build_dynamic(pipeline.tokenizer, steps, ctx)
+    build_dynamic(pipeline.tokenizer, pipeline.unspaced, steps, ctx)
 }
 
 /// Build a chain step by step with `filter_dynamic` (any tokenizer and
 /// steps).
 fn build_dynamic(
     tokenizer: TokenizerKind,
+    unspaced: Unspaced,
     steps: &[StepSpec],
     ctx: &AnalysisContext,
 ) -> Result<TextAnalyzer> {
     let mut builder: TextAnalyzerBuilder = match tokenizer {
-        TokenizerKind::Words => TextAnalyzer::builder(WordTokenizer::default()).dynamic(),
-        TokenizerKind::Posts => TextAnalyzer::builder(PostTokenizer::default()).dynamic(),
+        TokenizerKind::Words => TextAnalyzer::builder(WordTokenizer::new(unspaced)).dynamic(),
+        TokenizerKind::Posts => TextAnalyzer::builder(PostTokenizer::new(unspaced)).dynamic(),
         TokenizerKind::Whitespace => {
             TextAnalyzer::builder(WhitespaceTokenizer::default()).dynamic()
         }
@@ -306,12 +308,13 @@ fn build_dynamic(
 /// form). `None` for other shapes.
 fn build_static(
     tokenizer: TokenizerKind,
+    unspaced: Unspaced,
     steps: &[StepSpec],
     ctx: &AnalysisContext,
 ) -> Result<Option<TextAnalyzer>> {
     use TokenizerKind::{Posts, Words};
-    let words = || TextAnalyzer::builder(WordTokenizer::default());
-    let posts = || TextAnalyzer::builder(PostTokenizer::default());
+    let words = || TextAnalyzer::builder(WordTokenizer::new(unspaced));
+    let posts = || TextAnalyzer::builder(PostTokenizer::new(unspaced));
     Ok(Some(match (tokenizer, steps) {
         (Words, []) => words().build(),
         (Posts, []) => posts().build(),
@@ -685,6 +688,30 @@ mod tests {
         assert_eq!(texts(&mut analyzer, "Häuser springt")[..], ["haus", "springt"]);
     }
 
+    /// A post-aware chain with dictionary words: tags, URLs and Latin words
+    /// as before, the Japanese between them as words (UD Japanese-GSD
+    /// test-s2 begins 幸福 の 科学, its gold words), offsets into the text.
+    #[test]
+    fn posts_with_unspaced_words() {
+        let text = "[[chain]]\nname = \"ja\"\ntokenizer = \"posts\"\nunspaced = \"dictionary\"\n\
+                    steps = [{ step = \"lowercase\" }]\n";
+        let spec = &parse_chains(text, "ja.toml", &[]).expect("valid")[0];
+        let mut a = Analyzer::build(spec, &AnalysisContext::default()).expect("builds").fields()[0]
+            .analyzer
+            .clone();
+        assert_tokens(
+            &mut a,
+            "#幸福 幸福の科学 @Ana",
+            &[
+                ("#幸福", 0, 0, 7),
+                ("幸福", 1, 8, 14),
+                ("の", 2, 14, 17),
+                ("科学", 3, 17, 23),
+                ("@ana", 4, 24, 28),
+            ],
+        );
+    }
+
     #[test]
     fn specs_built_in_code_fail_cleanly() {
         let spec = ChainSpec {
@@ -692,6 +719,7 @@ mod tests {
             description: None,
             body: ChainBody::Plain(Pipeline {
                 tokenizer: TokenizerKind::Words,
+                unspaced: Unspaced::Characters,
                 steps: vec![StepSpec::Stem { language: None, generation: StemGeneration::Current }],
             }),
         };
@@ -710,6 +738,7 @@ mod tests {
             "Fresh fish at #HarbourMarket https://x.example/a?b=1 @Ana 🐟 #harbourmarket",
             "Grüße aus KÖLN, İSTANBUL und ΟΔΟΣ! Running ponies, 3.14 can't #2024 #tag_2025",
             "東京駅 👨\u{200d}👩\u{200d}👧 www.example.org/x_(y) @ana@social.example café\u{301}",
+            "#東京 東京駅で会おう https://x.example ภาษาไทยง่ายนิดเดียว 한국어 KÖLN",
             "",
         ];
         let mut pipelines = Vec::new();
@@ -724,21 +753,36 @@ mod tests {
         }
         let turkish = Pipeline {
             tokenizer: TokenizerKind::Words,
+            unspaced: Unspaced::Characters,
             steps: vec![
                 StepSpec::Lowercase { language: Some(lang("tr")) },
                 StepSpec::Stem { language: Some(lang("tr")), generation: StemGeneration::V2018 },
             ],
         };
         pipelines.push(turkish);
-        pipelines.push(Pipeline { tokenizer: TokenizerKind::Posts, steps: vec![] });
+        pipelines.push(Pipeline {
+            tokenizer: TokenizerKind::Posts,
+            unspaced: Unspaced::Characters,
+            steps: vec![],
+        });
+        // The same shapes with scripts without spaces cut into words or pairs.
+        let cut: Vec<Pipeline> = pipelines
+            .iter()
+            .zip(Unspaced::ALL.into_iter().skip(1).cycle())
+            .map(|(p, unspaced)| Pipeline { unspaced, ..p.clone() })
+            .collect();
+        pipelines.extend(cut);
         let mut static_shapes = 0;
         for pipeline in &pipelines {
             static_shapes += usize::from(
-                build_static(pipeline.tokenizer, &pipeline.steps, &ctx).expect("builds").is_some(),
+                build_static(pipeline.tokenizer, pipeline.unspaced, &pipeline.steps, &ctx)
+                    .expect("builds")
+                    .is_some(),
             );
             let mut fast = build_pipeline(pipeline, &ctx).expect("builds");
             let mut slow =
-                build_dynamic(pipeline.tokenizer, &pipeline.steps, &ctx).expect("builds");
+                build_dynamic(pipeline.tokenizer, pipeline.unspaced, &pipeline.steps, &ctx)
+                    .expect("builds");
             for text in texts {
                 let tokens = |a: &mut TextAnalyzer| {
                     crate::analysis::testutil::collect_tokens(a, text)

@@ -95,7 +95,7 @@ pub fn trace(
         analyzer.token_stream(text).process(&mut |t: &Token| tokens.push(TokenView::from(t)));
         let stage = match k.checked_sub(1).and_then(|i| pipeline.steps.get(i)) {
             Some(step) => step.label(),
-            None => pipeline.tokenizer.as_str().to_string(),
+            None => pipeline.tokenizer_label(),
         };
         stages.push(TraceStage { field: key.clone(), stage, tokens });
     }

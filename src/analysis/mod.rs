@@ -17,6 +17,9 @@
 //! several tokens for one (`EdgeNgrams`, `HashtagSplit`) have their own:
 //! - tokenizers: [`WordTokenizer`] (`words`, UAX #29), [`PostTokenizer`]
 //!   (`posts`: tags, mentions, URLs, emoji whole), [`WhitespaceTokenizer`];
+//!   the first two take an [`Unspaced`] setting that cuts Thai, Lao, Khmer,
+//!   Burmese, Chinese and Japanese into words (icu_segmenter) or character
+//!   pairs;
 //! - filters: [`Lowercase`], [`Fold`], [`StopWords`], [`Stem`] (two Snowball
 //!   generations), [`Elision`], [`LengthLimit`], [`EdgeNgrams`],
 //!   [`DropTokens`], and [`hashtag::HashtagSplit`].
@@ -57,6 +60,7 @@ mod spec;
 mod stem;
 mod stop_words;
 pub mod token_shape;
+mod unspaced;
 mod whitespace_tokenizer;
 pub mod word_lists;
 mod word_tokenizer;
@@ -83,5 +87,6 @@ pub use spec::{
 };
 pub use stem::{stem_languages, Stem, StemGeneration, StemWork, STEM_CACHE_CAPACITY};
 pub use stop_words::{stop_languages, StopWords};
+pub use unspaced::Unspaced;
 pub use whitespace_tokenizer::{WhitespaceTokenStream, WhitespaceTokenizer};
 pub use word_tokenizer::{WordTokenStream, WordTokenizer};

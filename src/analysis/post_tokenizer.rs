@@ -32,12 +32,22 @@
 use tantivy::tokenizer::{Token, TokenStream, Tokenizer};
 use unicode_normalization::char::is_combining_mark;
 
-use super::word_tokenizer::WordSegments;
+use super::unspaced::{Segments, Unspaced};
 
-/// Tokenizer settings for `posts` (no options).
+/// Tokenizer settings for `posts`: how runs of scripts written without
+/// spaces between the elements are cut ([`Unspaced`]; the default keeps
+/// UAX #29 alone).
 #[derive(Clone, Default, Debug)]
 pub struct PostTokenizer {
+    unspaced: Unspaced,
     token: Token,
+}
+
+impl PostTokenizer {
+    /// The tokenizer with the given [`Unspaced`] setting.
+    pub fn new(unspaced: Unspaced) -> PostTokenizer {
+        PostTokenizer { unspaced, token: Token::default() }
+    }
 }
 
 /// The token stream of [`PostTokenizer`].
@@ -47,9 +57,10 @@ pub struct PostTokenStream<'a> {
     pos: usize,
     /// Word segments of the text before the next element, with the byte
     /// offset of that text.
-    gap: Option<(usize, WordSegments<'a>)>,
+    gap: Option<(usize, Segments<'a>)>,
     /// The next element (byte range), emitted once the gap is exhausted.
     element: Option<(usize, usize)>,
+    unspaced: Unspaced,
     token: &'a mut Token,
 }
 
@@ -58,7 +69,14 @@ impl Tokenizer for PostTokenizer {
 
     fn token_stream<'a>(&'a mut self, text: &'a str) -> PostTokenStream<'a> {
         self.token.reset();
-        PostTokenStream { text, pos: 0, gap: None, element: None, token: &mut self.token }
+        PostTokenStream {
+            text,
+            pos: 0,
+            gap: None,
+            element: None,
+            unspaced: self.unspaced,
+            token: &mut self.token,
+        }
     }
 }
 
@@ -99,7 +117,7 @@ impl TokenStream for PostTokenStream<'_> {
             self.element = element;
             if gap_end > start {
                 let gap = self.text.get(start..gap_end).unwrap_or_default();
-                self.gap = Some((start, WordSegments::new(gap, true)));
+                self.gap = Some((start, Segments::new(gap, true, self.unspaced)));
             }
         }
     }

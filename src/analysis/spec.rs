@@ -13,6 +13,7 @@
 //! name = "stemmed_de"                 # letters, digits, '_', '-', '.'
 //! description = "German, stemmed"     # optional
 //! tokenizer = "words"                 # words (default) | posts | whitespace
+//! unspaced = "characters"             # characters (default) | dictionary | model | bigrams
 //! steps = [
 //!   { step = "lowercase" },
 //!   { step = "stem", language = "de", generation = "current" },
@@ -29,12 +30,25 @@
 //! fusion = "normalised_score"         # normalised_score (default) | reciprocal_rank
 //! fallback_posts = "unrouted"         # unrouted (default) | all
 //! tokenizer = "words"                 # each language's chain (default words)
+//! unspaced = "characters"             # branches' and fallback's (see below)
 //! steps = [{ step = "lowercase" }, { step = "stem" }]   # (the default)
 //! fallback = "standard"               # a plain chain's name, or an inline
 //!                                     # { tokenizer = …, steps = […] }
 //! [chain.route.language.de]           # optional per-language override
 //! steps = [{ step = "lowercase" }, { step = "stem" }, { step = "fold" }]
 //! ```
+//!
+//! `unspaced` says how the `words` and `posts` tokenizers cut Thai, Lao,
+//! Khmer, Burmese, Chinese and Japanese, which are written without spaces
+//! between words (see `unspaced.rs`): `characters` keeps UAX #29 (single
+//! characters; the default), `dictionary` and `model` segment their runs
+//! into words with ICU4X (dictionaries; or LSTM models for the Southeast
+//! Asian scripts), `bigrams` indexes overlapping character pairs of Han,
+//! kana and Hangul. The `whitespace` tokenizer refuses it. In a route, the
+//! route's `unspaced` applies to every branch (a
+//! `[chain.route.language.xx]` may set its own) and to the fallback unless
+//! the fallback names a plain chain (which keeps its own) or is an inline
+//! table that sets its own.
 //!
 //! In a route's `steps`, `stem` and `stop` without a `language` take each
 //! branch's language, and so does `lowercase` (which only changes behaviour
@@ -91,6 +105,7 @@ use super::drop_tokens::DropKind;
 use super::elision::ELISION_LANGUAGES;
 use super::stem::{stem_languages, StemGeneration};
 use super::stop_words::stop_languages;
+use super::unspaced::Unspaced;
 use super::word_lists;
 use crate::error::{Error, Result, MAX_LISTED_PROBLEMS};
 use crate::ids::ChainName;
@@ -310,6 +325,10 @@ impl StepSpec {
 pub struct Pipeline {
     /// The tokenizer.
     pub tokenizer: TokenizerKind,
+    /// How the tokenizer cuts scripts written without spaces (not written
+    /// to reports when it is the default, so their chains read as before).
+    #[serde(skip_serializing_if = "Unspaced::is_default")]
+    pub unspaced: Unspaced,
     /// The steps, applied in order.
     pub steps: Vec<StepSpec>,
 }
@@ -322,10 +341,20 @@ impl Pipeline {
             .any(|s| matches!(s, StepSpec::Hashtags { vocabulary, .. } if vocabulary.uses_corpus()))
     }
 
+    /// The tokenizer's label in traces: its name, with the `unspaced`
+    /// setting when it is not the default (`words(unspaced = dictionary)`).
+    pub fn tokenizer_label(&self) -> String {
+        match self.unspaced {
+            Unspaced::Characters => self.tokenizer.as_str().to_string(),
+            other => format!("{}(unspaced = {})", self.tokenizer.as_str(), other.as_str()),
+        }
+    }
+
     /// `words + lowercase`.
     fn standard() -> Pipeline {
         Pipeline {
             tokenizer: TokenizerKind::Words,
+            unspaced: Unspaced::Characters,
             steps: vec![StepSpec::Lowercase { language: None }],
         }
     }
@@ -625,6 +654,15 @@ pub fn parse_chains(text: &str, origin: &str, pool: &[ChainSpec]) -> Result<Vec<
         let c = chain.get_ref();
         let label = format!("chain {:?}", c.name.get_ref());
         let spec = if c.route.is_some() {
+            if let Some(t) = &c.unspaced {
+                issues.push(
+                    t.span(),
+                    format!(
+                        "{label}: a routed chain sets unspaced inside [chain.route] (for every \
+                         branch) or [chain.route.language.xx]"
+                    ),
+                );
+            }
             if let Some(t) = &c.tokenizer {
                 issues.push(
                     t.span(),
@@ -644,7 +682,13 @@ pub fn parse_chains(text: &str, origin: &str, pool: &[ChainSpec]) -> Result<Vec<
             None
         } else {
             let steps = typed_steps(&mut issues, &label, c.steps.as_deref().unwrap_or_default());
-            let pipeline = check_pipeline(&mut issues, &label, c.tokenizer.as_ref(), &steps, None);
+            let pipeline = check_pipeline(
+                &mut issues,
+                &label,
+                (c.tokenizer.as_ref(), c.unspaced.as_ref()),
+                &steps,
+                None,
+            );
             plain.insert(c.name.get_ref().clone(), pipeline.clone());
             Some(ChainSpec {
                 name: ChainName::from(c.name.get_ref().as_str()),
@@ -693,6 +737,7 @@ struct RawChain {
     name: Spanned<String>,
     description: Option<String>,
     tokenizer: Option<Spanned<TokenizerKind>>,
+    unspaced: Option<Spanned<Unspaced>>,
     steps: Option<Vec<Spanned<toml::Value>>>,
     route: Option<Spanned<RawRoute>>,
 }
@@ -712,6 +757,7 @@ struct RawRoute {
     #[serde(default)]
     fallback_posts: FallbackPosts,
     tokenizer: Option<Spanned<TokenizerKind>>,
+    unspaced: Option<Spanned<Unspaced>>,
     steps: Option<Vec<Spanned<toml::Value>>>,
     fallback: Option<Spanned<toml::Value>>,
     #[serde(default)]
@@ -722,6 +768,7 @@ struct RawRoute {
 #[serde(deny_unknown_fields)]
 struct RawPipeline {
     tokenizer: Option<Spanned<TokenizerKind>>,
+    unspaced: Option<Spanned<Unspaced>>,
     steps: Option<Vec<Spanned<toml::Value>>>,
 }
 
@@ -830,11 +877,12 @@ pub(crate) const FOLD_BEFORE_STEM_OK: &[&str] = &["de", "en", "nl", "ru"];
 fn check_pipeline(
     issues: &mut Issues<'_>,
     label: &str,
-    tokenizer: Option<&Spanned<TokenizerKind>>,
+    (tokenizer, unspaced): TokenizerSettings<'_>,
     steps: &[Spanned<StepSpec>],
     branch: Option<LangCode>,
 ) -> Pipeline {
     let kind = tokenizer.map_or(TokenizerKind::Words, |t| *t.get_ref());
+    let unspaced = check_unspaced(issues, label, kind, unspaced);
     let in_branch = branch.map_or(String::new(), |l| {
         format!(" (give {l} its own steps in [chain.route.language.{l}])")
     });
@@ -1036,7 +1084,34 @@ fn check_pipeline(
         }
         resolved.push(step);
     }
-    Pipeline { tokenizer: kind, steps: resolved }
+    Pipeline { tokenizer: kind, unspaced, steps: resolved }
+}
+
+/// A pipeline's tokenizer and `unspaced` setting, as written (with spans).
+type TokenizerSettings<'a> = (Option<&'a Spanned<TokenizerKind>>, Option<&'a Spanned<Unspaced>>);
+
+/// The `unspaced` setting of a pipeline: only the `words` and `posts`
+/// tokenizers segment words, so `whitespace` refuses any but the default.
+fn check_unspaced(
+    issues: &mut Issues<'_>,
+    label: &str,
+    kind: TokenizerKind,
+    unspaced: Option<&Spanned<Unspaced>>,
+) -> Unspaced {
+    let Some(setting) = unspaced else { return Unspaced::Characters };
+    let value = *setting.get_ref();
+    if kind == TokenizerKind::Whitespace && value != Unspaced::Characters {
+        issues.push(
+            setting.span(),
+            format!(
+                "{label}: unspaced = \"{}\" needs tokenizer = \"words\" or \"posts\" (the \
+                 whitespace tokenizer does not segment words)",
+                value.as_str()
+            ),
+        );
+        return Unspaced::Characters;
+    }
+    value
 }
 
 /// The default steps of a route's branches: lowercase, then stem.
@@ -1101,7 +1176,7 @@ fn check_route(
             Some(code) if languages.contains(&code) => {
                 let p = pipeline.get_ref();
                 let steps = p.steps.as_ref().map(|s| typed_steps(issues, label, s));
-                overrides.insert(code, (p.tokenizer.as_ref(), steps));
+                overrides.insert(code, (p.tokenizer.as_ref(), p.unspaced.as_ref(), steps));
             }
             _ => issues.push(
                 pipeline.span(),
@@ -1123,18 +1198,23 @@ fn check_route(
     };
     let mut branches = Vec::with_capacity(languages.len());
     for &language in &languages {
-        let (tokenizer, steps) = match overrides.get(&language) {
-            Some((tokenizer, steps)) => {
-                (tokenizer.or(r.tokenizer.as_ref()), steps.as_deref().unwrap_or(&template_steps))
-            }
-            None => (r.tokenizer.as_ref(), template_steps.as_slice()),
+        let (tokenizer, unspaced, steps) = match overrides.get(&language) {
+            Some((tokenizer, unspaced, steps)) => (
+                tokenizer.or(r.tokenizer.as_ref()),
+                unspaced.or(r.unspaced.as_ref()),
+                steps.as_deref().unwrap_or(&template_steps),
+            ),
+            None => (r.tokenizer.as_ref(), r.unspaced.as_ref(), template_steps.as_slice()),
         };
-        let pipeline = check_pipeline(issues, label, tokenizer, steps, Some(language));
+        let pipeline = check_pipeline(issues, label, (tokenizer, unspaced), steps, Some(language));
         branches.push(Branch { language, pipeline });
     }
 
     let fallback = match &r.fallback {
-        None => Pipeline::standard(),
+        None => Pipeline {
+            unspaced: r.unspaced.as_ref().map_or(Unspaced::Characters, |u| *u.get_ref()),
+            ..Pipeline::standard()
+        },
         Some(value) => match value.get_ref() {
             toml::Value::String(name) => {
                 let found = plain.get(name).cloned().or_else(|| {
@@ -1173,7 +1253,9 @@ fn check_route(
                         let steps: Vec<Spanned<StepSpec>> =
                             p.steps.into_iter().map(|s| Spanned::new(value.span(), s)).collect();
                         let tokenizer = p.tokenizer.map(|t| Spanned::new(value.span(), t));
-                        check_pipeline(issues, label, tokenizer.as_ref(), &steps, None)
+                        let own = p.unspaced.map(|u| Spanned::new(value.span(), u));
+                        let unspaced = own.as_ref().or(r.unspaced.as_ref());
+                        check_pipeline(issues, label, (tokenizer.as_ref(), unspaced), &steps, None)
                     }
                     Err(e) => {
                         issues.push(
@@ -1235,14 +1317,20 @@ fn check_route(
     }
 }
 
-/// A per-language override: its tokenizer and steps, when given.
-type Override<'a> = (Option<&'a Spanned<TokenizerKind>>, Option<Vec<Spanned<StepSpec>>>);
+/// A per-language override: its tokenizer, `unspaced` setting and steps,
+/// when given.
+type Override<'a> = (
+    Option<&'a Spanned<TokenizerKind>>,
+    Option<&'a Spanned<Unspaced>>,
+    Option<Vec<Spanned<StepSpec>>>,
+);
 
 /// An inline fallback table (its values carry no spans of their own).
 #[derive(Deserialize)]
 #[serde(deny_unknown_fields)]
 struct RawPipelineOwned {
     tokenizer: Option<TokenizerKind>,
+    unspaced: Option<Unspaced>,
     #[serde(default)]
     steps: Vec<StepSpec>,
 }
@@ -1570,6 +1658,66 @@ mod tests {
         );
         let e = err("[[chain]]\nname = \"r\"\n[chain.route]\nlanguages = [\"en\"]\nfallback = { steps = [{ step = \"stem\" }] }\n");
         assert!(e.contains("my.toml:5: chain \"r\": stem needs a language"), "{e}");
+    }
+
+    /// `unspaced` beside `tokenizer` in plain chains, route-wide, per
+    /// branch and in an inline fallback; a named fallback keeps its own.
+    #[test]
+    fn unspaced_settings_and_where_they_apply() {
+        let text = "[[chain]]\nname = \"zh\"\nunspaced = \"bigrams\"\n\n\
+                    [[chain]]\nname = \"r\"\n[chain.route]\nlanguages = [\"en\", \"de\"]\n\
+                    unspaced = \"dictionary\"\n[chain.route.language.de]\nunspaced = \"model\"\n\n\
+                    [[chain]]\nname = \"n\"\n[chain.route]\nlanguages = [\"en\"]\n\
+                    unspaced = \"model\"\nfallback = \"zh\"\n\n\
+                    [[chain]]\nname = \"i\"\n[chain.route]\nlanguages = [\"en\"]\n\
+                    unspaced = \"model\"\nfallback = { unspaced = \"characters\" }\n";
+        let chains = parse_chains(text, "u.toml", &[]).expect("valid");
+        let settings = |c: &ChainSpec| c.pipelines().map(|p| p.unspaced).collect::<Vec<_>>();
+        assert_eq!(settings(&chains[0]), [Unspaced::Bigrams]);
+        assert_eq!(
+            settings(&chains[1]),
+            [Unspaced::Dictionary, Unspaced::Model, Unspaced::Dictionary],
+            "en from the route, de its own, the default fallback from the route"
+        );
+        assert_eq!(settings(&chains[2]), [Unspaced::Model, Unspaced::Bigrams]);
+        assert_eq!(settings(&chains[3]), [Unspaced::Model, Unspaced::Characters]);
+        // Reports show the setting only where it is not the default.
+        let json = serde_json::to_value(&chains[0]).expect("serialize");
+        assert_eq!(json["unspaced"], "bigrams");
+        let builtin = serde_json::to_value(&builtin_chains(en()).expect("parse")[0]).expect("ok");
+        assert!(builtin.get("unspaced").is_none(), "{builtin}");
+        // The tokenizer's label in traces says so too.
+        assert_eq!(
+            chains[0].pipelines().next().expect("one").tokenizer_label(),
+            "words(unspaced = bigrams)"
+        );
+    }
+
+    #[test]
+    fn unspaced_errors_name_the_line_and_the_accepted_values() {
+        let e = err("[[chain]]\nname = \"a\"\nunspaced = \"dict\"\n");
+        assert_eq!(
+            e,
+            "my.toml:3: unknown variant `dict`, expected one of `characters`, `dictionary`, \
+             `model`, `bigrams`"
+        );
+        let e =
+            err("[[chain]]\nname = \"a\"\ntokenizer = \"whitespace\"\nunspaced = \"bigrams\"\n");
+        assert_eq!(
+            e,
+            "my.toml:4: chain \"a\": unspaced = \"bigrams\" needs tokenizer = \"words\" or \
+             \"posts\" (the whitespace tokenizer does not segment words)"
+        );
+        let e = err(
+            "[[chain]]\nname = \"r\"\nunspaced = \"model\"\n[chain.route]\nlanguages = [\"en\"]\n",
+        );
+        assert!(
+            e.starts_with("my.toml:3: chain \"r\": a routed chain sets unspaced inside"),
+            "{e}"
+        );
+        let e = err("[[chain]]\nname = \"r\"\n[chain.route]\nlanguages = [\"en\"]\n\
+                     [chain.route.language.en]\nunspaced = \"pairs\"\n");
+        assert!(e.starts_with("my.toml:6: unknown variant `pairs`"), "{e}");
     }
 
     #[test]

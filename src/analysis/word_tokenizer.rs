@@ -21,16 +21,26 @@ use tantivy::tokenizer::{Token, TokenStream, Tokenizer};
 use unicode_segmentation::{UWordBoundIndices, UnicodeSegmentation};
 
 use super::token_shape::starts_emoji;
+use super::unspaced::{Segments, Unspaced};
 
-/// Tokenizer settings for `words` (no options).
+/// Tokenizer settings for `words`: how runs of scripts written without
+/// spaces are cut ([`Unspaced`]; the default keeps UAX #29 alone).
 #[derive(Clone, Default, Debug)]
 pub struct WordTokenizer {
+    unspaced: Unspaced,
     token: Token,
+}
+
+impl WordTokenizer {
+    /// The tokenizer with the given [`Unspaced`] setting.
+    pub fn new(unspaced: Unspaced) -> WordTokenizer {
+        WordTokenizer { unspaced, token: Token::default() }
+    }
 }
 
 /// The token stream of [`WordTokenizer`].
 pub struct WordTokenStream<'a> {
-    segments: WordSegments<'a>,
+    segments: Segments<'a>,
     token: &'a mut Token,
 }
 
@@ -39,7 +49,10 @@ impl Tokenizer for WordTokenizer {
 
     fn token_stream<'a>(&'a mut self, text: &'a str) -> WordTokenStream<'a> {
         self.token.reset();
-        WordTokenStream { segments: WordSegments::new(text, false), token: &mut self.token }
+        WordTokenStream {
+            segments: Segments::new(text, false, self.unspaced),
+            token: &mut self.token,
+        }
     }
 }
 

@@ -18,7 +18,8 @@ use super::common::{check_out_dir, resolve_data_dir, DEFAULT_TOP, DEMO_CORPUS};
 #[derive(Debug, Args)]
 pub struct VetArgs {
     /// Directory of open data: ud/LANG.lemmas.tsv, ud/LANG.sentences.tsv,
-    /// ud_pud/LANG.sentences.tsv, hashtags/NAME.tsv [default: ../shared/data
+    /// ud_pud/LANG.sentences.tsv, hashtags/NAME.tsv, ud_nospace/LANG.words.tsv
+    /// [default: ../shared/data
     /// when it exists].
     #[arg(long, value_name = "DIR")]
     data: Option<PathBuf>,
@@ -31,8 +32,8 @@ pub struct VetArgs {
     /// A TOML file of chain definitions.
     #[arg(long, value_name = "FILE")]
     chain_file: Option<PathBuf>,
-    /// Comma-separated sections: conflation, routing, segmentation.
-    #[arg(long, value_name = "LIST", default_value = "conflation,routing,segmentation")]
+    /// Comma-separated sections: conflation, routing, segmentation, unspaced.
+    #[arg(long, value_name = "LIST", default_value = "conflation,routing,segmentation,unspaced")]
     sections: String,
     /// Only the data sets with these names or language codes
     /// (comma-separated, e.g. `de,it-pud`). Default: all.

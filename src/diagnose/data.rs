@@ -11,6 +11,7 @@
 //! DATA/ud/NAME.sentences.tsv    sent_id<TAB>text
 //! DATA/ud_pud/NAME.sentences.tsv
 //! DATA/hashtags/NAME.tsv        hashtag<TAB>gold[<TAB>alternatives][<TAB>match]
+//! DATA/ud_nospace/NAME.words.tsv  sent_id<TAB>text<TAB>gold words joined by single spaces
 //! ```
 //!
 //! A file's language is the part of NAME before the first `-`, an ISO 639-1
@@ -33,6 +34,9 @@ pub const UD_DIR: &str = "ud";
 pub const PUD_DIR: &str = "ud_pud";
 /// Sub-directory of the hashtag gold sets.
 pub const HASHTAG_DIR: &str = "hashtags";
+/// Sub-directory of the gold word segmentations of scripts written without
+/// spaces.
+pub const NOSPACE_DIR: &str = "ud_nospace";
 
 /// Values of a gold set's optional fourth column, which says how the gold
 /// relates to the tag (not an alternative segmentation).
@@ -60,12 +64,17 @@ pub struct DataSets {
     pub sentence_sets: Vec<DataFile>,
     /// `hashtags/NAME.tsv`.
     pub gold_sets: Vec<DataFile>,
+    /// `ud_nospace/NAME.words.tsv`.
+    pub word_sets: Vec<DataFile>,
 }
 
 impl DataSets {
     /// True when no data file at all was found.
     pub fn is_empty(&self) -> bool {
-        self.lemma_lists.is_empty() && self.sentence_sets.is_empty() && self.gold_sets.is_empty()
+        self.lemma_lists.is_empty()
+            && self.sentence_sets.is_empty()
+            && self.gold_sets.is_empty()
+            && self.word_sets.is_empty()
     }
 }
 
@@ -87,6 +96,7 @@ pub fn discover(data: &Path) -> Result<DataSets> {
         lemma_lists: files_with_suffix(&ud, UD_DIR, ".lemmas.tsv", true)?,
         sentence_sets,
         gold_sets: files_with_suffix(&data.join(HASHTAG_DIR), HASHTAG_DIR, ".tsv", false)?,
+        word_sets: files_with_suffix(&data.join(NOSPACE_DIR), NOSPACE_DIR, ".words.tsv", true)?,
     })
 }
 
@@ -214,6 +224,48 @@ pub fn read_sentences(path: &Path) -> Result<Vec<Sentence>> {
     problems.finish(out)
 }
 
+/// One sentence with its gold word segmentation.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct GoldSentence {
+    /// Line in the file.
+    pub line: u64,
+    /// Its id in the file.
+    pub id: String,
+    /// Its text.
+    pub text: String,
+    /// The gold words, in order.
+    pub words: Vec<String>,
+}
+
+/// Read a `sent_id<TAB>text<TAB>words` file, the gold words joined by
+/// single spaces. A line without the three columns, with an empty text or
+/// without words is an error.
+pub fn read_word_gold(path: &Path) -> Result<Vec<GoldSentence>> {
+    let text = read_text(path)?;
+    let mut problems = Problems::new(path);
+    let mut out = Vec::new();
+    for (line, row) in numbered_lines(&text) {
+        let mut fields = row.split('\t');
+        match (fields.next(), fields.next(), fields.next(), fields.next()) {
+            (Some(id), Some(sentence), Some(words), None)
+                if !sentence.trim().is_empty() && !words.trim().is_empty() =>
+            {
+                out.push(GoldSentence {
+                    line,
+                    id: id.to_string(),
+                    text: sentence.to_string(),
+                    words: words.split(' ').filter(|w| !w.is_empty()).map(String::from).collect(),
+                })
+            }
+            _ => problems.push(
+                line,
+                format!("expected sent_id<TAB>text<TAB>gold words joined by spaces, found {row:?}"),
+            ),
+        }
+    }
+    problems.finish(out)
+}
+
 /// One row of a hashtag gold set.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct GoldTag {
@@ -324,6 +376,11 @@ mod tests {
         let list = read_lemmas(&path).expect("valid list");
         assert_eq!(list.rows, [("Häuser".to_string(), "Haus".to_string())]);
         assert_eq!(list.without_lemma, 1);
+        let (_d, path) = temp("w.tsv", "s1\t東京\t東 京\ns2\t東京\n");
+        let err = read_word_gold(&path).expect_err("one bad line").to_string();
+        assert!(
+            err.starts_with(&format!("{}:2: expected sent_id<TAB>text<TAB>gold", path.display()))
+        );
         let (_d, path) = temp("s.tsv", "s1\tHallo Welt\ns2 no tab\n");
         let err = read_sentences(&path).expect_err("one bad line").to_string();
         assert!(err.starts_with(&format!("{}:2: expected sent_id<TAB>text", path.display())));

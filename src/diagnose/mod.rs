@@ -13,7 +13,10 @@
 //! - `routing`: routing accuracy by length ([`routing`]), per sentence set
 //!   and routed chain;
 //! - `segmentation`: hashtag segmentation accuracy ([`segmentation`]), per
-//!   gold set, chain with a `hashtags` step, and word-frequency source.
+//!   gold set, chain with a `hashtags` step, and word-frequency source;
+//! - `unspaced`: word segmentation of Thai, Chinese and Japanese
+//!   ([`unspaced`]), per gold set and `unspaced` setting of the tokenizer
+//!   (every setting, with the chains that use it).
 //!
 //! ```no_run
 //! use postassay::analysis::builtin_chains;
@@ -39,6 +42,7 @@ pub mod data;
 pub mod render;
 pub mod routing;
 pub mod segmentation;
+pub mod unspaced;
 
 use std::path::PathBuf;
 use std::sync::Arc;
@@ -48,7 +52,7 @@ use serde::{Deserialize, Serialize};
 use crate::analysis::hashtag::WordFreqs;
 use crate::analysis::{
     build_pipeline, builtin_chains, tag_table, word_lists, AnalysisContext, Analyzer, ChainBody,
-    ChainSpec, Pipeline, StepSpec, TagVocabulary,
+    ChainSpec, Pipeline, StepSpec, TagVocabulary, TokenizerKind, Unspaced,
 };
 use crate::error::{Error, Result};
 use crate::ids::ChainName;
@@ -59,6 +63,7 @@ use conflation::{ConflationFigures, WordGroups};
 use data::DataSets;
 use routing::RoutingFigures;
 use segmentation::SegmentationFigures;
+use unspaced::WordFigures;
 
 /// Version of the `diagnostics.json` layout.
 pub const SCHEMA_VERSION: u32 = 1;
@@ -72,25 +77,34 @@ pub struct Sections {
     pub routing: bool,
     /// Hashtag segmentation.
     pub segmentation: bool,
+    /// Word segmentation of scripts written without spaces.
+    #[serde(default)]
+    pub unspaced: bool,
 }
 
 /// Section names as given on the command line, in report order.
-pub const SECTION_NAMES: [&str; 3] = ["conflation", "routing", "segmentation"];
+pub const SECTION_NAMES: [&str; 4] = ["conflation", "routing", "segmentation", "unspaced"];
 
 impl Sections {
     /// Every section.
     pub fn all() -> Sections {
-        Sections { conflation: true, routing: true, segmentation: true }
+        Sections { conflation: true, routing: true, segmentation: true, unspaced: true }
+    }
+
+    /// No section.
+    fn none() -> Sections {
+        Sections { conflation: false, routing: false, segmentation: false, unspaced: false }
     }
 
     /// Parse a comma-separated list of [`SECTION_NAMES`].
     pub fn parse(list: &str) -> Result<Sections> {
-        let mut s = Sections { conflation: false, routing: false, segmentation: false };
+        let mut s = Sections::none();
         for name in list.split(',').map(str::trim).filter(|n| !n.is_empty()) {
             match name {
                 "conflation" => s.conflation = true,
                 "routing" => s.routing = true,
                 "segmentation" => s.segmentation = true,
+                "unspaced" => s.unspaced = true,
                 other => {
                     return Err(Error::usage(format!(
                         "--sections: unknown section {other:?}; accepted: {}",
@@ -99,7 +113,7 @@ impl Sections {
                 }
             }
         }
-        if s == (Sections { conflation: false, routing: false, segmentation: false }) {
+        if s == Sections::none() {
             return Err(Error::usage(format!(
                 "--sections: no section named; accepted: {}",
                 SECTION_NAMES.join(", ")
@@ -257,6 +271,21 @@ pub struct SegmentationResult {
     pub figures: SegmentationFigures,
 }
 
+/// One `unspaced` setting on one gold word segmentation.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct UnspacedResult {
+    /// The gold set's name (`th`, `zh`, `ja`).
+    pub set: String,
+    /// Its language.
+    pub language: LangCode,
+    /// The setting of the `words` tokenizer.
+    pub setting: Unspaced,
+    /// The chains under test whose `words` or `posts` tokenizer uses it.
+    pub chains: Vec<ChainName>,
+    /// The figures.
+    pub figures: WordFigures,
+}
+
 /// A whole diagnostics report (`diagnostics.json` is this, serialised).
 #[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct Diagnostics {
@@ -280,6 +309,9 @@ pub struct Diagnostics {
     pub routing: Vec<RoutingResult>,
     /// Segmentation results: by chain, then gold set, then source.
     pub segmentation: Vec<SegmentationResult>,
+    /// Word segmentation results: by gold set, then setting.
+    #[serde(default)]
+    pub unspaced: Vec<UnspacedResult>,
     /// What could not be measured, and why.
     pub notes: Vec<String>,
 }
@@ -310,6 +342,7 @@ pub fn run(plan: &DiagnosePlan, progress: &mut dyn FnMut(&str)) -> Result<Diagno
         conflation: Vec::new(),
         routing: Vec::new(),
         segmentation: Vec::new(),
+        unspaced: Vec::new(),
         notes: Vec::new(),
     };
 
@@ -363,16 +396,30 @@ pub fn run(plan: &DiagnosePlan, progress: &mut dyn FnMut(&str)) -> Result<Diagno
                 segmentation_section(plan, &tagged, &sets, &mut inputs, &mut notes, progress)?;
         }
     }
+    if plan.sections.unspaced {
+        if sets.word_sets.is_empty() {
+            notes.push(format!(
+                "unspaced: no gold word segmentations ({}/{}/LANG.words.tsv)",
+                plan.data.display(),
+                data::NOSPACE_DIR
+            ));
+        } else {
+            wanted += 1;
+            out.unspaced = unspaced_section(plan, &sets, &mut inputs, progress)?;
+        }
+    }
     if wanted == 0 {
         let mut message = format!(
             "nothing to diagnose in {}: it needs {}/LANG.lemmas.tsv (conflation), \
-             {}/LANG.sentences.tsv or {}/LANG.sentences.tsv (routing, with a routed chain) \
-             and/or {}/NAME.tsv (segmentation, with a chain that has a hashtags step)",
+             {}/LANG.sentences.tsv or {}/LANG.sentences.tsv (routing, with a routed chain), \
+             {}/NAME.tsv (segmentation, with a chain that has a hashtags step) and/or \
+             {}/LANG.words.tsv (unspaced)",
             plan.data.display(),
             data::UD_DIR,
             data::UD_DIR,
             data::PUD_DIR,
-            data::HASHTAG_DIR
+            data::HASHTAG_DIR,
+            data::NOSPACE_DIR
         );
         for n in &notes {
             message.push_str(&format!("\n  {n}"));
@@ -396,29 +443,24 @@ fn filter_sets(
     let keep = |f: &data::DataFile| {
         wanted.iter().any(|w| *w == f.name || f.language.is_some_and(|l| l.as_str() == w))
     };
-    if sets.lemma_lists.is_empty() && sets.sentence_sets.is_empty() {
+    let language_sets =
+        || sets.lemma_lists.iter().chain(&sets.sentence_sets).chain(&sets.word_sets);
+    if language_sets().next().is_none() {
         return Err(Error::usage(format!(
             "--langs: no language data in {0}: expected {0}/{1}/LANG.lemmas.tsv, \
-             {0}/{1}/LANG.sentences.tsv or {0}/{2}/LANG.sentences.tsv (LANG an ISO 639-1 \
-             code, optionally followed by -NAME)",
+             {0}/{1}/LANG.sentences.tsv, {0}/{2}/LANG.sentences.tsv or \
+             {0}/{3}/LANG.words.tsv (LANG an ISO 639-1 code, optionally followed by -NAME)",
             dir.display(),
             data::UD_DIR,
-            data::PUD_DIR
+            data::PUD_DIR,
+            data::NOSPACE_DIR
         )));
     }
     for w in wanted {
-        let any = sets
-            .lemma_lists
-            .iter()
-            .chain(&sets.sentence_sets)
-            .any(|f| *w == f.name || f.language.is_some_and(|l| l.as_str() == w));
+        let any =
+            language_sets().any(|f| *w == f.name || f.language.is_some_and(|l| l.as_str() == w));
         if !any {
-            let mut names: Vec<&str> = sets
-                .lemma_lists
-                .iter()
-                .chain(&sets.sentence_sets)
-                .map(|f| f.name.as_str())
-                .collect();
+            let mut names: Vec<&str> = language_sets().map(|f| f.name.as_str()).collect();
             names.sort_unstable();
             names.dedup();
             return Err(Error::usage(format!(
@@ -431,6 +473,7 @@ fn filter_sets(
         lemma_lists: sets.lemma_lists.into_iter().filter(keep).collect(),
         sentence_sets: sets.sentence_sets.into_iter().filter(keep).collect(),
         gold_sets: sets.gold_sets,
+        word_sets: sets.word_sets.into_iter().filter(keep).collect(),
     })
 }
 
@@ -587,7 +630,7 @@ fn hashtag_prefix(spec: &ChainSpec) -> Option<(Pipeline, TagVocabulary)> {
             Some(StepSpec::Hashtags { vocabulary, .. }) => *vocabulary,
             _ => return None,
         };
-        Some((Pipeline { tokenizer: p.tokenizer, steps: p.steps.get(..=at)?.to_vec() }, vocabulary))
+        Some((Pipeline { steps: p.steps.get(..=at)?.to_vec(), ..p.clone() }, vocabulary))
     };
     if let Some(route) = spec.route() {
         let english = route.branches.iter().find(|b| b.language.as_str() == "en");
@@ -732,6 +775,55 @@ fn segmentation_section(
     Ok(out)
 }
 
+/// The chains under test whose `words` or `posts` tokenizer (in any field)
+/// cuts scripts without spaces with `setting`.
+fn chains_with(chains: &[ChainUnderTest], setting: Unspaced) -> Vec<ChainName> {
+    chains
+        .iter()
+        .filter(|c| {
+            c.spec()
+                .pipelines()
+                .any(|p| p.tokenizer != TokenizerKind::Whitespace && p.unspaced == setting)
+        })
+        .map(|c| c.name().clone())
+        .collect()
+}
+
+fn unspaced_section(
+    plan: &DiagnosePlan,
+    sets: &DataSets,
+    inputs: &mut Vec<InputFile>,
+    progress: &mut dyn FnMut(&str),
+) -> Result<Vec<UnspacedResult>> {
+    let mut golds = Vec::with_capacity(sets.word_sets.len());
+    for file in &sets.word_sets {
+        let gold = data::read_word_gold(&file.path)?;
+        inputs.push(input_file(&format!("words:{}", file.name), &file.path)?);
+        golds.push((file, gold));
+    }
+    let mut out = Vec::new();
+    for (file, gold) in &golds {
+        let Some(language) = file.language else { continue };
+        for setting in Unspaced::ALL {
+            progress(&format!(
+                "unspaced: {} with {} ({} sentences)",
+                file.name,
+                setting.as_str(),
+                gold.len()
+            ));
+            let mut analyzer = unspaced::tokenizer(setting);
+            out.push(UnspacedResult {
+                set: file.name.clone(),
+                language,
+                setting,
+                chains: chains_with(&plan.chains, setting),
+                figures: unspaced::assess(&mut analyzer, gold, plan.top),
+            });
+        }
+    }
+    Ok(out)
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -743,9 +835,15 @@ mod tests {
     #[test]
     fn sections_parse_and_reject_unknown_names() {
         let s = Sections::parse("routing, conflation").expect("known names");
-        assert_eq!(s, Sections { conflation: true, routing: true, segmentation: false });
+        assert_eq!(
+            s,
+            Sections { conflation: true, routing: true, segmentation: false, unspaced: false }
+        );
         let err = Sections::parse("routing,stems").expect_err("unknown").to_string();
-        assert!(err.contains("\"stems\"") && err.contains("conflation, routing, segmentation"));
+        assert!(
+            err.contains("\"stems\"")
+                && err.contains("conflation, routing, segmentation, unspaced")
+        );
         assert!(Sections::parse(" , ").is_err());
     }
 

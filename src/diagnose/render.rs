@@ -11,7 +11,8 @@
 //! concepts vastly outnumber pairs within), one decimal for percentages.
 //!
 //! The three main tables are built once as a [`Table`] of plain-text cells
-//! ([`conflation_table`], [`routing_table`], [`segmentation_table`]), so
+//! ([`conflation_table`], [`routing_table`], [`segmentation_table`],
+//! [`unspaced_table`]), so
 //! `diagnostics.md` and the Diagnostics section of `postassay run --vet`'s
 //! `report.md` and `report.html` show the same figures in the same words.
 
@@ -20,7 +21,7 @@ use std::path::{Path, PathBuf};
 
 use super::conflation::ConflationFigures;
 use super::routing::{buckets, FALLBACK_LABEL};
-use super::{ConflationResult, Diagnostics, RoutingResult, SegmentationResult};
+use super::{ConflationResult, Diagnostics, RoutingResult, SegmentationResult, UnspacedResult};
 use crate::error::{Error, Result};
 use crate::ids::ChainName;
 use crate::input::format_shortest;
@@ -38,6 +39,8 @@ pub const ROUTING_CSV: &str = "diagnostics-routing.csv";
 pub const CONFUSION_CSV: &str = "diagnostics-confusion.csv";
 /// Segmentation table.
 pub const SEGMENTATION_CSV: &str = "diagnostics-segmentation.csv";
+/// Word segmentation of scripts written without spaces.
+pub const UNSPACED_CSV: &str = "diagnostics-unspaced.csv";
 
 /// Every output file, rendered: `(file name, bytes)`.
 pub fn render_all(d: &Diagnostics) -> Result<Vec<(&'static str, Vec<u8>)>> {
@@ -48,6 +51,7 @@ pub fn render_all(d: &Diagnostics) -> Result<Vec<(&'static str, Vec<u8>)>> {
         (ROUTING_CSV, routing_csv(d)?.into_bytes()),
         (CONFUSION_CSV, confusion_csv(d)?.into_bytes()),
         (SEGMENTATION_CSV, segmentation_csv(d)?.into_bytes()),
+        (UNSPACED_CSV, unspaced_csv(d)?.into_bytes()),
     ])
 }
 
@@ -227,6 +231,53 @@ pub fn segmentation_csv(d: &Diagnostics) -> Result<String> {
                 &num(f.precision),
                 &num(f.recall),
                 &num(f.f1),
+            ])?;
+        }
+        Ok(())
+    })
+}
+
+/// `diagnostics-unspaced.csv`, one row per gold set and setting.
+pub fn unspaced_csv(d: &Diagnostics) -> Result<String> {
+    csv_text(|w| {
+        w.write_record([
+            "set",
+            "language",
+            "setting",
+            "chains",
+            "sentences",
+            "unaligned",
+            "tokens",
+            "predicted_boundaries",
+            "gold_boundaries",
+            "correct_boundaries",
+            "precision",
+            "recall",
+            "f1",
+            "gold_words",
+            "words_found",
+            "word_recall",
+        ])?;
+        for r in &d.unspaced {
+            let f = &r.figures;
+            let chains: Vec<&str> = r.chains.iter().map(ChainName::as_str).collect();
+            w.write_record([
+                r.set.as_str(),
+                r.language.as_str(),
+                r.setting.as_str(),
+                &chains.join(" "),
+                &f.sentences.to_string(),
+                &f.unaligned.to_string(),
+                &f.tokens.to_string(),
+                &f.predicted_boundaries.to_string(),
+                &f.gold_boundaries.to_string(),
+                &f.correct_boundaries.to_string(),
+                &num(f.precision),
+                &num(f.recall),
+                &num(f.f1),
+                &f.gold_words.to_string(),
+                &f.words_found.to_string(),
+                &num(f.word_recall),
             ])?;
         }
         Ok(())
@@ -431,6 +482,50 @@ pub fn segmentation_table(results: &[SegmentationResult]) -> Table {
     }
 }
 
+/// The word segmentation table: one row per gold set and `unspaced`
+/// setting, in the order of `results`.
+pub fn unspaced_table(results: &[UnspacedResult]) -> Table {
+    let header =
+        ["set", "unspaced", "chains", "sentences", "tokens", "P", "R", "F1", "words found"];
+    let rows = results
+        .iter()
+        .map(|r| {
+            let f = &r.figures;
+            let chains: Vec<&str> = r.chains.iter().map(ChainName::as_str).collect();
+            [
+                r.set.clone(),
+                r.setting.as_str().to_string(),
+                if chains.is_empty() { "–".to_string() } else { chains.join(", ") },
+                f.sentences.to_string(),
+                f.tokens.to_string(),
+                fixed(f.precision, 3),
+                fixed(f.recall, 3),
+                fixed(f.f1, 3),
+                percent(f.word_recall),
+            ]
+            .into_iter()
+            .map(Cell::text)
+            .collect()
+        })
+        .collect();
+    Table {
+        header: header.map(String::from).to_vec(),
+        numeric: header.iter().enumerate().map(|(i, _)| i >= 3).collect(),
+        rows,
+    }
+}
+
+/// What the word segmentation table shows, for every rendering.
+pub const UNSPACED_LEGEND: &str = "Gold word segmentations of Universal Dependencies \
+     treebanks (Thai PUD, Chinese GSD, Japanese GSD) through the `words` tokenizer with \
+     each `unspaced` setting. P, R, F1 = word-boundary precision, recall and F1 at the \
+     places between two non-space characters next to a letter, digit or mark; *words \
+     found* = share of gold words (with a letter or digit) that are a token of the same \
+     span. Treebank conventions differ (Japanese GSD splits inflections and auxiliaries), \
+     so compare settings within a set. `bigrams` emits a pair at every character, so its \
+     boundaries are those of single characters; its words found counts the pairs that are \
+     gold words.";
+
 /// `diagnostics.md`.
 pub fn markdown(d: &Diagnostics) -> String {
     let mut s = String::new();
@@ -449,6 +544,9 @@ pub fn markdown(d: &Diagnostics) -> String {
     }
     if d.sections.segmentation && !d.segmentation.is_empty() {
         segmentation_md(&mut s, d);
+    }
+    if d.sections.unspaced && !d.unspaced.is_empty() {
+        unspaced_md(&mut s, d);
     }
     if !d.notes.is_empty() {
         let _ = writeln!(s, "## Notes\n");
@@ -652,6 +750,35 @@ fn segmentation_md(s: &mut String, d: &Diagnostics) {
     s.push('\n');
 }
 
+fn unspaced_md(s: &mut String, d: &Diagnostics) {
+    let _ = writeln!(s, "## Scripts written without spaces\n");
+    let _ = writeln!(s, "{UNSPACED_LEGEND}\n");
+    s.push_str(&unspaced_table(&d.unspaced).markdown());
+    s.push('\n');
+    let misses: Vec<_> = d
+        .unspaced
+        .iter()
+        .filter(|r| r.setting != crate::analysis::Unspaced::Bigrams && !r.figures.misses.is_empty())
+        .collect();
+    if misses.is_empty() {
+        return;
+    }
+    let _ = writeln!(s, "### First sentences segmented otherwise than the gold\n");
+    for r in misses {
+        let _ = writeln!(s, "- {} · {}:", cell(&r.set), r.setting.as_str());
+        for m in &r.figures.misses {
+            let _ = writeln!(
+                s,
+                "  - {}: {} (gold: {})",
+                cell(&m.id),
+                cell(&m.predicted),
+                cell(&m.gold)
+            );
+        }
+    }
+    s.push('\n');
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -706,6 +833,7 @@ mod tests {
                 figures: tally(en, true, &[(10, Some(en)), (80, None)]),
             }],
             segmentation: Vec::new(),
+            unspaced: Vec::new(),
             notes: vec!["segmentation: none of the chains has a hashtags step".into()],
         }
     }

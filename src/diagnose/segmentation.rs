@@ -157,11 +157,14 @@ pub struct SegmentationFigures {
     pub errors: Vec<SegmentationError>,
 }
 
-/// Add up tag scores; `examples` are the wrong tags to list.
-pub fn total(scores: &[TagScore], errors: Vec<SegmentationError>) -> SegmentationFigures {
-    let sum = |f: fn(&TagScore) -> usize| scores.iter().map(f).sum::<usize>();
-    let exact = scores.iter().filter(|s| s.exact).count();
-    let (predicted, gold, correct) = (sum(|s| s.predicted), sum(|s| s.gold), sum(|s| s.correct));
+/// Micro-averaged precision (Σ correct / Σ predicted), recall (Σ correct /
+/// Σ gold) and F1 (their harmonic mean) of boundary counts; `None` where a
+/// denominator is 0.
+pub fn precision_recall_f1(
+    correct: usize,
+    predicted: usize,
+    gold: usize,
+) -> (Option<f64>, Option<f64>, Option<f64>) {
     let ratio = |n: usize, d: usize| (d > 0).then(|| n as f64 / d as f64);
     let (precision, recall) = (ratio(correct, predicted), ratio(correct, gold));
     let f1 = match (precision, recall) {
@@ -169,6 +172,16 @@ pub fn total(scores: &[TagScore], errors: Vec<SegmentationError>) -> Segmentatio
         (Some(_), Some(_)) => Some(0.0),
         _ => None,
     };
+    (precision, recall, f1)
+}
+
+/// Add up tag scores; `examples` are the wrong tags to list.
+pub fn total(scores: &[TagScore], errors: Vec<SegmentationError>) -> SegmentationFigures {
+    let sum = |f: fn(&TagScore) -> usize| scores.iter().map(f).sum::<usize>();
+    let exact = scores.iter().filter(|s| s.exact).count();
+    let (predicted, gold, correct) = (sum(|s| s.predicted), sum(|s| s.gold), sum(|s| s.correct));
+    let ratio = |n: usize, d: usize| (d > 0).then(|| n as f64 / d as f64);
+    let (precision, recall, f1) = precision_recall_f1(correct, predicted, gold);
     SegmentationFigures {
         tags: scores.len(),
         exact,

@@ -22,7 +22,8 @@ use std::fmt::Write;
 
 use crate::bench::compare::{BreakdownCell, ComparisonRow, MIN_BREAKDOWN_QUERIES};
 use crate::diagnose::render::{
-    conflation_table, routing_by_chain, routing_table, segmentation_table, Table,
+    conflation_table, routing_by_chain, routing_table, segmentation_table, unspaced_table, Table,
+    UNSPACED_LEGEND,
 };
 use crate::report::model::Report;
 use crate::report::svg::{self, esc, Bar, Estimate, Panel, Point, Series};
@@ -660,6 +661,14 @@ fn diagnostics(s: &mut String, r: &Report) {
              segmenter's word frequencies come from.</p>\n",
         );
         diagnostics_table(s, &segmentation_table(&d.segmentation));
+    }
+    if !d.unspaced.is_empty() {
+        let _ = writeln!(
+            s,
+            "<h3>Scripts written without spaces</h3>\n<p>{}</p>",
+            esc(&UNSPACED_LEGEND.replace(['`', '*'], ""))
+        );
+        diagnostics_table(s, &unspaced_table(&d.unspaced));
     }
     if !d.notes.is_empty() {
         s.push_str("<p>Notes:</p>\n<ul>\n");

@@ -6,7 +6,8 @@ use std::fmt::Write;
 
 use crate::bench::compare::{BreakdownCell, MIN_BREAKDOWN_QUERIES};
 use crate::diagnose::render::{
-    conflation_table, routing_by_chain, routing_table, segmentation_table,
+    conflation_table, routing_by_chain, routing_table, segmentation_table, unspaced_table,
+    UNSPACED_LEGEND,
 };
 use crate::report::model::Report;
 use crate::report::text::{
@@ -281,6 +282,11 @@ fn diagnostics(s: &mut String, r: &Report) {
              *frequencies* = where the segmenter's word frequencies come from.\n"
         );
         s.push_str(&segmentation_table(&d.segmentation).markdown());
+        s.push('\n');
+    }
+    if !d.unspaced.is_empty() {
+        let _ = writeln!(s, "### Scripts written without spaces\n\n{UNSPACED_LEGEND}\n");
+        s.push_str(&unspaced_table(&d.unspaced).markdown());
         s.push('\n');
     }
     if !d.notes.is_empty() {

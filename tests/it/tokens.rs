@@ -175,3 +175,47 @@ fn built_in_lists_split_tags_per_branch_language() {
     assert_eq!((field.as_str(), step.as_str()), ("text_other", "hashtags(lists:all)"));
     assert_eq!(tokens, ["buenosdías", "buenos", "días"]);
 }
+
+/// `chains/unspaced.toml`: the trace names the tokenizer's setting, and the
+/// Chinese of UD Chinese-GSD test-s2 (gold: 自從 2004 年 提出 了 …) comes
+/// out as its gold words with the dictionary, as overlapping pairs with
+/// `bigrams`, with byte offsets into the text.
+#[test]
+fn trace_shows_unspaced_words_and_pairs() {
+    let tokens = |chain: &str| {
+        let v = json(&[
+            "tokens",
+            "--chain-file",
+            "chains/unspaced.toml",
+            "--chain",
+            chain,
+            "--trace",
+            "--format",
+            "json",
+            "自從2004年提出了",
+        ]);
+        let first = &v[0]["stages"][0];
+        let spans: Vec<(String, u64, u64)> = first["tokens"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|t| {
+                let (from, to) =
+                    (t["offset_from"].as_u64().unwrap(), t["offset_to"].as_u64().unwrap());
+                (t["text"].as_str().unwrap().to_string(), from, to)
+            })
+            .collect();
+        (first["stage"].as_str().unwrap().to_string(), spans)
+    };
+    let (stage, words) = tokens("words_dictionary");
+    assert_eq!(stage, "words(unspaced = dictionary)");
+    let texts: Vec<&str> = words.iter().map(|(t, _, _)| t.as_str()).collect();
+    assert_eq!(texts, ["自從", "2004", "年", "提出", "了"]);
+    assert_eq!((words[0].1, words[0].2), (0, 6));
+    let (stage, pairs) = tokens("words_bigrams");
+    assert_eq!(stage, "words(unspaced = bigrams)");
+    let texts: Vec<&str> = pairs.iter().map(|(t, _, _)| t.as_str()).collect();
+    assert_eq!(texts, ["自從", "2004", "年提", "提出", "出了"]);
+    // Pairs overlap: 年提 starts where 年 does, 提出 one character later.
+    assert_eq!((pairs[2].1, pairs[3].1), (10, 13));
+}

@@ -307,7 +307,8 @@ fn langs_on_a_directory_without_language_data_says_what_it_expects() {
     assert!(
         stderr.contains(
             "--langs: no language data in data: expected data/ud/LANG.lemmas.tsv, \
-             data/ud/LANG.sentences.tsv or data/ud_pud/LANG.sentences.tsv"
+             data/ud/LANG.sentences.tsv, data/ud_pud/LANG.sentences.tsv or \
+             data/ud_nospace/LANG.words.tsv"
         ),
         "{stderr}"
     );
@@ -547,4 +548,76 @@ fn built_in_lists_are_sources_of_their_own() {
         "{}",
         texts(&res).1
     );
+}
+
+/// Word segmentation of Thai, Chinese and Japanese (`ud_nospace/`, UD
+/// Thai-PUD, Chinese-GSD and Japanese-GSD test sets, read in place) per
+/// `unspaced` setting: every sentence aligns with its gold words, and the
+/// floors are the figures measured with icu_segmenter 2.4 (README,
+/// Diagnostics), rounded down.
+#[test]
+fn unspaced_word_boundaries_on_the_shared_data() {
+    let Some(data) = shared_data().filter(|d| d.join("ud_nospace").is_dir()) else {
+        report_line("skipped: ../shared/data/ud_nospace (the shared open data) is not present");
+        return;
+    };
+    let tmp = tempfile::tempdir().expect("temp dir");
+    let out = tmp.path().join("out");
+    let res = postassay(
+        &root(),
+        &[
+            "vet",
+            "--quiet",
+            "--chain-file",
+            "chains/unspaced.toml",
+            "--chains",
+            "standard,words_dictionary,words_bigrams",
+            "--sections",
+            "unspaced",
+            "--data",
+            data.to_str().expect("UTF-8"),
+            "--out",
+            out.to_str().expect("UTF-8"),
+        ],
+    );
+    assert_eq!(res.status.code(), Some(0), "{}", texts(&res).1);
+    let table = rows(&out.join("diagnostics-unspaced.csv"));
+    assert_eq!(table.len(), 12, "three sets × four settings");
+    for row in &table {
+        report_line(&format!(
+            "{} {:>10}: P {:.3} R {:.3} F1 {:.3}, words found {:.3}",
+            row["set"],
+            row["setting"],
+            num(row, "precision"),
+            num(row, "recall"),
+            num(row, "f1"),
+            num(row, "word_recall")
+        ));
+    }
+    let get = |set: &str, setting: &str| find(&table, &[("set", set), ("setting", setting)]);
+    // Sentences per file (its line count) and none unaligned.
+    for (set, n) in [("th", "1000"), ("zh", "500"), ("ja", "543")] {
+        assert_eq!(
+            (
+                get(set, "characters")["sentences"].as_str(),
+                get(set, "characters")["unaligned"].as_str()
+            ),
+            (n, "0")
+        );
+    }
+    // The chains using each setting are named.
+    assert_eq!(get("zh", "dictionary")["chains"], "words_dictionary");
+    assert_eq!(get("zh", "characters")["chains"], "standard");
+    assert_eq!(get("zh", "model")["chains"], "");
+    // Measured floors.
+    assert!(num(get("th", "characters"), "f1") < 0.45);
+    assert!(num(get("th", "dictionary"), "f1") >= 0.86);
+    assert!(num(get("th", "model"), "f1") >= 0.91);
+    assert!(num(get("zh", "dictionary"), "f1") >= 0.90);
+    assert!(num(get("ja", "dictionary"), "f1") >= 0.89);
+    // Pairs find more Chinese gold words than single characters do.
+    assert!(num(get("zh", "bigrams"), "word_recall") >= 0.55);
+    assert!(num(get("zh", "characters"), "word_recall") < 0.48);
+    let md = std::fs::read_to_string(out.join("diagnostics.md")).expect("markdown written");
+    assert!(md.contains("## Scripts written without spaces"), "{md}");
 }
