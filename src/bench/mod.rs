@@ -31,8 +31,8 @@ use crate::ids::{ChainName, QueryId};
 use crate::index::ChainIndex;
 use crate::input::{self, Judgments, Post, Query, Run};
 use crate::report::model::{
-    ChainTiming, Cost, Counts, InputFile, PerQuery, QueryValues, Report, Settings, SystemInfo,
-    Timing, ToolInfo, SCHEMA_VERSION,
+    ChainTiming, Cost, Counts, Coverage, InputFile, PerQuery, QueryValues, Report, Settings,
+    SystemInfo, Timing, ToolInfo, SCHEMA_VERSION,
 };
 use crate::search;
 use crate::stats::StatSettings;
@@ -118,7 +118,7 @@ pub fn run(plan: &RunPlan, progress: &mut dyn FnMut(&str)) -> Result<BenchOutput
     let (judgments, mut warnings) = input::read_judgments(&plan.judgments)?;
     let queries = input::read_queries(&plan.queries)?;
     let posts = input::read_corpus(&plan.corpus)?;
-    eval::validate_settings(&judgments, &plan.options.eval)?;
+    check_settings(&plan.judgments, &judgments, &plan.options.eval)?;
     progress(&format!(
         "read {} posts, {} queries, {} judgments",
         posts.len(),
@@ -154,7 +154,11 @@ pub fn run(plan: &RunPlan, progress: &mut dyn FnMut(&str)) -> Result<BenchOutput
             query_ms_mean: mean_ms,
             query_ms_p95: p95_ms,
         });
-        infos.push(SystemInfo { name: analyzer.name().clone(), cost: Some(Cost::from(cost)) });
+        infos.push(SystemInfo {
+            name: analyzer.name().clone(),
+            cost: Some(Cost::from(cost)),
+            coverage: Coverage::default(),
+        });
         runs.push((analyzer.name().clone(), outcome.run));
     }
 
@@ -281,7 +285,7 @@ pub fn score(plan: &ScorePlan, progress: &mut dyn FnMut(&str)) -> Result<BenchOu
     for (name, path) in &plan.runs {
         runs.push((name.clone(), input::read_run(path)?));
     }
-    eval::validate_settings(&judgments, &plan.options.eval)?;
+    check_settings(&plan.judgments, &judgments, &plan.options.eval)?;
     let mut inputs = vec![hash_input("judgments", &plan.judgments)?];
     if let Some(q) = &plan.queries {
         inputs.push(hash_input("queries", q)?);
@@ -307,7 +311,10 @@ pub fn score(plan: &ScorePlan, progress: &mut dyn FnMut(&str)) -> Result<BenchOu
             ));
         }
     }
-    let infos = names.iter().map(|n| SystemInfo { name: n.clone(), cost: None }).collect();
+    let infos = names
+        .iter()
+        .map(|n| SystemInfo { name: n.clone(), cost: None, coverage: Coverage::default() })
+        .collect();
     let assembled = Assembly {
         command: "score",
         inputs,
@@ -326,6 +333,12 @@ pub fn score(plan: &ScorePlan, progress: &mut dyn FnMut(&str)) -> Result<BenchOu
     out.report.timing.total_seconds = started.elapsed().as_secs_f64();
     announce_warnings(&out.report, progress);
     Ok(out)
+}
+
+/// Check the evaluation settings against the judgments read from `path`
+/// ([`eval::validate_settings`]); a refusal names the file.
+fn check_settings(path: &Path, judgments: &Judgments, settings: &EvalSettings) -> Result<()> {
+    eval::validate_settings(judgments, settings).map_err(|e| Error::in_file(path, e.to_string()))
 }
 
 /// The evaluated queries that `queries` lacks, in the population's (byte)
@@ -396,6 +409,15 @@ struct Assembly<'a> {
 impl Assembly<'_> {
     fn finish(self, options: &EvalOptions) -> Result<BenchOutput> {
         let mut warnings = self.warnings;
+        let mut infos = self.infos;
+        // An evaluated query a system has no result for scores 0
+        // (metrics.md); say so per system, since a run file that answers 4 of
+        // 26 queries otherwise reads as a much worse system.
+        let kind = if self.command == "run" { "chain" } else { "run" };
+        for ((name, run), info) in self.runs.iter().zip(infos.iter_mut()) {
+            info.coverage = coverage(run, &self.population.evaluated);
+            warnings.extend(info.coverage.describe(kind, name.as_str()));
+        }
         let mut scores: Vec<(ChainName, SystemScores)> = Vec::new();
         for (name, run) in &self.runs {
             let s = eval::evaluate(
@@ -466,7 +488,7 @@ impl Assembly<'_> {
                 queries_skipped: self.population.skipped.len(),
                 judgments: self.judgments.len(),
             },
-            systems: self.infos,
+            systems: infos,
             summary: computed.summaries,
             per_query,
             comparisons: computed.comparisons,
@@ -478,6 +500,20 @@ impl Assembly<'_> {
             timing: Timing::default(),
         };
         Ok(BenchOutput { report, runs: self.runs })
+    }
+}
+
+/// Which of the `evaluated` queries `run` returned at least one post for.
+fn coverage(run: &Run, evaluated: &[QueryId]) -> Coverage {
+    let unanswered: Vec<QueryId> = evaluated
+        .iter()
+        .filter(|q| run.by_query.get(*q).is_none_or(Vec::is_empty))
+        .cloned()
+        .collect();
+    Coverage {
+        evaluated: evaluated.len(),
+        answered: evaluated.len() - unanswered.len(),
+        unanswered,
     }
 }
 

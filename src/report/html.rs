@@ -27,8 +27,9 @@ use crate::diagnose::render::{
 use crate::report::model::Report;
 use crate::report::svg::{self, esc, Bar, Estimate, Panel, Point, Series};
 use crate::report::text::{
-    breakdown_caveat, build_time, cost_table, fixed, headline, improves, interval, lower_is_better,
-    moved_tables, names_groups, p_equals, pvalue, reindex_case, sentence, signed, spans_html,
+    breakdown_caveat, build_time, cost_table, coverage_lines, fixed, headline, improves, interval,
+    lower_is_better, moved_tables, names_groups, p_equals, pvalue, reindex_case, sentence,
+    settings_sentence, signed, spans_html,
 };
 
 /// Marks the start of the Timing section, the only part of the page that
@@ -721,27 +722,14 @@ fn inputs(s: &mut String, r: &Report) {
     let st = &r.settings;
     let _ = writeln!(
         s,
-        "<section id=\"inputs\">\n<h2>Inputs and settings</h2>\n<p>{} {} (report layout {}), \
-         command <code>{}</code>. Metrics: {}. Relevant from grade {}; gain {}; highest grade {}; \
-         seed {}; {} sign assignments when over 16 queries; {} bootstrap resamples; α = {}{}.</p>",
-        esc(&r.tool.name),
-        esc(&r.tool.version),
-        r.schema_version,
-        esc(&r.command),
-        st.metrics
-            .iter()
-            .map(|m| format!("<code>{}</code>", esc(m)))
-            .collect::<Vec<_>>()
-            .join(", "),
-        st.relevant_from,
-        esc(&st.gain),
-        st.max_grade,
-        st.seed,
-        st.permutations,
-        st.bootstrap_resamples,
-        st.alpha,
-        st.depth.map(|d| format!("; {d} results kept per query")).unwrap_or_default()
+        "<section id=\"inputs\">\n<h2>Inputs and settings</h2>\n<p>{}</p>",
+        spans_html(&settings_sentence(r))
     );
+    s.push_str("<ul class=\"coverage\">\n");
+    for line in coverage_lines(r) {
+        let _ = writeln!(s, "<li>{}</li>", esc(&line));
+    }
+    s.push_str("</ul>\n");
     s.push_str(
         "<div class=\"scroll\"><table>\n<thead><tr><th scope=\"col\">role</th><th scope=\"col\">path</th>\
          <th scope=\"col\">SHA-256</th></tr></thead>\n<tbody>\n",

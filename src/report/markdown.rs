@@ -10,8 +10,9 @@ use crate::diagnose::render::{
 };
 use crate::report::model::Report;
 use crate::report::text::{
-    breakdown_caveat, build_time, cost_table, fixed, headline, interval, moved_tables,
-    names_groups, pvalue, reindex_case, sentence, signed, spans_markdown,
+    breakdown_caveat, build_time, cost_table, coverage_lines, fixed, headline, interval,
+    moved_tables, names_groups, pvalue, reindex_case, sentence, settings_sentence, signed,
+    spans_markdown,
 };
 
 /// Render the whole Markdown report.
@@ -52,8 +53,25 @@ pub fn render(r: &Report) -> String {
         }
         s.push('\n');
     }
+    inputs(&mut s, r);
     timing(&mut s, r, &headline);
     s
+}
+
+/// What the numbers rest on: the settings, every input file with its
+/// SHA-256, and how many evaluated queries each system answered.
+fn inputs(s: &mut String, r: &Report) {
+    let _ = writeln!(s, "## Inputs and settings\n");
+    let _ = writeln!(s, "{}\n", spans_markdown(&settings_sentence(r)));
+    for line in coverage_lines(r) {
+        let _ = writeln!(s, "- {line}");
+    }
+    let _ = writeln!(s, "\n| role | path | SHA-256 |\n|---|---|---|");
+    for i in &r.inputs {
+        let path = cell(&i.path).replace('`', "'");
+        let _ = writeln!(s, "| {} | `{path}` | `{}` |", cell(&i.role), i.sha256);
+    }
+    s.push('\n');
 }
 
 /// The reindex case (see [`crate::report::html::reindex_case`], shared with

@@ -127,6 +127,49 @@ pub struct SystemInfo {
     pub name: ChainName,
     /// Index cost of a chain (`run` only). Build time is under `timing`.
     pub cost: Option<Cost>,
+    /// How many evaluated queries the system returned results for; the
+    /// others score 0 on every metric.
+    #[serde(default)]
+    pub coverage: Coverage,
+}
+
+/// The evaluated queries a system answered (returned at least one post for).
+#[derive(Debug, Clone, Default, PartialEq, Eq, Serialize, Deserialize)]
+pub struct Coverage {
+    /// Evaluated queries.
+    pub evaluated: usize,
+    /// Evaluated queries with at least one result.
+    pub answered: usize,
+    /// Evaluated queries with no result, in byte order of their ids.
+    pub unanswered: Vec<QueryId>,
+}
+
+impl Coverage {
+    /// The first unanswered ids named in [`Coverage::describe`].
+    const NAMED: usize = 5;
+
+    /// The coverage of `system` in words, for the warning and the reports'
+    /// inputs section alike, or `None` when every evaluated query was
+    /// answered. `kind` is `chain` or `run`.
+    pub fn describe(&self, kind: &str, system: &str) -> Option<String> {
+        if self.unanswered.is_empty() {
+            return None;
+        }
+        let mut ids: Vec<&str> =
+            self.unanswered.iter().take(Self::NAMED).map(QueryId::as_str).collect();
+        if self.unanswered.len() > Self::NAMED {
+            ids.push("…");
+        }
+        Some(format!(
+            "{kind} {system} has no results for {} of the {} evaluated {} ({}); {} \
+             0 on every metric",
+            self.unanswered.len(),
+            self.evaluated,
+            if self.evaluated == 1 { "query" } else { "queries" },
+            ids.join(", "),
+            if self.unanswered.len() == 1 { "it scores" } else { "they score" }
+        ))
+    }
 }
 
 /// The deterministic part of what a chain costs.

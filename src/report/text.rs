@@ -383,16 +383,23 @@ pub fn reindex_case(r: &Report, headline: &str) -> Vec<Vec<Span>> {
     out
 }
 
-/// Where else the recommended chain differs detectably from the baseline.
+/// Where else the recommended chain differs detectably from the baseline,
+/// on the metrics that measure ranking quality. A diagnostic metric
+/// (`unjudged@k`, the share of judging holes) never counts as "better": a
+/// top k with fewer holes says where the judgments came from, not that the
+/// ranking is better. What happened to the holes is said in a sentence of
+/// its own.
 fn other_metrics(r: &Report, c: &ComparisonRow, headline: &str) -> Vec<Span> {
     let others: Vec<&ComparisonRow> = r
         .comparisons
         .iter()
         .filter(|o| o.system == c.system && o.metric != headline && o.significant)
         .collect();
+    let (holes, quality): (Vec<&ComparisonRow>, Vec<&ComparisonRow>) =
+        others.into_iter().partition(|o| is_diagnostic(&o.metric));
     let better: Vec<String> =
-        others.iter().filter(|o| improves(o)).map(|o| o.metric.clone()).collect();
-    let worse: Vec<String> = others
+        quality.iter().filter(|o| improves(o)).map(|o| o.metric.clone()).collect();
+    let worse: Vec<String> = quality
         .iter()
         .filter(|o| !improves(o))
         .map(|o| format!("{} ({}, {} after Holm)", o.metric, signed(o.delta), p_equals(o.p_holm)))
@@ -404,7 +411,29 @@ fn other_metrics(r: &Report, c: &ComparisonRow, headline: &str) -> Vec<Span> {
     } else {
         p.push(t(format!(" but detectably worse on {}.", worse.join(", "))));
     }
+    for h in holes {
+        let k = h.metric.trim_start_matches("unjudged@");
+        p.push(t(" Its top "));
+        p.push(t(format!(
+            "{k} holds detectably {} unjudged posts than ",
+            if h.delta < 0.0 { "fewer" } else { "more" }
+        )));
+        p.push(code(h.baseline.as_str()));
+        p.push(t(format!(
+            "'s ({} {}, {} after Holm): a fact about the judging holes, not a quality gain or \
+             loss, so it is not counted above (see the judging holes below).",
+            h.metric,
+            signed(h.delta),
+            p_equals(h.p_holm)
+        )));
+    }
     p
+}
+
+/// Whether `metric` is a diagnostic of the judgments (`unjudged@k`) rather
+/// than a measure of ranking quality.
+pub fn is_diagnostic(metric: &str) -> bool {
+    metric.parse::<crate::eval::Metric>().is_ok_and(|m| m.is_diagnostic())
 }
 
 /// Index cost of `system` against the baseline.
@@ -644,6 +673,54 @@ pub fn breakdown_caveat(r: &Report) -> Option<String> {
              group's finding as a lead to check (exploratory), not as a result."
         )
     })
+}
+
+/// The settings that shaped the numbers, as one sentence of the inputs
+/// section.
+pub fn settings_sentence(r: &Report) -> Vec<Span> {
+    let st = &r.settings;
+    let mut p = vec![t(format!(
+        "{} {} (report layout {}), command ",
+        r.tool.name, r.tool.version, r.schema_version
+    ))];
+    p.push(code(r.command.as_str()));
+    p.push(t(". Metrics: "));
+    for (i, m) in st.metrics.iter().enumerate() {
+        if i > 0 {
+            p.push(t(", "));
+        }
+        p.push(code(m.as_str()));
+    }
+    p.push(t(format!(
+        ". Relevant from grade {}; gain {}; highest grade {}; seed {}; {} sign assignments when \
+         over 16 queries; {} bootstrap resamples; α = {}{}.",
+        st.relevant_from,
+        st.gain,
+        st.max_grade,
+        st.seed,
+        st.permutations,
+        st.bootstrap_resamples,
+        st.alpha,
+        st.depth.map(|d| format!("; {d} results kept per query")).unwrap_or_default()
+    )));
+    p
+}
+
+/// How many evaluated queries each system answered: one line per system
+/// that left some unanswered (they score 0), else one line saying every
+/// system answered every evaluated query. The warnings say the same.
+pub fn coverage_lines(r: &Report) -> Vec<String> {
+    let kind = if r.command == "run" { "chain" } else { "run" };
+    let lines: Vec<String> =
+        r.systems.iter().filter_map(|s| s.coverage.describe(kind, s.name.as_str())).collect();
+    if lines.is_empty() {
+        vec![format!(
+            "Every {kind} returned results for each of the {}.",
+            evaluated_queries(r.counts.queries_evaluated)
+        )]
+    } else {
+        lines
+    }
 }
 
 /// A table both renderings draw alike: header cells, then rows of cells,
@@ -966,6 +1043,28 @@ mod tests {
         assert!(!case.contains("understated") && !case.contains("narrow"), "{case}");
         assert!(case.contains("Judging them can move a score either way"), "{case}");
         assert!(case.contains("nDCG and MAP can fall as well as rise"), "{case}");
+    }
+
+    /// Issue 12, item 5: the demo report listed `unjudged@10` among the
+    /// metrics `stemmed` is "detectably better" on (reports/report.md of
+    /// main at 70662ce; its figures are used here).
+    #[test]
+    fn holes_are_never_counted_as_a_gain() {
+        let mut map = row("stemmed", 70, 0.098, Some((0.047, 0.151)), Some(0.0009));
+        map.metric = "map".into();
+        let mut holes = row("stemmed", 70, -0.047, Some((-0.089, -0.011)), Some(0.045));
+        holes.metric = "unjudged@10".into();
+        let overall = row("stemmed", 70, 0.092, Some((0.033, 0.154)), Some(0.012));
+        let mut r = report(vec![overall.clone(), map, holes], vec![]);
+        r.settings.metrics = vec!["ndcg@10".into(), "map".into(), "unjudged@10".into()];
+        let text = spans_markdown(&other_metrics(&r, &overall, "ndcg@10"));
+        assert_eq!(
+            text,
+            "On the other metrics it is detectably better on map and detectably worse on none. \
+             Its top 10 holds detectably fewer unjudged posts than `standard`'s (unjudged@10 \
+             −0.047, p = 0.045 after Holm): a fact about the judging holes, not a quality gain \
+             or loss, so it is not counted above (see the judging holes below)."
+        );
     }
 
     #[test]
