@@ -58,6 +58,22 @@ pub fn render_markdown(outcome: &GateOutcome) -> String {
             verdict
         );
     }
+    if !outcome.missing.is_empty() {
+        let _ = writeln!(s, "\nSystems of the baseline missing from the current report:\n");
+        for m in &outcome.missing {
+            let name = code(m.system.as_str());
+            let _ = if m.allowed {
+                writeln!(s, "- {name}: allowed by `--allow-missing`")
+            } else {
+                writeln!(
+                    s,
+                    "- {name}: **MISSING**, which fails the gate (a guarded system is gone); if \
+                     removing it is intended, give `--allow-missing {}` and update the baseline",
+                    m.system
+                )
+            };
+        }
+    }
     if !outcome.warnings.is_empty() {
         let _ = writeln!(s, "\nWarnings:\n");
         for w in &outcome.warnings {
@@ -139,6 +155,7 @@ mod tests {
             baseline_path: PathBuf::from("base/report.json"),
             current_path: PathBuf::from("cur/report.json"),
             checks,
+            missing: Vec::new(),
             warnings,
             require_significance: false,
             alpha: 0.05,

@@ -27,6 +27,10 @@
 //!   for information; the decision uses the randomization test, as the
 //!   reports' own significance marks do. No multiple-comparison adjustment
 //!   is applied: adjusting would make the gate more lenient;
+//! - a system of the baseline that the current report lacks fails the gate
+//!   (a guarded chain that disappears is not a pass), unless the caller
+//!   allows it by name (`allow_missing`); a system only the current report
+//!   has is a warning, so adding a chain never breaks the build;
 //! - `unjudged@k` is a diagnostic of the judgments, not of ranking quality:
 //!   it is shown but never gated (and a rise is named in a warning, since it
 //!   means the current chains retrieve posts nobody judged: pool and judge
@@ -200,6 +204,9 @@ pub struct GateSettings {
     pub allow_different_inputs: bool,
     /// Gate only these metric keys (canonical); `None`: every common metric.
     pub metrics: Option<Vec<String>>,
+    /// Systems of the baseline that may be absent from the current report
+    /// (`--allow-missing`); any other absent one fails the gate.
+    pub allow_missing: Vec<ChainName>,
 }
 
 impl Default for GateSettings {
@@ -210,6 +217,7 @@ impl Default for GateSettings {
             alpha: DEFAULT_ALPHA,
             allow_different_inputs: false,
             metrics: None,
+            allow_missing: Vec::new(),
         }
     }
 }
@@ -389,6 +397,16 @@ impl Check {
     }
 }
 
+/// A system of the baseline report that the current report lacks.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct MissingSystem {
+    /// Its name.
+    pub system: ChainName,
+    /// Whether the caller allowed it to go (`--allow-missing`); if not, the
+    /// gate fails.
+    pub allowed: bool,
+}
+
 /// Everything the gate found, ready to render.
 #[derive(Debug, Clone, PartialEq)]
 pub struct GateOutcome {
@@ -398,6 +416,9 @@ pub struct GateOutcome {
     pub current_path: PathBuf,
     /// Checks in the current report's system order, then its metric order.
     pub checks: Vec<Check>,
+    /// Systems of the baseline absent from the current report, in the
+    /// baseline's order.
+    pub missing: Vec<MissingSystem>,
     /// Systems or metrics present in one report only, differences allowed
     /// through, and other notes; never failures.
     pub warnings: Vec<String>,
@@ -417,9 +438,14 @@ impl GateOutcome {
         self.checks.iter().filter(|c| c.verdict == Verdict::Regression)
     }
 
-    /// True when no check failed.
+    /// The systems whose absence fails the gate.
+    pub fn missing_failures(&self) -> impl Iterator<Item = &MissingSystem> {
+        self.missing.iter().filter(|m| !m.allowed)
+    }
+
+    /// True when no check failed and no guarded system is missing.
     pub fn passed(&self) -> bool {
-        self.regressions().next().is_none()
+        self.regressions().next().is_none() && self.missing_failures().next().is_none()
     }
 
     /// The one-line verdict (Markdown), e.g. `**PASS**: no regression in 14
@@ -428,8 +454,20 @@ impl GateOutcome {
         let gated = self.checks.iter().filter(|c| c.verdict != Verdict::NotGated).count();
         let checks = plural(gated, "check", "checks");
         let failed: Vec<&Check> = self.regressions().collect();
+        let gone: Vec<String> =
+            self.missing_failures().map(|m| markdown::code(m.system.as_str())).collect();
+        let gone_text = (!gone.is_empty()).then(|| {
+            format!(
+                "{} of the baseline missing from the current report: {}",
+                plural(gone.len(), "system", "systems"),
+                gone.join(", ")
+            )
+        });
         if failed.is_empty() {
-            return format!("**PASS**: no regression in {checks}.");
+            return match gone_text {
+                None => format!("**PASS**: no regression in {checks}."),
+                Some(g) => format!("**FAIL**: {g}; no regression in {checks}."),
+            };
         }
         const NAMED: usize = 5;
         let mut named: Vec<String> = failed
@@ -449,7 +487,8 @@ impl GateOutcome {
             named.push(format!("and {} more", failed.len() - NAMED));
         }
         format!(
-            "**FAIL**: {} in {checks}: {}.",
+            "**FAIL**: {}{} in {checks}: {}.",
+            gone_text.map(|g| format!("{g}; ")).unwrap_or_default(),
             plural(failed.len(), "regression", "regressions"),
             named.join(", ")
         )
@@ -512,7 +551,7 @@ pub fn run_gate(
     }
 
     let metrics = gated_metrics(b, c, settings, &mut warnings)?;
-    let systems = common_systems(b, c, &mut warnings);
+    let (systems, missing) = common_systems(b, c, &settings.allow_missing, &mut warnings)?;
     let mut checks = Vec::new();
     for system in &systems {
         for metric in &metrics {
@@ -567,7 +606,7 @@ pub fn run_gate(
             });
         }
     }
-    if checks.is_empty() {
+    if checks.is_empty() && missing.iter().all(|m| m.allowed) {
         return Err(Error::usage(format!(
             "nothing to compare: no system and metric appear in both {} and {}",
             baseline.path.display(),
@@ -587,6 +626,7 @@ pub fn run_gate(
         baseline_path: baseline.path.clone(),
         current_path: current.path.clone(),
         checks,
+        missing,
         warnings,
         require_significance: settings.require_significance,
         alpha: settings.alpha,
@@ -647,19 +687,42 @@ fn gated_metrics(
     Ok(out)
 }
 
-/// Systems of both reports, in the current report's order; the others
-/// become warnings.
-fn common_systems(b: &Report, c: &Report, warnings: &mut Vec<String>) -> Vec<ChainName> {
+/// Systems of both reports, in the current report's order, and the systems
+/// of the baseline the current report lacks (each allowed to go or not).
+/// Systems only the current report has become warnings. An `allowed` name
+/// that is no system of the baseline is a usage error (a typo would
+/// otherwise allow nothing).
+fn common_systems(
+    b: &Report,
+    c: &Report,
+    allowed: &[ChainName],
+    warnings: &mut Vec<String>,
+) -> Result<(Vec<ChainName>, Vec<MissingSystem>)> {
     let names =
         |r: &Report| -> Vec<ChainName> { r.summary.iter().map(|s| s.system.clone()).collect() };
     let (in_b, in_c) = (names(b), names(c));
-    for s in in_b.iter().filter(|s| !in_c.contains(s)) {
-        warnings.push(format!("system {s} is in the baseline report only"));
+    if let Some(unknown) = allowed.iter().find(|a| !in_b.contains(a)) {
+        let list: Vec<&str> = in_b.iter().map(ChainName::as_str).collect();
+        return Err(Error::usage(format!(
+            "--allow-missing {unknown}: the baseline has no system of that name (baseline: {})",
+            list.join(", ")
+        )));
+    }
+    let missing: Vec<MissingSystem> = in_b
+        .iter()
+        .filter(|s| !in_c.contains(s))
+        .map(|s| MissingSystem { system: s.clone(), allowed: allowed.contains(s) })
+        .collect();
+    for m in missing.iter().filter(|m| m.allowed) {
+        warnings.push(format!(
+            "system {} of the baseline is not in the current report (allowed by --allow-missing)",
+            m.system
+        ));
     }
     for s in in_c.iter().filter(|s| !in_b.contains(s)) {
         warnings.push(format!("system {s} is in the current report only"));
     }
-    in_c.into_iter().filter(|s| in_b.contains(s)).collect()
+    Ok((in_c.into_iter().filter(|s| in_b.contains(s)).collect(), missing))
 }
 
 fn summary_mean(r: &Report, system: &ChainName, metric: &str) -> Option<f64> {

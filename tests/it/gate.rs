@@ -199,19 +199,53 @@ fn reports_on_different_judgments_are_refused_unless_allowed() {
     assert!(out.contains("- different inputs allowed: judgments: baseline sha256"), "{out}");
 }
 
+/// Issue 12, item 3: a system of the baseline that the current report
+/// lacks used to be a warning, so a gate passed when the guarded chain
+/// disappeared. It fails unless `--allow-missing` names it; a system only
+/// the current report has stays a warning.
 #[test]
-fn systems_and_metrics_in_one_report_only_are_warnings() {
+fn a_baseline_system_missing_from_the_current_report_fails_unless_allowed() {
     let tmp = tempfile::tempdir().unwrap();
     let base = report(tmp.path(), "base", &[("a", "run_base"), ("old", "run_base")], &qrels());
     let cur = report(tmp.path(), "cur", &[("a", "run_base"), ("new", "run_big_drop")], &qrels());
-    let res = gate(tmp.path(), &base, &cur, &[]);
+    let junit = tmp.path().join("gate.xml");
+    let res = gate(tmp.path(), &base, &cur, &["--junit", junit.to_str().unwrap()]);
     let (out, err) = texts(&res);
-    assert_eq!(res.status.code(), Some(0), "stdout: {out}\nstderr: {err}");
-    assert!(out.contains("- system old is in the baseline report only"), "{out}");
+    assert_eq!(res.status.code(), Some(1), "stdout: {out}\nstderr: {err}");
+    assert!(out.starts_with("### postassay gate: FAIL\n"), "{out}");
+    assert!(out.contains("- `old`: **MISSING**, which fails the gate"), "{out}");
+    assert!(out.contains("give `--allow-missing old`"), "{out}");
     assert!(out.contains("- system new is in the current report only"), "{out}");
-    assert!(out.trim_end().ends_with("no regression in 2 checks."), "{out}");
+    assert_eq!(
+        out.trim_end().lines().last().unwrap(),
+        "**FAIL**: 1 system of the baseline missing from the current report: `old`; no \
+         regression in 2 checks."
+    );
+    let xml = std::fs::read_to_string(&junit).unwrap();
+    assert!(xml.contains(r#"<testsuite name="postassay gate" tests="4" failures="1""#), "{xml}");
+    assert!(
+        xml.contains(r#"<testcase classname="postassay.gate.old" name="present" time="0">"#),
+        "{xml}"
+    );
+    assert!(xml.contains(r#"<failure type="missing" message="old is in the baseline"#), "{xml}");
 
-    // Metrics: the current report drops unjudged@5 and adds mrr.
+    // Allowed by name: a pass, with the absence recorded.
+    let res = gate(tmp.path(), &base, &cur, &["--allow-missing", "old"]);
+    let (out, _) = texts(&res);
+    assert_eq!(res.status.code(), Some(0), "{out}");
+    assert!(out.contains("- `old`: allowed by `--allow-missing`"), "{out}");
+    assert!(out.trim_end().ends_with("**PASS**: no regression in 2 checks."), "{out}");
+    // A name the baseline does not have allows nothing: a usage error.
+    let res = gate(tmp.path(), &base, &cur, &["--allow-missing", "olld"]);
+    assert_eq!(res.status.code(), Some(2));
+    assert!(texts(&res).1.contains("--allow-missing olld: the baseline has no system"));
+}
+
+#[test]
+fn metrics_in_one_report_only_are_warnings() {
+    let tmp = tempfile::tempdir().unwrap();
+    let base = report(tmp.path(), "base", &[("a", "run_base")], &qrels());
+    // The current report drops unjudged@5 and adds mrr.
     let other = tmp.path().join("other");
     let spec = format!("a={}", fixture("gate/run_base.csv").display());
     let res = postassay(
