@@ -29,9 +29,9 @@ use crate::error::{Error, Result};
 use crate::eval::{self, EvalSettings, Gain, Metric, SystemScores};
 use crate::ids::{ChainName, QueryId};
 use crate::index::ChainIndex;
-use crate::input::{self, Judgments, Post, Query, Run};
+use crate::input::{self, Judgments, LangCode, Post, Query, Run};
 use crate::report::model::{
-    ChainTiming, Cost, Counts, Coverage, InputFile, PerQuery, QueryValues, Report, Settings,
+    Basis, ChainTiming, Cost, Counts, Coverage, InputFile, PerQuery, QueryValues, Report, Settings,
     SystemInfo, Timing, ToolInfo, SCHEMA_VERSION,
 };
 use crate::search;
@@ -464,6 +464,7 @@ impl Assembly<'_> {
             },
             command: self.command.to_string(),
             inputs: self.inputs,
+            basis: Some(basis(self.judgments, self.queries)?),
             settings: Settings {
                 metrics: options.metrics.iter().map(Metric::key).collect(),
                 relevant_from: options.eval.relevant_from,
@@ -501,6 +502,50 @@ impl Assembly<'_> {
         };
         Ok(BenchOutput { report, runs: self.runs })
     }
+}
+
+/// What the judgments and queries say, whatever their files' bytes
+/// ([`Basis`]): a canonical text of one JSON array per judgment and per
+/// query, in byte order of the ids (tags sorted), hashed.
+fn basis(judgments: &Judgments, queries: Option<&[Query]>) -> Result<Basis> {
+    let mut canonical = String::new();
+    for (q, posts) in judgments.queries() {
+        for (p, g) in posts {
+            canonical.push_str(&json_line(&(q, p, g))?);
+        }
+    }
+    let judged = judgments.queries().map(|(q, posts)| (q.clone(), posts.clone())).collect();
+    let mut by_id: BTreeMap<&QueryId, String> = BTreeMap::new();
+    for q in queries.unwrap_or_default() {
+        let mut tags: Vec<&str> = q.tags.iter().map(String::as_str).collect();
+        tags.sort_unstable();
+        by_id.insert(
+            &q.id,
+            json_line(&(&q.id, &q.text, q.lang.as_ref().map(LangCode::as_str), tags))?,
+        );
+    }
+    let queries_sha256 = queries.map(|_| {
+        input::sha256_hex(by_id.values().map(String::as_str).collect::<String>().as_bytes())
+    });
+    Ok(Basis {
+        judgments_sha256: input::sha256_hex(canonical.as_bytes()),
+        queries_sha256,
+        judgments: judged,
+        queries: by_id
+            .into_iter()
+            .map(|(id, line)| {
+                let hash = input::sha256_hex(line.as_bytes());
+                (id.clone(), hash.get(..16).unwrap_or(&hash).to_string())
+            })
+            .collect(),
+    })
+}
+
+/// `value` as one line of JSON, with its line end.
+fn json_line<T: serde::Serialize>(value: &T) -> Result<String> {
+    serde_json::to_string(value)
+        .map(|line| line + "\n")
+        .map_err(|e| Error::usage(format!("writing the inputs' canonical text: {e}")))
 }
 
 /// Which of the `evaluated` queries `run` returned at least one post for.

@@ -36,11 +36,13 @@
 //!   means the current chains retrieve posts nobody judged: pool and judge
 //!   them).
 //!
-//! Reports resting on different judgments or queries (their SHA-256 in
-//! `inputs`), or scored with a different relevance threshold, gain or
-//! highest grade, measure different things: the gate refuses them unless
-//! `allow_different_inputs` is set, in which case the differences become
-//! warnings.
+//! Reports resting on different judgments or queries, or scored with a
+//! different relevance threshold, gain or highest grade, measure different
+//! things: the gate refuses them unless `allow_different_inputs` is set, in
+//! which case the differences become warnings. Judgments and queries are
+//! compared by what they say (the reports' `basis`), not by the bytes of
+//! their files, and a refusal says what changed (pairs added, grades
+//! changed, queries added …).
 
 mod junit;
 mod markdown;
@@ -52,7 +54,7 @@ use serde::Deserialize;
 
 use crate::error::{Error, Result};
 use crate::eval::Metric;
-use crate::ids::{ChainName, QueryId};
+use crate::ids::{ChainName, PostId, QueryId};
 use crate::report::model::{Report, SCHEMA_VERSION};
 use crate::stats;
 
@@ -278,36 +280,76 @@ pub struct InputDifference {
     /// What differs: an input role (`judgments`, `queries`) or a setting
     /// (`relevant_from`, `gain`, `max_grade`).
     pub what: String,
-    /// The baseline's side (a hash with its path, or a setting's value).
-    pub baseline: String,
-    /// The current report's side.
-    pub current: String,
+    /// How: for a setting `baseline 1; current 2`; for judgments and
+    /// queries what was added, removed or changed, with the files.
+    pub how: String,
 }
 
 /// The differences in judgments, queries and scoring settings between two
-/// reports, in a fixed order (roles, then settings).
-pub fn input_differences(baseline: &Report, current: &Report) -> Vec<InputDifference> {
+/// reports, in a fixed order (judgments, queries, then settings), and notes
+/// on files whose bytes differ while what they say does not.
+///
+/// Judgments and queries are compared by what they say (each report's
+/// [`Basis`](crate::report::model::Basis)), so the same judgments saved
+/// with a BOM, CRLF line ends, in the four-column layout or with a line
+/// repeated are the same inputs; reports without a basis (older versions)
+/// are compared by file hash.
+pub fn input_differences(
+    baseline: &Report,
+    current: &Report,
+) -> (Vec<InputDifference>, Vec<String>) {
     let mut out = Vec::new();
-    let describe = |r: &Report, role: &str| -> String {
-        let found: Vec<String> = r
-            .inputs
-            .iter()
-            .filter(|i| i.role == role)
-            .map(|i| format!("sha256 {} ({})", short_hash(&i.sha256), i.path))
-            .collect();
-        if found.is_empty() {
-            "none".to_string()
-        } else {
-            found.join(", ")
-        }
+    let mut notes = Vec::new();
+    let files = |role: &str| {
+        format!(
+            "baseline {}; current {}",
+            describe_files(baseline, role),
+            describe_files(current, role)
+        )
     };
-    for role in SAME_INPUT_ROLES {
-        if input_hashes(baseline, role) != input_hashes(current, role) {
-            out.push(InputDifference {
-                what: role.to_string(),
-                baseline: describe(baseline, role),
-                current: describe(current, role),
-            });
+    let same_bytes = |role: &str| input_hashes(baseline, role) == input_hashes(current, role);
+    match (&baseline.basis, &current.basis) {
+        (Some(b), Some(c)) => {
+            if b.judgments_sha256 != c.judgments_sha256 {
+                out.push(InputDifference {
+                    what: "judgments".to_string(),
+                    how: format!(
+                        "{} ({})",
+                        judgment_changes(&b.judgments, &c.judgments),
+                        files("judgments")
+                    ),
+                });
+            } else if !same_bytes("judgments") {
+                notes.push(format!(
+                    "the judgments files differ in bytes but hold the same judgments ({})",
+                    files("judgments")
+                ));
+            }
+            match (&b.queries_sha256, &c.queries_sha256) {
+                (Some(bq), Some(cq)) if bq != cq => out.push(InputDifference {
+                    what: "queries".to_string(),
+                    how: format!(
+                        "{} ({})",
+                        query_changes(&b.queries, &c.queries),
+                        files("queries")
+                    ),
+                }),
+                (Some(_), Some(_)) if !same_bytes("queries") => notes.push(format!(
+                    "the queries files differ in bytes but hold the same queries ({})",
+                    files("queries")
+                )),
+                (Some(_), None) | (None, Some(_)) => {
+                    out.push(InputDifference { what: "queries".to_string(), how: files("queries") })
+                }
+                _ => {}
+            }
+        }
+        _ => {
+            for role in SAME_INPUT_ROLES {
+                if !same_bytes(role) {
+                    out.push(InputDifference { what: role.to_string(), how: files(role) });
+                }
+            }
         }
     }
     let (b, c) = (&baseline.settings, &current.settings);
@@ -318,10 +360,102 @@ pub fn input_differences(baseline: &Report, current: &Report) -> Vec<InputDiffer
     ];
     for (what, bv, cv) in settings {
         if bv != cv {
-            out.push(InputDifference { what: what.to_string(), baseline: bv, current: cv });
+            out.push(InputDifference {
+                what: what.to_string(),
+                how: format!("baseline {bv}; current {cv}"),
+            });
         }
     }
-    out
+    (out, notes)
+}
+
+/// A report's files of one role: `sha256 0123456789ab (path)`, or `none`.
+fn describe_files(r: &Report, role: &str) -> String {
+    let found: Vec<String> = r
+        .inputs
+        .iter()
+        .filter(|i| i.role == role)
+        .map(|i| format!("sha256 {} ({})", short_hash(&i.sha256), i.path))
+        .collect();
+    if found.is_empty() {
+        "none".to_string()
+    } else {
+        found.join(", ")
+    }
+}
+
+/// How many examples of each kind of change a message names.
+const EXAMPLES: usize = 3;
+
+/// `items` counted, with the first few named: `2 added (q9 p1 = 2, q9 p4 = 0)`.
+fn counted(what: &str, items: &[String]) -> Option<String> {
+    if items.is_empty() {
+        return None;
+    }
+    let mut named: Vec<&str> = items.iter().take(EXAMPLES).map(String::as_str).collect();
+    if items.len() > EXAMPLES {
+        named.push("…");
+    }
+    Some(format!("{} {what} ({})", items.len(), named.join(", ")))
+}
+
+/// How the judgments changed: pairs added, removed, grades changed.
+fn judgment_changes(
+    b: &BTreeMap<QueryId, BTreeMap<PostId, u32>>,
+    c: &BTreeMap<QueryId, BTreeMap<PostId, u32>>,
+) -> String {
+    let flat = |m: &BTreeMap<QueryId, BTreeMap<PostId, u32>>| -> BTreeMap<(QueryId, PostId), u32> {
+        m.iter()
+            .flat_map(|(q, posts)| posts.iter().map(move |(p, g)| ((q.clone(), p.clone()), *g)))
+            .collect()
+    };
+    let (b, c) = (flat(b), flat(c));
+    let added: Vec<String> = c
+        .iter()
+        .filter(|(k, _)| !b.contains_key(k))
+        .map(|((q, p), g)| format!("{q} {p} = {g}"))
+        .collect();
+    let removed: Vec<String> = b
+        .iter()
+        .filter(|(k, _)| !c.contains_key(k))
+        .map(|((q, p), g)| format!("{q} {p} = {g}"))
+        .collect();
+    let changed: Vec<String> = b
+        .iter()
+        .filter_map(|(k, g)| {
+            c.get(k).filter(|h| *h != g).map(|h| format!("{} {}: {g} → {h}", k.0, k.1))
+        })
+        .collect();
+    let parts: Vec<String> = [
+        counted(if added.len() == 1 { "pair added" } else { "pairs added" }, &added),
+        counted(if removed.len() == 1 { "pair removed" } else { "pairs removed" }, &removed),
+        counted(if changed.len() == 1 { "grade changed" } else { "grades changed" }, &changed),
+    ]
+    .into_iter()
+    .flatten()
+    .collect();
+    parts.join(", ")
+}
+
+/// How the queries changed: added, removed, changed in text, language or tags.
+fn query_changes(b: &BTreeMap<QueryId, String>, c: &BTreeMap<QueryId, String>) -> String {
+    let ids = |keep: &dyn Fn(&QueryId, &String) -> bool,
+               from: &BTreeMap<QueryId, String>|
+     -> Vec<String> {
+        from.iter().filter(|(q, h)| keep(q, h)).map(|(q, _)| q.to_string()).collect()
+    };
+    let added = ids(&|q, _| !b.contains_key(q), c);
+    let removed = ids(&|q, _| !c.contains_key(q), b);
+    let changed = ids(&|q, h| c.get(q).is_some_and(|x| x != h), b);
+    let parts: Vec<String> = [
+        counted("added", &added),
+        counted("removed", &removed),
+        counted("changed in text, language or tags", &changed),
+    ]
+    .into_iter()
+    .flatten()
+    .collect();
+    parts.join(", ")
 }
 
 /// The SHA-256 of a report's inputs of one role, sorted.
@@ -519,12 +653,11 @@ pub fn run_gate(
     let (b, c) = (&baseline.report, &current.report);
     let mut warnings = Vec::new();
 
-    let differences = input_differences(b, c);
+    let (differences, notes) = input_differences(b, c);
+    warnings.extend(notes);
     if !differences.is_empty() {
-        let lines: Vec<String> = differences
-            .iter()
-            .map(|d| format!("{}: baseline {}; current {}", d.what, d.baseline, d.current))
-            .collect();
+        let lines: Vec<String> =
+            differences.iter().map(|d| format!("{}: {}", d.what, d.how)).collect();
         if !settings.allow_different_inputs {
             return Err(Error::usage(format!(
                 "the reports were not built on the same inputs, so their numbers are not \

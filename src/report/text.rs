@@ -907,6 +907,7 @@ mod tests {
             tool: ToolInfo { name: "postassay".into(), version: "0".into() },
             command: "run".into(),
             inputs: Vec::new(),
+            basis: None,
             settings: Settings {
                 metrics: vec!["ndcg@10".into()],
                 relevant_from: 1,
