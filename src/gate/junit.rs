@@ -3,7 +3,8 @@
 //! name the metric key), a `failure` element with the message for each
 //! regression, `skipped` for diagnostic metrics, one case named `present`
 //! per baseline system missing from the current report (a `failure`, or
-//! `skipped` when allowed), and the warnings in `system-out`. It renders a [`GateOutcome`] and decides nothing.
+//! `skipped` when allowed), and in `system-out` the chains whose definition
+//! changed and the warnings. It renders a [`GateOutcome`] and decides nothing.
 //!
 //! The layout is the de-facto JUnit XML one most CI systems read
 //! (`testsuites` › `testsuite` › `testcase` › `failure`/`skipped`; common
@@ -11,7 +12,7 @@
 
 use std::fmt::Write;
 
-use super::markdown::{fixed, limit_text, signed};
+use super::markdown::{definition_change_lines, fixed, limit_text, signed};
 use super::{Check, GateOutcome, Verdict};
 
 /// Render the JUnit XML document.
@@ -86,8 +87,13 @@ pub fn render_junit(outcome: &GateOutcome) -> String {
         };
         let _ = writeln!(s, "    </testcase>");
     }
-    if !outcome.warnings.is_empty() {
-        let text: Vec<String> = outcome.warnings.iter().map(|w| format!("warning: {w}")).collect();
+    let mut notes: Vec<String> = definition_change_lines(outcome)
+        .into_iter()
+        .map(|l| format!("definition changed: {}", l.replace('`', "")))
+        .collect();
+    notes.extend(outcome.warnings.iter().map(|w| format!("warning: {w}")));
+    if !notes.is_empty() {
+        let text = notes;
         let _ = writeln!(s, "    <system-out>{}</system-out>", escape_text(&text.join("\n")));
     }
     let _ = writeln!(s, "  </testsuite>");

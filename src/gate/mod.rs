@@ -36,6 +36,11 @@
 //!   means the current chains retrieve posts nobody judged: pool and judge
 //!   them).
 //!
+//! A chain whose definition differs between the reports (a step, a
+//! stemming language, a routing setting) is named with what changed: that
+//! is often the point of the change under review, so it is shown, not
+//! refused.
+//!
 //! Reports resting on different judgments or queries, or scored with a
 //! different relevance threshold, gain or highest grade, measure different
 //! things: the gate refuses them unless `allow_different_inputs` is set, in
@@ -56,6 +61,7 @@ use crate::error::{Error, Result};
 use crate::eval::Metric;
 use crate::ids::{ChainName, PostId, QueryId};
 use crate::report::model::{Report, SCHEMA_VERSION};
+use crate::report::text::{chain_definition, definition_parts};
 use crate::stats;
 
 pub use junit::render_junit;
@@ -541,6 +547,55 @@ pub struct MissingSystem {
     pub allowed: bool,
 }
 
+/// A chain whose definition differs between the two reports (often the
+/// point of the change under review: shown, never refused).
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct DefinitionChange {
+    /// The chain.
+    pub system: ChainName,
+    /// Each part that differs ([`definition_parts`]): the part, the
+    /// baseline's settings and the current ones (`none` where a part is
+    /// absent).
+    pub parts: Vec<(String, String, String)>,
+}
+
+/// The chains of both reports whose definitions differ (descriptions
+/// aside), in `systems` order. Reports of `score` record no definitions.
+fn definition_changes(b: &Report, c: &Report, systems: &[ChainName]) -> Vec<DefinitionChange> {
+    let without_description = |v: &serde_json::Value| {
+        let mut v = v.clone();
+        if let Some(map) = v.as_object_mut() {
+            map.remove("description");
+        }
+        v
+    };
+    let mut out = Vec::new();
+    for system in systems {
+        let (Some(bd), Some(cd)) =
+            (chain_definition(b, system.as_str()), chain_definition(c, system.as_str()))
+        else {
+            continue;
+        };
+        if without_description(bd) == without_description(cd) {
+            continue;
+        }
+        let (bp, cp) = (definition_parts(bd), definition_parts(cd));
+        let mut labels: Vec<&String> = bp.iter().map(|(l, _)| l).collect();
+        labels.extend(cp.iter().map(|(l, _)| l).filter(|l| !bp.iter().any(|(x, _)| x == *l)));
+        let text = |parts: &[(String, String)], label: &str| {
+            parts.iter().find(|(l, _)| l == label).map_or("none".to_string(), |(_, t)| t.clone())
+        };
+        let parts = labels
+            .into_iter()
+            .filter(|l| l.as_str() != "description")
+            .map(|l| (l.clone(), text(&bp, l), text(&cp, l)))
+            .filter(|(_, x, y)| x != y)
+            .collect();
+        out.push(DefinitionChange { system: system.clone(), parts });
+    }
+    out
+}
+
 /// Everything the gate found, ready to render.
 #[derive(Debug, Clone, PartialEq)]
 pub struct GateOutcome {
@@ -553,6 +608,8 @@ pub struct GateOutcome {
     /// Systems of the baseline absent from the current report, in the
     /// baseline's order.
     pub missing: Vec<MissingSystem>,
+    /// Chains of both reports whose definition changed.
+    pub changed_definitions: Vec<DefinitionChange>,
     /// Systems or metrics present in one report only, differences allowed
     /// through, and other notes; never failures.
     pub warnings: Vec<String>,
@@ -758,6 +815,7 @@ pub fn run_gate(
     Ok(GateOutcome {
         baseline_path: baseline.path.clone(),
         current_path: current.path.clone(),
+        changed_definitions: definition_changes(b, c, &systems),
         checks,
         missing,
         warnings,

@@ -27,9 +27,9 @@ use crate::diagnose::render::{
 use crate::report::model::Report;
 use crate::report::svg::{self, esc, Bar, Estimate, Panel, Point, Series};
 use crate::report::text::{
-    breakdown_caveat, build_time, cost_table, coverage_lines, fixed, headline, improves, interval,
-    lower_is_better, moved_tables, names_groups, p_equals, pvalue, reindex_case, sentence,
-    settings_sentence, signed, spans_html,
+    breakdown_caveat, build_time, cost_table, coverage_lines, definitions_table, fixed, headline,
+    improves, interval, lower_is_better, moved_tables, names_groups, p_equals, pvalue,
+    reindex_case, sentence, settings_sentence, signed, spans_html, CHAINS_INTRO,
 };
 
 /// Marks the start of the Timing section, the only part of the page that
@@ -59,6 +59,7 @@ pub fn render(r: &Report) -> String {
     moved(&mut s, r);
     breakdowns(&mut s, r, &headline);
     cost(&mut s, r, &headline);
+    chains(&mut s, r);
     diagnostics(&mut s, r);
     if !r.skipped_queries.is_empty() {
         let ids: Vec<String> =
@@ -130,6 +131,9 @@ fn header(s: &mut String, r: &Report, headline: &str) {
     }
     if r.systems.iter().any(|x| x.cost.is_some()) {
         s.push_str(" · <a href=\"#cost\">Cost</a>");
+    }
+    if !r.settings.chains.is_empty() {
+        s.push_str(" · <a href=\"#chains\">Chains</a>");
     }
     if r.diagnostics.is_some() {
         s.push_str(" · <a href=\"#diagnostics\">Diagnostics</a>");
@@ -716,6 +720,16 @@ fn diagnostics_table(s: &mut String, t: &Table) {
         s.push_str("</tr>\n");
     }
     s.push_str("</tbody>\n</table></div>\n");
+}
+
+/// Every chain's definition, exactly as run (`run` only).
+fn chains(s: &mut String, r: &Report) {
+    let Some(table) = definitions_table(r) else { return };
+    let _ = writeln!(
+        s,
+        "<section id=\"chains\">\n<h2>Chains</h2>\n<p>{CHAINS_INTRO}</p>\n{}</section>",
+        table.html()
+    );
 }
 
 fn inputs(s: &mut String, r: &Report) {

@@ -10,9 +10,9 @@ use crate::diagnose::render::{
 };
 use crate::report::model::Report;
 use crate::report::text::{
-    breakdown_caveat, build_time, cost_table, coverage_lines, fixed, headline, interval,
-    moved_tables, names_groups, pvalue, reindex_case, sentence, settings_sentence, signed,
-    spans_markdown,
+    breakdown_caveat, build_time, cost_table, coverage_lines, definitions_table, fixed, headline,
+    interval, moved_tables, names_groups, pvalue, reindex_case, sentence, settings_sentence,
+    signed, spans_markdown, CHAINS_INTRO,
 };
 
 /// Render the whole Markdown report.
@@ -40,6 +40,7 @@ pub fn render(r: &Report) -> String {
     moved(&mut s, r);
     breakdowns(&mut s, r, &headline);
     cost(&mut s, r);
+    chains(&mut s, r);
     diagnostics(&mut s, r);
     if !r.skipped_queries.is_empty() {
         let _ = writeln!(s, "## Skipped queries\n");
@@ -249,6 +250,13 @@ fn breakdowns(s: &mut String, r: &Report, headline: &str) {
 fn cost(s: &mut String, r: &Report) {
     if let Some(table) = cost_table(r) {
         let _ = writeln!(s, "## Cost\n\n{}", table.markdown());
+    }
+}
+
+/// Every chain's definition, exactly as run (`run` only).
+fn chains(s: &mut String, r: &Report) {
+    if let Some(table) = definitions_table(r) {
+        let _ = writeln!(s, "## Chains\n\n{CHAINS_INTRO}\n\n{}", table.markdown());
     }
 }
 

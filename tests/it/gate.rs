@@ -496,3 +496,28 @@ fn reports_scored_with_different_settings_are_refused() {
     assert!(err.contains("gain: baseline exp; current linear"), "{err}");
     assert!(!err.contains("judgments:"), "same judgments file: {err}");
 }
+
+/// Issue 12, item 6: `gate` compared a `stemmed` that stems German with the
+/// English one as "the same `stemmed`". It names each chain whose
+/// definition changed, with the part that changed, and still compares it
+/// (that is often the point of the change).
+#[test]
+fn chains_whose_definition_changed_are_named() {
+    let tmp = tempfile::tempdir().unwrap();
+    let base = crate::run::run_stemming_fixture_with(tmp.path(), "en", "mrr", &[]);
+    let cur =
+        crate::run::run_stemming_fixture_with(tmp.path(), "de", "mrr", &["--stem-lang", "de"]);
+    let junit = tmp.path().join("gate.xml");
+    let res = gate(tmp.path(), &base, &cur, &["--junit", junit.to_str().unwrap()]);
+    let (out, err) = texts(&res);
+    assert!(matches!(res.status.code(), Some(0 | 1)), "compared, not refused: {err}");
+    let line = "- `stemmed` steps: baseline `lowercase → stem (language en, generation current)`; \
+                current `lowercase → stem (language de, generation current)`";
+    assert!(out.contains(line), "{out}");
+    assert!(!out.contains("`standard` steps"), "standard did not change: {out}");
+    let xml = std::fs::read_to_string(&junit).unwrap();
+    assert!(xml.contains("definition changed: stemmed steps: baseline lowercase → stem"), "{xml}");
+    // Unchanged chains name nothing.
+    let res = gate(tmp.path(), &base, &base, &[]);
+    assert!(!texts(&res).0.contains("definition changed"), "{}", texts(&res).0);
+}

@@ -64,30 +64,74 @@ fn demo_bench_end_to_end() {
 /// `run` of `standard` and `stemmed` on the stemming fixture with
 /// `--metrics metrics` into `dir/out`, which it returns.
 fn run_stemming_fixture(dir: &std::path::Path, metrics: &str) -> std::path::PathBuf {
+    run_stemming_fixture_with(dir, "out", metrics, &[])
+}
+
+/// [`run_stemming_fixture`] into `dir/name`, with `extra` flags.
+pub(crate) fn run_stemming_fixture_with(
+    dir: &std::path::Path,
+    name: &str,
+    metrics: &str,
+    extra: &[&str],
+) -> std::path::PathBuf {
     let input = |name: &str| fixture(&format!("stemming/{name}")).display().to_string();
     let (corpus, queries, qrels) = (input("posts.jsonl"), input("queries.csv"), input("qrels.csv"));
-    let out = dir.join("out");
-    let res = postassay(
-        dir,
-        &[
-            "run",
-            "--quiet",
-            "--corpus",
-            &corpus,
-            "--queries",
-            &queries,
-            "--judgments",
-            &qrels,
-            "--chains",
-            "standard,stemmed",
-            "--metrics",
-            metrics,
-            "--out",
-            out.to_str().unwrap(),
-        ],
-    );
+    let out = dir.join(name);
+    let mut args = vec![
+        "run",
+        "--quiet",
+        "--corpus",
+        &corpus,
+        "--queries",
+        &queries,
+        "--judgments",
+        &qrels,
+        "--chains",
+        "standard,stemmed",
+        "--metrics",
+        metrics,
+        "--out",
+        out.to_str().unwrap(),
+    ];
+    args.extend_from_slice(extra);
+    let res = postassay(dir, &args);
     assert_eq!(res.status.code(), Some(0), "{}", texts(&res).1);
     out
+}
+
+/// Issue 12, item 6: after `--stem-lang de` nothing in report.md showed
+/// "de". Every report states each chain's full definition: the Chains
+/// section of report.md and report.html (tokenizer, each step with its
+/// parameters, language and Snowball generation included) and the chains
+/// in report.json.
+#[test]
+fn reports_state_each_chains_definition() {
+    let tmp = tempfile::tempdir().unwrap();
+    let out = run_stemming_fixture_with(tmp.path(), "out", "mrr", &["--stem-lang", "de"]);
+    let md = std::fs::read_to_string(out.join("report.md")).unwrap();
+    let chains = md.split("\n## Chains\n").nth(1).expect("a Chains section").split("\n## ").next();
+    let chains = chains.unwrap();
+    for row in [
+        "| `standard` | description | Unicode words (UAX #29), lower-cased |",
+        "|  | tokenizer | words |",
+        "|  | steps | lowercase |",
+        "|  | steps | lowercase → stem (language de, generation current) |",
+    ] {
+        assert!(chains.contains(row), "{row} in:\n{chains}");
+    }
+    let html = std::fs::read_to_string(out.join("report.html")).unwrap();
+    assert!(html.contains("<a href=\"#chains\">Chains</a>"), "nav link");
+    let section = html.split("<section id=\"chains\">").nth(1).expect("a chains section");
+    assert!(
+        section.contains("<td>lowercase → stem (language de, generation current)</td>"),
+        "{section}"
+    );
+    let report: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("report.json")).unwrap()).unwrap();
+    assert_eq!(
+        report["settings"]["chains"][1]["steps"][1],
+        serde_json::json!({"step": "stem", "language": "de", "generation": "current"})
+    );
 }
 
 #[test]
