@@ -551,7 +551,9 @@ impl ChainSpec {
 }
 
 /// Read and validate a chain file. Plain chains named as a route's
-/// `fallback` are looked up in the file first, then among the built-ins.
+/// `fallback` are looked up in the file first, then among the built-ins. A
+/// chain named like a built-in (`standard`, …) is refused: the name would
+/// mean two different chains.
 pub fn read_chain_file(path: &Path) -> Result<Vec<ChainSpec>> {
     let bytes = std::fs::read(path).map_err(|e| Error::io(path, e))?;
     let text = String::from_utf8(bytes)
@@ -612,7 +614,9 @@ pub fn select_chains(available: &[ChainSpec], names: &str) -> Result<Vec<ChainSp
 }
 
 /// Parse and validate chain-file text. `origin` names the file in messages;
-/// `pool` holds further plain chains a route's `fallback` may name.
+/// `pool` holds the chains the file may not redefine (the built-ins, for a
+/// user's chain file): their names are taken, and their plain chains may be
+/// named as a route's `fallback`.
 pub fn parse_chains(text: &str, origin: &str, pool: &[ChainSpec]) -> Result<Vec<ChainSpec>> {
     let raw: RawFile = toml::from_str(text).map_err(|e| {
         let line = e.span().map_or(1, |s| line_of(text, s.start));
@@ -634,6 +638,19 @@ pub fn parse_chains(text: &str, origin: &str, pool: &[ChainSpec]) -> Result<Vec<
                 format!(
                     "chain name {name:?}: use 1 to 64 letters, digits, '_', '-' or '.', \
                      starting with a letter or digit"
+                ),
+            );
+        }
+        if pool.iter().any(|c| c.name.as_str() == name) {
+            // A file chain that took a built-in's name would change what
+            // that name means in reports and gates without a word.
+            issues.push(
+                span.clone(),
+                format!(
+                    "chain name {name:?} is the name of a built-in chain, which a chain file \
+                     cannot replace; give yours a name of its own (for example \"{name}_custom\"); \
+                     built-in: {}",
+                    pool.iter().map(|c| c.name.as_str()).collect::<Vec<_>>().join(", ")
                 ),
             );
         }

@@ -29,10 +29,10 @@ use crate::error::{Error, Result};
 use crate::eval::{self, EvalSettings, Gain, Metric, SystemScores};
 use crate::ids::{ChainName, QueryId};
 use crate::index::ChainIndex;
-use crate::input::{self, Judgments, Post, Query, Run};
+use crate::input::{self, Judgments, LangCode, Post, Query, Run};
 use crate::report::model::{
-    ChainTiming, Cost, Counts, InputFile, PerQuery, QueryValues, Report, RoutingInfo, Settings,
-    SystemInfo, Timing, ToolInfo, SCHEMA_VERSION,
+    Basis, ChainTiming, Cost, Counts, Coverage, InputFile, PerQuery, QueryValues, Report,
+    RoutingInfo, Settings, SystemInfo, Timing, ToolInfo, SCHEMA_VERSION,
 };
 use crate::search;
 use crate::stats::StatSettings;
@@ -118,7 +118,7 @@ pub fn run(plan: &RunPlan, progress: &mut dyn FnMut(&str)) -> Result<BenchOutput
     let (judgments, mut warnings) = input::read_judgments(&plan.judgments)?;
     let queries = input::read_queries(&plan.queries)?;
     let posts = input::read_corpus(&plan.corpus)?;
-    eval::validate_settings(&judgments, &plan.options.eval)?;
+    check_settings(&plan.judgments, &judgments, &plan.options.eval)?;
     progress(&format!(
         "read {} posts, {} queries, {} judgments",
         posts.len(),
@@ -158,6 +158,7 @@ pub fn run(plan: &RunPlan, progress: &mut dyn FnMut(&str)) -> Result<BenchOutput
             name: analyzer.name().clone(),
             cost: Some(Cost::from(cost)),
             routing: routing_info(analyzer, &posts, post_det, &queries, query_det),
+            coverage: Coverage::default(),
         });
         runs.push((analyzer.name().clone(), outcome.run));
     }
@@ -285,7 +286,7 @@ pub fn score(plan: &ScorePlan, progress: &mut dyn FnMut(&str)) -> Result<BenchOu
     for (name, path) in &plan.runs {
         runs.push((name.clone(), input::read_run(path)?));
     }
-    eval::validate_settings(&judgments, &plan.options.eval)?;
+    check_settings(&plan.judgments, &judgments, &plan.options.eval)?;
     let mut inputs = vec![hash_input("judgments", &plan.judgments)?];
     if let Some(q) = &plan.queries {
         inputs.push(hash_input("queries", q)?);
@@ -311,8 +312,15 @@ pub fn score(plan: &ScorePlan, progress: &mut dyn FnMut(&str)) -> Result<BenchOu
             ));
         }
     }
-    let infos =
-        names.iter().map(|n| SystemInfo { name: n.clone(), cost: None, routing: None }).collect();
+    let infos = names
+        .iter()
+        .map(|n| SystemInfo {
+            name: n.clone(),
+            cost: None,
+            routing: None,
+            coverage: Coverage::default(),
+        })
+        .collect();
     let assembled = Assembly {
         command: "score",
         inputs,
@@ -331,6 +339,12 @@ pub fn score(plan: &ScorePlan, progress: &mut dyn FnMut(&str)) -> Result<BenchOu
     out.report.timing.total_seconds = started.elapsed().as_secs_f64();
     announce_warnings(&out.report, progress);
     Ok(out)
+}
+
+/// Check the evaluation settings against the judgments read from `path`
+/// ([`eval::validate_settings`]); a refusal names the file.
+fn check_settings(path: &Path, judgments: &Judgments, settings: &EvalSettings) -> Result<()> {
+    eval::validate_settings(judgments, settings).map_err(|e| Error::in_file(path, e.to_string()))
 }
 
 /// The evaluated queries that `queries` lacks, in the population's (byte)
@@ -466,6 +480,15 @@ struct Assembly<'a> {
 impl Assembly<'_> {
     fn finish(self, options: &EvalOptions) -> Result<BenchOutput> {
         let mut warnings = self.warnings;
+        let mut infos = self.infos;
+        // An evaluated query a system has no result for scores 0
+        // (metrics.md); say so per system, since a run file that answers 4 of
+        // 26 queries otherwise reads as a much worse system.
+        let kind = if self.command == "run" { "chain" } else { "run" };
+        for ((name, run), info) in self.runs.iter().zip(infos.iter_mut()) {
+            info.coverage = coverage(run, &self.population.evaluated);
+            warnings.extend(info.coverage.describe(kind, name.as_str()));
+        }
         let mut scores: Vec<(ChainName, SystemScores)> = Vec::new();
         for (name, run) in &self.runs {
             let s = eval::evaluate(
@@ -512,6 +535,7 @@ impl Assembly<'_> {
             },
             command: self.command.to_string(),
             inputs: self.inputs,
+            basis: Some(basis(self.judgments, self.queries)?),
             settings: Settings {
                 metrics: options.metrics.iter().map(Metric::key).collect(),
                 relevant_from: options.eval.relevant_from,
@@ -536,7 +560,7 @@ impl Assembly<'_> {
                 queries_skipped: self.population.skipped.len(),
                 judgments: self.judgments.len(),
             },
-            systems: self.infos,
+            systems: infos,
             summary: computed.summaries,
             per_query,
             comparisons: computed.comparisons,
@@ -548,6 +572,64 @@ impl Assembly<'_> {
             timing: Timing::default(),
         };
         Ok(BenchOutput { report, runs: self.runs })
+    }
+}
+
+/// What the judgments and queries say, whatever their files' bytes
+/// ([`Basis`]): a canonical text of one JSON array per judgment and per
+/// query, in byte order of the ids (tags sorted), hashed.
+fn basis(judgments: &Judgments, queries: Option<&[Query]>) -> Result<Basis> {
+    let mut canonical = String::new();
+    for (q, posts) in judgments.queries() {
+        for (p, g) in posts {
+            canonical.push_str(&json_line(&(q, p, g))?);
+        }
+    }
+    let judged = judgments.queries().map(|(q, posts)| (q.clone(), posts.clone())).collect();
+    let mut by_id: BTreeMap<&QueryId, String> = BTreeMap::new();
+    for q in queries.unwrap_or_default() {
+        let mut tags: Vec<&str> = q.tags.iter().map(String::as_str).collect();
+        tags.sort_unstable();
+        by_id.insert(
+            &q.id,
+            json_line(&(&q.id, &q.text, q.lang.as_ref().map(LangCode::as_str), tags))?,
+        );
+    }
+    let queries_sha256 = queries.map(|_| {
+        input::sha256_hex(by_id.values().map(String::as_str).collect::<String>().as_bytes())
+    });
+    Ok(Basis {
+        judgments_sha256: input::sha256_hex(canonical.as_bytes()),
+        queries_sha256,
+        judgments: judged,
+        queries: by_id
+            .into_iter()
+            .map(|(id, line)| {
+                let hash = input::sha256_hex(line.as_bytes());
+                (id.clone(), hash.get(..16).unwrap_or(&hash).to_string())
+            })
+            .collect(),
+    })
+}
+
+/// `value` as one line of JSON, with its line end.
+fn json_line<T: serde::Serialize>(value: &T) -> Result<String> {
+    serde_json::to_string(value)
+        .map(|line| line + "\n")
+        .map_err(|e| Error::usage(format!("writing the inputs' canonical text: {e}")))
+}
+
+/// Which of the `evaluated` queries `run` returned at least one post for.
+fn coverage(run: &Run, evaluated: &[QueryId]) -> Coverage {
+    let unanswered: Vec<QueryId> = evaluated
+        .iter()
+        .filter(|q| run.by_query.get(*q).is_none_or(Vec::is_empty))
+        .cloned()
+        .collect();
+    Coverage {
+        evaluated: evaluated.len(),
+        answered: evaluated.len() - unanswered.len(),
+        unanswered,
     }
 }
 

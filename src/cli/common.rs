@@ -109,17 +109,6 @@ impl EvalFlags {
     }
 }
 
-/// Refuse an output directory that is an existing file.
-pub fn check_out_dir(out: &Path) -> Result<(), Error> {
-    if out.exists() && !out.is_dir() {
-        return Err(Error::usage(format!(
-            "--out {}: expected a directory, found a file",
-            out.display()
-        )));
-    }
-    Ok(())
-}
-
 /// The bundled demo bench, relative to the repository root.
 pub const DEMO_CORPUS: &str = "corpora/demo/posts.jsonl";
 /// Demo queries.

@@ -10,6 +10,7 @@ use clap::Args;
 use postassay::error::Error;
 use postassay::eval;
 use postassay::gate::{self, GateSettings, Thresholds};
+use postassay::ids::ChainName;
 use postassay::report::write_atomic;
 
 /// Exit code of a gate that found a regression.
@@ -47,6 +48,11 @@ pub struct GateArgs {
     /// settings (refused by default; the differences become warnings).
     #[arg(long)]
     allow_different_inputs: bool,
+    /// A system of the baseline that may be missing from the current report
+    /// (comma-separated, repeatable). Without it a baseline system the
+    /// current report lacks fails the gate.
+    #[arg(long = "allow-missing", value_name = "NAME")]
+    allow_missing: Vec<String>,
     /// Also write the checks as JUnit XML to FILE (one test case per system
     /// and metric).
     #[arg(long, value_name = "FILE")]
@@ -88,5 +94,13 @@ fn settings(args: &GateArgs) -> Result<GateSettings, Error> {
         alpha: args.alpha,
         allow_different_inputs: args.allow_different_inputs,
         metrics,
+        allow_missing: args
+            .allow_missing
+            .iter()
+            .flat_map(|list| list.split(','))
+            .map(str::trim)
+            .filter(|n| !n.is_empty())
+            .map(ChainName::from)
+            .collect(),
     })
 }

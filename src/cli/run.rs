@@ -11,9 +11,7 @@ use postassay::bench::{self, RunDiagnostics, RunPlan};
 use postassay::error::Error;
 use postassay::report;
 
-use super::common::{
-    check_out_dir, resolve_data_dir, ChainFlags, EvalFlags, InputFlags, DEFAULT_TOP,
-};
+use super::common::{resolve_data_dir, ChainFlags, EvalFlags, InputFlags, DEFAULT_TOP};
 
 #[derive(Debug, Args)]
 pub struct RunArgs {
@@ -43,7 +41,7 @@ pub struct RunArgs {
 
 pub fn execute(args: RunArgs) -> anyhow::Result<ExitCode> {
     let plan = plan(&args)?;
-    check_out_dir(&args.eval.out)?;
+    report::out_dir::check_out_dir(&args.eval.out)?;
     let mut progress = args.eval.progress();
     let out = bench::run(&plan, &mut progress)?;
     let runs: Vec<_> = out.runs.iter().map(|(n, r)| (n.clone(), r)).collect();

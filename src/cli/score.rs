@@ -10,7 +10,7 @@ use postassay::error::Error;
 use postassay::ids::ChainName;
 use postassay::report;
 
-use super::common::{check_out_dir, EvalFlags};
+use super::common::EvalFlags;
 
 /// Where `score` writes when `--out` is not given: not `reports/` itself,
 /// which holds the committed sample of the demo `run` (README) that a
@@ -36,7 +36,7 @@ pub struct ScoreArgs {
 
 pub fn execute(args: ScoreArgs) -> anyhow::Result<ExitCode> {
     let plan = plan(&args)?;
-    check_out_dir(&args.eval.out)?;
+    report::out_dir::check_out_dir(&args.eval.out)?;
     let mut progress = args.eval.progress();
     // The report's warnings come through `progress` (bench::score).
     let out = bench::score(&plan, &mut progress)?;

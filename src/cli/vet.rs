@@ -13,7 +13,7 @@ use postassay::diagnose::{self, render, DiagnosePlan, FreqSource, Sections};
 use postassay::error::Error;
 use postassay::input::LangCode;
 
-use super::common::{check_out_dir, resolve_data_dir, DEFAULT_TOP, DEMO_CORPUS};
+use super::common::{resolve_data_dir, DEFAULT_TOP, DEMO_CORPUS};
 
 #[derive(Debug, Args)]
 pub struct VetArgs {
@@ -75,7 +75,7 @@ pub const DEFAULT_FREQ_LIST: &str = "tests/fixtures/analysis/hashtag/wordfreq_en
 pub fn execute(args: VetArgs) -> anyhow::Result<ExitCode> {
     let plan = plan(&args)?;
     if let Some(out) = &args.out {
-        check_out_dir(out)?;
+        postassay::report::out_dir::check_out_dir(out)?;
     }
     let quiet = args.quiet;
     let mut progress = move |line: &str| {

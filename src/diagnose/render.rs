@@ -2,9 +2,9 @@
 //! `diagnostics.json` (the model itself) and one CSV per table. Nothing here
 //! computes a figure; shares are only formatted.
 //!
-//! Place in the data flow: the report end of `diagnose`. Files are written
-//! atomically with [`write_atomic`], all rendered before the first is
-//! written. CSV numbers are the shortest text that parses back to the same
+//! Place in the data flow: the report end of `diagnose`. Files are all
+//! rendered before any is written, then swapped in as a whole directory
+//! ([`replace_out_dir`]). CSV numbers are the shortest text that parses back to the same
 //! f64 ([`format_shortest`]); an absent value is an empty field. Markdown
 //! uses fixed precision: 4 decimals for UI, 3 significant digits in
 //! scientific notation for OI and SW (their values are small: pairs across
@@ -25,7 +25,7 @@ use super::{ConflationResult, Diagnostics, RoutingResult, SegmentationResult, Un
 use crate::error::{Error, Result};
 use crate::ids::ChainName;
 use crate::input::format_shortest;
-use crate::report::write_atomic;
+use crate::report::out_dir::{replace_out_dir, OutputFile};
 
 /// File names written into `--out`.
 pub const MARKDOWN_FILE: &str = "diagnostics.md";
@@ -42,6 +42,10 @@ pub const SEGMENTATION_CSV: &str = "diagnostics-segmentation.csv";
 /// Word segmentation of scripts written without spaces.
 pub const UNSPACED_CSV: &str = "diagnostics-unspaced.csv";
 
+/// Every file written into `--out`.
+pub const FILES: [&str; 6] =
+    [MARKDOWN_FILE, JSON_FILE, CONFLATION_CSV, ROUTING_CSV, CONFUSION_CSV, SEGMENTATION_CSV];
+
 /// Every output file, rendered: `(file name, bytes)`.
 pub fn render_all(d: &Diagnostics) -> Result<Vec<(&'static str, Vec<u8>)>> {
     Ok(vec![
@@ -55,18 +59,14 @@ pub fn render_all(d: &Diagnostics) -> Result<Vec<(&'static str, Vec<u8>)>> {
     ])
 }
 
-/// Write every output file into `out` (created when missing); returns the
-/// paths written.
+/// Make `out` hold exactly the output files (created when missing; the
+/// files of an earlier `vet` there are replaced, see
+/// [`replace_out_dir`]); returns the paths written.
 pub fn write_outputs(out: &Path, d: &Diagnostics) -> Result<Vec<PathBuf>> {
-    let files = render_all(d)?;
-    std::fs::create_dir_all(out).map_err(|e| Error::io(out, e))?;
-    let mut written = Vec::with_capacity(files.len());
-    for (name, bytes) in files {
-        let path = out.join(name);
-        write_atomic(&path, &bytes)?;
-        written.push(path);
-    }
-    Ok(written)
+    let files: Vec<OutputFile> =
+        render_all(d)?.into_iter().map(|(name, bytes)| (PathBuf::from(name), bytes)).collect();
+    replace_out_dir(out, &files)?;
+    Ok(files.iter().map(|(name, _)| out.join(name)).collect())
 }
 
 /// `diagnostics.json`: the model, pretty-printed, with a final newline.

@@ -92,13 +92,23 @@ impl EvalSettings {
 
 /// Check settings against the judgments: a threshold of 0 is a usage error,
 /// and so is a `max_grade` below a grade that occurs (the message names both
-/// grades and where the higher one occurs).
+/// grades and where the higher one occurs). So is a threshold that no grade
+/// can reach (above `max_grade`, or above the highest grade of the
+/// judgments): no post would be relevant and no query evaluated, and a
+/// report on no query would look like an answer.
 pub fn validate_settings(judgments: &Judgments, settings: &EvalSettings) -> Result<()> {
-    if settings.relevant_from == 0 {
+    let t = settings.relevant_from;
+    if t == 0 {
         return Err(Error::usage("--relevant-from must be an integer >= 1, found 0"));
     }
+    if let Some(max) = settings.max_grade.filter(|max| t > *max) {
+        return Err(Error::usage(format!(
+            "--relevant-from {t} is above --max-grade {max}: no grade of the scale would count \
+             as relevant; give a grade from 1 to {max}"
+        )));
+    }
+    let highest = judgments.max_grade();
     if let Some(max) = settings.max_grade {
-        let highest = judgments.max_grade();
         if highest > max {
             // Name the first (query, post) in byte order that has the highest grade.
             let place = judgments
@@ -109,6 +119,19 @@ pub fn validate_settings(judgments: &Judgments, settings: &EvalSettings) -> Resu
                 .unwrap_or_default();
             return Err(Error::usage(format!("--max-grade {max} is below grade {highest}{place}")));
         }
+    }
+    if t > highest {
+        return Err(Error::usage(if highest == 0 {
+            "the judgments hold no grade above 0: no post is relevant to any query, so nothing \
+             can be evaluated"
+                .to_string()
+        } else {
+            format!(
+                "--relevant-from {t} is above the highest grade in the judgments ({highest}): no \
+                 post would count as relevant and no query would be evaluated; give a grade \
+                 from 1 to {highest}"
+            )
+        }));
     }
     Ok(())
 }
@@ -465,6 +488,27 @@ mod tests {
             let s = EvalSettings { max_grade: ok, ..EvalSettings::default() };
             assert!(validate_settings(&j, &s).is_ok());
         }
+        // A threshold no grade reaches (issue 12, item 4): above the scale,
+        // or above every grade judged.
+        let above_scale = EvalSettings { relevant_from: 3, max_grade: Some(2), ..low };
+        assert_eq!(
+            validate_settings(&Judgments::from_triples([("q1", "d1", 1)]), &above_scale)
+                .unwrap_err()
+                .to_string(),
+            "--relevant-from 3 is above --max-grade 2: no grade of the scale would count as \
+             relevant; give a grade from 1 to 2"
+        );
+        assert_eq!(
+            validate_settings(&j, &settings(4)).unwrap_err().to_string(),
+            "--relevant-from 4 is above the highest grade in the judgments (3): no post would \
+             count as relevant and no query would be evaluated; give a grade from 1 to 3"
+        );
+        assert!(validate_settings(&j, &settings(3)).is_ok());
+        let zeros = Judgments::from_triples([("q1", "d1", 0)]);
+        assert!(validate_settings(&zeros, &settings(1))
+            .unwrap_err()
+            .to_string()
+            .contains("no grade above 0"));
     }
 
     #[test]

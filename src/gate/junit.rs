@@ -1,8 +1,10 @@
 //! The gate's JUnit XML, for CI systems that show test results: one test
 //! suite, one test case per system × metric (class `postassay.gate.SYSTEM`,
 //! name the metric key), a `failure` element with the message for each
-//! regression, `skipped` for diagnostic metrics, and the warnings in
-//! `system-out`. It renders a [`GateOutcome`] and decides nothing.
+//! regression, `skipped` for diagnostic metrics, one case named `present`
+//! per baseline system missing from the current report (a `failure`, or
+//! `skipped` when allowed), and in `system-out` the chains whose definition
+//! changed and the warnings. It renders a [`GateOutcome`] and decides nothing.
 //!
 //! The layout is the de-facto JUnit XML one most CI systems read
 //! (`testsuites` › `testsuite` › `testcase` › `failure`/`skipped`; common
@@ -10,14 +12,15 @@
 
 use std::fmt::Write;
 
-use super::markdown::{fixed, limit_text, signed};
+use super::markdown::{definition_change_lines, fixed, limit_text, signed};
 use super::{Check, GateOutcome, Verdict};
 
 /// Render the JUnit XML document.
 pub fn render_junit(outcome: &GateOutcome) -> String {
-    let tests = outcome.checks.len();
-    let failures = outcome.regressions().count();
-    let skipped = outcome.checks.iter().filter(|c| c.verdict == Verdict::NotGated).count();
+    let tests = outcome.checks.len() + outcome.missing.len();
+    let failures = outcome.regressions().count() + outcome.missing_failures().count();
+    let skipped = outcome.checks.iter().filter(|c| c.verdict == Verdict::NotGated).count()
+        + outcome.missing.iter().filter(|m| m.allowed).count();
     let counts = format!(r#"tests="{tests}" failures="{failures}" errors="0" skipped="{skipped}""#);
     let mut s = String::new();
     // `write!` into a String cannot fail.
@@ -66,8 +69,31 @@ pub fn render_junit(outcome: &GateOutcome) -> String {
             }
         }
     }
-    if !outcome.warnings.is_empty() {
-        let text: Vec<String> = outcome.warnings.iter().map(|w| format!("warning: {w}")).collect();
+    // A missing system is one test case of its own, named `present`.
+    for m in &outcome.missing {
+        let _ = writeln!(
+            s,
+            r#"    <testcase classname="postassay.gate.{}" name="present" time="0">"#,
+            escape(m.system.as_str())
+        );
+        let _ = if m.allowed {
+            writeln!(s, r#"      <skipped message="missing from the current report, allowed"/>"#)
+        } else {
+            writeln!(
+                s,
+                r#"      <failure type="missing" message="{} is in the baseline but missing from the current report"/>"#,
+                escape(m.system.as_str())
+            )
+        };
+        let _ = writeln!(s, "    </testcase>");
+    }
+    let mut notes: Vec<String> = definition_change_lines(outcome)
+        .into_iter()
+        .map(|l| format!("definition changed: {}", l.replace('`', "")))
+        .collect();
+    notes.extend(outcome.warnings.iter().map(|w| format!("warning: {w}")));
+    if !notes.is_empty() {
+        let text = notes;
         let _ = writeln!(s, "    <system-out>{}</system-out>", escape_text(&text.join("\n")));
     }
     let _ = writeln!(s, "  </testsuite>");

@@ -32,6 +32,17 @@ pub fn render_markdown(outcome: &GateOutcome) -> String {
         "A drop beyond its limit fails; a metric without a limit may not drop at all.".to_string()
     };
     let _ = writeln!(s, "{rule}\n");
+    if !outcome.changed_definitions.is_empty() {
+        let _ = writeln!(
+            s,
+            "Chains whose definition changed (their rows compare the baseline's chain with the \
+             current one of the same name):\n"
+        );
+        for line in definition_change_lines(outcome) {
+            let _ = writeln!(s, "- {line}");
+        }
+        s.push('\n');
+    }
     let _ = writeln!(
         s,
         "| system | metric | baseline | current | Δ | threshold | p (randomization) | p (t-test) | verdict |"
@@ -58,6 +69,22 @@ pub fn render_markdown(outcome: &GateOutcome) -> String {
             verdict
         );
     }
+    if !outcome.missing.is_empty() {
+        let _ = writeln!(s, "\nSystems of the baseline missing from the current report:\n");
+        for m in &outcome.missing {
+            let name = code(m.system.as_str());
+            let _ = if m.allowed {
+                writeln!(s, "- {name}: allowed by `--allow-missing`")
+            } else {
+                writeln!(
+                    s,
+                    "- {name}: **MISSING**, which fails the gate (a guarded system is gone); if \
+                     removing it is intended, give `--allow-missing {}` and update the baseline",
+                    m.system
+                )
+            };
+        }
+    }
     if !outcome.warnings.is_empty() {
         let _ = writeln!(s, "\nWarnings:\n");
         for w in &outcome.warnings {
@@ -66,6 +93,25 @@ pub fn render_markdown(outcome: &GateOutcome) -> String {
     }
     let _ = writeln!(s, "\n{}", outcome.verdict_line());
     s
+}
+
+/// One line per changed part of a chain's definition: `` `stemmed` steps:
+/// baseline `…`; current `…` ``.
+pub(super) fn definition_change_lines(outcome: &GateOutcome) -> Vec<String> {
+    outcome
+        .changed_definitions
+        .iter()
+        .flat_map(|d| {
+            d.parts.iter().map(move |(part, b, c)| {
+                format!(
+                    "{} {part}: baseline {}; current {}",
+                    code(d.system.as_str()),
+                    code(b),
+                    code(c)
+                )
+            })
+        })
+        .collect()
 }
 
 /// A number with the table's fixed precision.
@@ -139,6 +185,8 @@ mod tests {
             baseline_path: PathBuf::from("base/report.json"),
             current_path: PathBuf::from("cur/report.json"),
             checks,
+            missing: Vec::new(),
+            changed_definitions: Vec::new(),
             warnings,
             require_significance: false,
             alpha: 0.05,

@@ -27,16 +27,27 @@
 //!   for information; the decision uses the randomization test, as the
 //!   reports' own significance marks do. No multiple-comparison adjustment
 //!   is applied: adjusting would make the gate more lenient;
+//! - a system of the baseline that the current report lacks fails the gate
+//!   (a guarded chain that disappears is not a pass), unless the caller
+//!   allows it by name (`allow_missing`); a system only the current report
+//!   has is a warning, so adding a chain never breaks the build;
 //! - `unjudged@k` is a diagnostic of the judgments, not of ranking quality:
 //!   it is shown but never gated (and a rise is named in a warning, since it
 //!   means the current chains retrieve posts nobody judged: pool and judge
 //!   them).
 //!
-//! Reports resting on different judgments or queries (their SHA-256 in
-//! `inputs`), or scored with a different relevance threshold, gain or
-//! highest grade, measure different things: the gate refuses them unless
-//! `allow_different_inputs` is set, in which case the differences become
-//! warnings.
+//! A chain whose definition differs between the reports (a step, a
+//! stemming language, a routing setting) is named with what changed: that
+//! is often the point of the change under review, so it is shown, not
+//! refused.
+//!
+//! Reports resting on different judgments or queries, or scored with a
+//! different relevance threshold, gain or highest grade, measure different
+//! things: the gate refuses them unless `allow_different_inputs` is set, in
+//! which case the differences become warnings. Judgments and queries are
+//! compared by what they say (the reports' `basis`), not by the bytes of
+//! their files, and a refusal says what changed (pairs added, grades
+//! changed, queries added …).
 
 mod junit;
 mod markdown;
@@ -48,8 +59,9 @@ use serde::Deserialize;
 
 use crate::error::{Error, Result};
 use crate::eval::Metric;
-use crate::ids::{ChainName, QueryId};
+use crate::ids::{ChainName, PostId, QueryId};
 use crate::report::model::{Report, SCHEMA_VERSION};
+use crate::report::text::{chain_definition, definition_parts};
 use crate::stats;
 
 pub use junit::render_junit;
@@ -200,6 +212,9 @@ pub struct GateSettings {
     pub allow_different_inputs: bool,
     /// Gate only these metric keys (canonical); `None`: every common metric.
     pub metrics: Option<Vec<String>>,
+    /// Systems of the baseline that may be absent from the current report
+    /// (`--allow-missing`); any other absent one fails the gate.
+    pub allow_missing: Vec<ChainName>,
 }
 
 impl Default for GateSettings {
@@ -210,6 +225,7 @@ impl Default for GateSettings {
             alpha: DEFAULT_ALPHA,
             allow_different_inputs: false,
             metrics: None,
+            allow_missing: Vec::new(),
         }
     }
 }
@@ -270,36 +286,76 @@ pub struct InputDifference {
     /// What differs: an input role (`judgments`, `queries`) or a setting
     /// (`relevant_from`, `gain`, `max_grade`).
     pub what: String,
-    /// The baseline's side (a hash with its path, or a setting's value).
-    pub baseline: String,
-    /// The current report's side.
-    pub current: String,
+    /// How: for a setting `baseline 1; current 2`; for judgments and
+    /// queries what was added, removed or changed, with the files.
+    pub how: String,
 }
 
 /// The differences in judgments, queries and scoring settings between two
-/// reports, in a fixed order (roles, then settings).
-pub fn input_differences(baseline: &Report, current: &Report) -> Vec<InputDifference> {
+/// reports, in a fixed order (judgments, queries, then settings), and notes
+/// on files whose bytes differ while what they say does not.
+///
+/// Judgments and queries are compared by what they say (each report's
+/// [`Basis`](crate::report::model::Basis)), so the same judgments saved
+/// with a BOM, CRLF line ends, in the four-column layout or with a line
+/// repeated are the same inputs; reports without a basis (older versions)
+/// are compared by file hash.
+pub fn input_differences(
+    baseline: &Report,
+    current: &Report,
+) -> (Vec<InputDifference>, Vec<String>) {
     let mut out = Vec::new();
-    let describe = |r: &Report, role: &str| -> String {
-        let found: Vec<String> = r
-            .inputs
-            .iter()
-            .filter(|i| i.role == role)
-            .map(|i| format!("sha256 {} ({})", short_hash(&i.sha256), i.path))
-            .collect();
-        if found.is_empty() {
-            "none".to_string()
-        } else {
-            found.join(", ")
-        }
+    let mut notes = Vec::new();
+    let files = |role: &str| {
+        format!(
+            "baseline {}; current {}",
+            describe_files(baseline, role),
+            describe_files(current, role)
+        )
     };
-    for role in SAME_INPUT_ROLES {
-        if input_hashes(baseline, role) != input_hashes(current, role) {
-            out.push(InputDifference {
-                what: role.to_string(),
-                baseline: describe(baseline, role),
-                current: describe(current, role),
-            });
+    let same_bytes = |role: &str| input_hashes(baseline, role) == input_hashes(current, role);
+    match (&baseline.basis, &current.basis) {
+        (Some(b), Some(c)) => {
+            if b.judgments_sha256 != c.judgments_sha256 {
+                out.push(InputDifference {
+                    what: "judgments".to_string(),
+                    how: format!(
+                        "{} ({})",
+                        judgment_changes(&b.judgments, &c.judgments),
+                        files("judgments")
+                    ),
+                });
+            } else if !same_bytes("judgments") {
+                notes.push(format!(
+                    "the judgments files differ in bytes but hold the same judgments ({})",
+                    files("judgments")
+                ));
+            }
+            match (&b.queries_sha256, &c.queries_sha256) {
+                (Some(bq), Some(cq)) if bq != cq => out.push(InputDifference {
+                    what: "queries".to_string(),
+                    how: format!(
+                        "{} ({})",
+                        query_changes(&b.queries, &c.queries),
+                        files("queries")
+                    ),
+                }),
+                (Some(_), Some(_)) if !same_bytes("queries") => notes.push(format!(
+                    "the queries files differ in bytes but hold the same queries ({})",
+                    files("queries")
+                )),
+                (Some(_), None) | (None, Some(_)) => {
+                    out.push(InputDifference { what: "queries".to_string(), how: files("queries") })
+                }
+                _ => {}
+            }
+        }
+        _ => {
+            for role in SAME_INPUT_ROLES {
+                if !same_bytes(role) {
+                    out.push(InputDifference { what: role.to_string(), how: files(role) });
+                }
+            }
         }
     }
     let (b, c) = (&baseline.settings, &current.settings);
@@ -310,10 +366,102 @@ pub fn input_differences(baseline: &Report, current: &Report) -> Vec<InputDiffer
     ];
     for (what, bv, cv) in settings {
         if bv != cv {
-            out.push(InputDifference { what: what.to_string(), baseline: bv, current: cv });
+            out.push(InputDifference {
+                what: what.to_string(),
+                how: format!("baseline {bv}; current {cv}"),
+            });
         }
     }
-    out
+    (out, notes)
+}
+
+/// A report's files of one role: `sha256 0123456789ab (path)`, or `none`.
+fn describe_files(r: &Report, role: &str) -> String {
+    let found: Vec<String> = r
+        .inputs
+        .iter()
+        .filter(|i| i.role == role)
+        .map(|i| format!("sha256 {} ({})", short_hash(&i.sha256), i.path))
+        .collect();
+    if found.is_empty() {
+        "none".to_string()
+    } else {
+        found.join(", ")
+    }
+}
+
+/// How many examples of each kind of change a message names.
+const EXAMPLES: usize = 3;
+
+/// `items` counted, with the first few named: `2 added (q9 p1 = 2, q9 p4 = 0)`.
+fn counted(what: &str, items: &[String]) -> Option<String> {
+    if items.is_empty() {
+        return None;
+    }
+    let mut named: Vec<&str> = items.iter().take(EXAMPLES).map(String::as_str).collect();
+    if items.len() > EXAMPLES {
+        named.push("…");
+    }
+    Some(format!("{} {what} ({})", items.len(), named.join(", ")))
+}
+
+/// How the judgments changed: pairs added, removed, grades changed.
+fn judgment_changes(
+    b: &BTreeMap<QueryId, BTreeMap<PostId, u32>>,
+    c: &BTreeMap<QueryId, BTreeMap<PostId, u32>>,
+) -> String {
+    let flat = |m: &BTreeMap<QueryId, BTreeMap<PostId, u32>>| -> BTreeMap<(QueryId, PostId), u32> {
+        m.iter()
+            .flat_map(|(q, posts)| posts.iter().map(move |(p, g)| ((q.clone(), p.clone()), *g)))
+            .collect()
+    };
+    let (b, c) = (flat(b), flat(c));
+    let added: Vec<String> = c
+        .iter()
+        .filter(|(k, _)| !b.contains_key(k))
+        .map(|((q, p), g)| format!("{q} {p} = {g}"))
+        .collect();
+    let removed: Vec<String> = b
+        .iter()
+        .filter(|(k, _)| !c.contains_key(k))
+        .map(|((q, p), g)| format!("{q} {p} = {g}"))
+        .collect();
+    let changed: Vec<String> = b
+        .iter()
+        .filter_map(|(k, g)| {
+            c.get(k).filter(|h| *h != g).map(|h| format!("{} {}: {g} → {h}", k.0, k.1))
+        })
+        .collect();
+    let parts: Vec<String> = [
+        counted(if added.len() == 1 { "pair added" } else { "pairs added" }, &added),
+        counted(if removed.len() == 1 { "pair removed" } else { "pairs removed" }, &removed),
+        counted(if changed.len() == 1 { "grade changed" } else { "grades changed" }, &changed),
+    ]
+    .into_iter()
+    .flatten()
+    .collect();
+    parts.join(", ")
+}
+
+/// How the queries changed: added, removed, changed in text, language or tags.
+fn query_changes(b: &BTreeMap<QueryId, String>, c: &BTreeMap<QueryId, String>) -> String {
+    let ids = |keep: &dyn Fn(&QueryId, &String) -> bool,
+               from: &BTreeMap<QueryId, String>|
+     -> Vec<String> {
+        from.iter().filter(|(q, h)| keep(q, h)).map(|(q, _)| q.to_string()).collect()
+    };
+    let added = ids(&|q, _| !b.contains_key(q), c);
+    let removed = ids(&|q, _| !c.contains_key(q), b);
+    let changed = ids(&|q, h| c.get(q).is_some_and(|x| x != h), b);
+    let parts: Vec<String> = [
+        counted("added", &added),
+        counted("removed", &removed),
+        counted("changed in text, language or tags", &changed),
+    ]
+    .into_iter()
+    .flatten()
+    .collect();
+    parts.join(", ")
 }
 
 /// The SHA-256 of a report's inputs of one role, sorted.
@@ -389,6 +537,65 @@ impl Check {
     }
 }
 
+/// A system of the baseline report that the current report lacks.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct MissingSystem {
+    /// Its name.
+    pub system: ChainName,
+    /// Whether the caller allowed it to go (`--allow-missing`); if not, the
+    /// gate fails.
+    pub allowed: bool,
+}
+
+/// A chain whose definition differs between the two reports (often the
+/// point of the change under review: shown, never refused).
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct DefinitionChange {
+    /// The chain.
+    pub system: ChainName,
+    /// Each part that differs ([`definition_parts`]): the part, the
+    /// baseline's settings and the current ones (`none` where a part is
+    /// absent).
+    pub parts: Vec<(String, String, String)>,
+}
+
+/// The chains of both reports whose definitions differ (descriptions
+/// aside), in `systems` order. Reports of `score` record no definitions.
+fn definition_changes(b: &Report, c: &Report, systems: &[ChainName]) -> Vec<DefinitionChange> {
+    let without_description = |v: &serde_json::Value| {
+        let mut v = v.clone();
+        if let Some(map) = v.as_object_mut() {
+            map.remove("description");
+        }
+        v
+    };
+    let mut out = Vec::new();
+    for system in systems {
+        let (Some(bd), Some(cd)) =
+            (chain_definition(b, system.as_str()), chain_definition(c, system.as_str()))
+        else {
+            continue;
+        };
+        if without_description(bd) == without_description(cd) {
+            continue;
+        }
+        let (bp, cp) = (definition_parts(bd), definition_parts(cd));
+        let mut labels: Vec<&String> = bp.iter().map(|(l, _)| l).collect();
+        labels.extend(cp.iter().map(|(l, _)| l).filter(|l| !bp.iter().any(|(x, _)| x == *l)));
+        let text = |parts: &[(String, String)], label: &str| {
+            parts.iter().find(|(l, _)| l == label).map_or("none".to_string(), |(_, t)| t.clone())
+        };
+        let parts = labels
+            .into_iter()
+            .filter(|l| l.as_str() != "description")
+            .map(|l| (l.clone(), text(&bp, l), text(&cp, l)))
+            .filter(|(_, x, y)| x != y)
+            .collect();
+        out.push(DefinitionChange { system: system.clone(), parts });
+    }
+    out
+}
+
 /// Everything the gate found, ready to render.
 #[derive(Debug, Clone, PartialEq)]
 pub struct GateOutcome {
@@ -398,6 +605,11 @@ pub struct GateOutcome {
     pub current_path: PathBuf,
     /// Checks in the current report's system order, then its metric order.
     pub checks: Vec<Check>,
+    /// Systems of the baseline absent from the current report, in the
+    /// baseline's order.
+    pub missing: Vec<MissingSystem>,
+    /// Chains of both reports whose definition changed.
+    pub changed_definitions: Vec<DefinitionChange>,
     /// Systems or metrics present in one report only, differences allowed
     /// through, and other notes; never failures.
     pub warnings: Vec<String>,
@@ -417,9 +629,14 @@ impl GateOutcome {
         self.checks.iter().filter(|c| c.verdict == Verdict::Regression)
     }
 
-    /// True when no check failed.
+    /// The systems whose absence fails the gate.
+    pub fn missing_failures(&self) -> impl Iterator<Item = &MissingSystem> {
+        self.missing.iter().filter(|m| !m.allowed)
+    }
+
+    /// True when no check failed and no guarded system is missing.
     pub fn passed(&self) -> bool {
-        self.regressions().next().is_none()
+        self.regressions().next().is_none() && self.missing_failures().next().is_none()
     }
 
     /// The one-line verdict (Markdown), e.g. `**PASS**: no regression in 14
@@ -428,8 +645,20 @@ impl GateOutcome {
         let gated = self.checks.iter().filter(|c| c.verdict != Verdict::NotGated).count();
         let checks = plural(gated, "check", "checks");
         let failed: Vec<&Check> = self.regressions().collect();
+        let gone: Vec<String> =
+            self.missing_failures().map(|m| markdown::code(m.system.as_str())).collect();
+        let gone_text = (!gone.is_empty()).then(|| {
+            format!(
+                "{} of the baseline missing from the current report: {}",
+                plural(gone.len(), "system", "systems"),
+                gone.join(", ")
+            )
+        });
         if failed.is_empty() {
-            return format!("**PASS**: no regression in {checks}.");
+            return match gone_text {
+                None => format!("**PASS**: no regression in {checks}."),
+                Some(g) => format!("**FAIL**: {g}; no regression in {checks}."),
+            };
         }
         const NAMED: usize = 5;
         let mut named: Vec<String> = failed
@@ -449,7 +678,8 @@ impl GateOutcome {
             named.push(format!("and {} more", failed.len() - NAMED));
         }
         format!(
-            "**FAIL**: {} in {checks}: {}.",
+            "**FAIL**: {}{} in {checks}: {}.",
+            gone_text.map(|g| format!("{g}; ")).unwrap_or_default(),
             plural(failed.len(), "regression", "regressions"),
             named.join(", ")
         )
@@ -480,12 +710,11 @@ pub fn run_gate(
     let (b, c) = (&baseline.report, &current.report);
     let mut warnings = Vec::new();
 
-    let differences = input_differences(b, c);
+    let (differences, notes) = input_differences(b, c);
+    warnings.extend(notes);
     if !differences.is_empty() {
-        let lines: Vec<String> = differences
-            .iter()
-            .map(|d| format!("{}: baseline {}; current {}", d.what, d.baseline, d.current))
-            .collect();
+        let lines: Vec<String> =
+            differences.iter().map(|d| format!("{}: {}", d.what, d.how)).collect();
         if !settings.allow_different_inputs {
             return Err(Error::usage(format!(
                 "the reports were not built on the same inputs, so their numbers are not \
@@ -512,7 +741,7 @@ pub fn run_gate(
     }
 
     let metrics = gated_metrics(b, c, settings, &mut warnings)?;
-    let systems = common_systems(b, c, &mut warnings);
+    let (systems, missing) = common_systems(b, c, &settings.allow_missing, &mut warnings)?;
     let mut checks = Vec::new();
     for system in &systems {
         for metric in &metrics {
@@ -567,7 +796,7 @@ pub fn run_gate(
             });
         }
     }
-    if checks.is_empty() {
+    if checks.is_empty() && missing.iter().all(|m| m.allowed) {
         return Err(Error::usage(format!(
             "nothing to compare: no system and metric appear in both {} and {}",
             baseline.path.display(),
@@ -586,7 +815,9 @@ pub fn run_gate(
     Ok(GateOutcome {
         baseline_path: baseline.path.clone(),
         current_path: current.path.clone(),
+        changed_definitions: definition_changes(b, c, &systems),
         checks,
+        missing,
         warnings,
         require_significance: settings.require_significance,
         alpha: settings.alpha,
@@ -647,19 +878,42 @@ fn gated_metrics(
     Ok(out)
 }
 
-/// Systems of both reports, in the current report's order; the others
-/// become warnings.
-fn common_systems(b: &Report, c: &Report, warnings: &mut Vec<String>) -> Vec<ChainName> {
+/// Systems of both reports, in the current report's order, and the systems
+/// of the baseline the current report lacks (each allowed to go or not).
+/// Systems only the current report has become warnings. An `allowed` name
+/// that is no system of the baseline is a usage error (a typo would
+/// otherwise allow nothing).
+fn common_systems(
+    b: &Report,
+    c: &Report,
+    allowed: &[ChainName],
+    warnings: &mut Vec<String>,
+) -> Result<(Vec<ChainName>, Vec<MissingSystem>)> {
     let names =
         |r: &Report| -> Vec<ChainName> { r.summary.iter().map(|s| s.system.clone()).collect() };
     let (in_b, in_c) = (names(b), names(c));
-    for s in in_b.iter().filter(|s| !in_c.contains(s)) {
-        warnings.push(format!("system {s} is in the baseline report only"));
+    if let Some(unknown) = allowed.iter().find(|a| !in_b.contains(a)) {
+        let list: Vec<&str> = in_b.iter().map(ChainName::as_str).collect();
+        return Err(Error::usage(format!(
+            "--allow-missing {unknown}: the baseline has no system of that name (baseline: {})",
+            list.join(", ")
+        )));
+    }
+    let missing: Vec<MissingSystem> = in_b
+        .iter()
+        .filter(|s| !in_c.contains(s))
+        .map(|s| MissingSystem { system: s.clone(), allowed: allowed.contains(s) })
+        .collect();
+    for m in missing.iter().filter(|m| m.allowed) {
+        warnings.push(format!(
+            "system {} of the baseline is not in the current report (allowed by --allow-missing)",
+            m.system
+        ));
     }
     for s in in_c.iter().filter(|s| !in_b.contains(s)) {
         warnings.push(format!("system {s} is in the current report only"));
     }
-    in_c.into_iter().filter(|s| in_b.contains(s)).collect()
+    Ok((in_c.into_iter().filter(|s| in_b.contains(s)).collect(), missing))
 }
 
 fn summary_mean(r: &Report, system: &ChainName, metric: &str) -> Option<f64> {

@@ -35,7 +35,17 @@ pub fn sha256_of(path: &std::path::Path) -> crate::error::Result<String> {
         }
         hasher.update(buf.get(..n).unwrap_or_default());
     }
-    Ok(hasher.finalize().iter().map(|b| format!("{b:02x}")).collect())
+    Ok(hex(&hasher.finalize()))
+}
+
+/// Hex SHA-256 of bytes in memory (the canonical text of parsed inputs).
+pub fn sha256_hex(bytes: &[u8]) -> String {
+    use sha2::{Digest, Sha256};
+    hex(&Sha256::digest(bytes))
+}
+
+fn hex(digest: &[u8]) -> String {
+    digest.iter().map(|b| format!("{b:02x}")).collect()
 }
 
 #[cfg(test)]
@@ -50,6 +60,10 @@ mod tests {
         std::fs::write(&path, "abc").expect("written");
         assert_eq!(
             sha256_of(&path).expect("readable"),
+            "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad"
+        );
+        assert_eq!(
+            sha256_hex(b"abc"),
             "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad"
         );
     }

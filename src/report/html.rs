@@ -28,9 +28,10 @@ use crate::diagnose::render::{
 use crate::report::model::Report;
 use crate::report::svg::{self, esc, Bar, Estimate, Panel, Point, Series};
 use crate::report::text::{
-    breakdown_caveat, build_time, cost_table, fixed, headline, improves, interval, lower_is_better,
-    moved_tables, names_groups, p_equals, pvalue, reindex_case, route_table, sentence, signed,
-    spans_html, ROUTING_NOTE,
+    breakdown_caveat, build_time, cost_table, coverage_lines, definitions_table, fixed, headline,
+    improves, interval, lower_is_better, moved_tables, names_groups, p_equals, pvalue,
+    reindex_case, route_table, sentence, settings_sentence, signed, spans_html, CHAINS_INTRO,
+    ROUTING_NOTE,
 };
 
 /// Marks the start of the Timing section, the only part of the page that
@@ -60,6 +61,7 @@ pub fn render(r: &Report) -> String {
     moved(&mut s, r);
     breakdowns(&mut s, r, &headline);
     cost(&mut s, r, &headline);
+    chains(&mut s, r);
     diagnostics(&mut s, r);
     if !r.skipped_queries.is_empty() {
         let ids: Vec<String> =
@@ -131,6 +133,9 @@ fn header(s: &mut String, r: &Report, headline: &str) {
     }
     if r.systems.iter().any(|x| x.cost.is_some()) {
         s.push_str(" · <a href=\"#cost\">Cost</a>");
+    }
+    if !r.settings.chains.is_empty() {
+        s.push_str(" · <a href=\"#chains\">Chains</a>");
     }
     if r.diagnostics.is_some() {
         s.push_str(" · <a href=\"#diagnostics\">Diagnostics</a>");
@@ -730,31 +735,28 @@ fn diagnostics_table(s: &mut String, t: &Table) {
     s.push_str("</tbody>\n</table></div>\n");
 }
 
+/// Every chain's definition, exactly as run (`run` only).
+fn chains(s: &mut String, r: &Report) {
+    let Some(table) = definitions_table(r) else { return };
+    let _ = writeln!(
+        s,
+        "<section id=\"chains\">\n<h2>Chains</h2>\n<p>{CHAINS_INTRO}</p>\n{}</section>",
+        table.html()
+    );
+}
+
 fn inputs(s: &mut String, r: &Report) {
     let st = &r.settings;
     let _ = writeln!(
         s,
-        "<section id=\"inputs\">\n<h2>Inputs and settings</h2>\n<p>{} {} (report layout {}), \
-         command <code>{}</code>. Metrics: {}. Relevant from grade {}; gain {}; highest grade {}; \
-         seed {}; {} sign assignments when over 16 queries; {} bootstrap resamples; α = {}{}.</p>",
-        esc(&r.tool.name),
-        esc(&r.tool.version),
-        r.schema_version,
-        esc(&r.command),
-        st.metrics
-            .iter()
-            .map(|m| format!("<code>{}</code>", esc(m)))
-            .collect::<Vec<_>>()
-            .join(", "),
-        st.relevant_from,
-        esc(&st.gain),
-        st.max_grade,
-        st.seed,
-        st.permutations,
-        st.bootstrap_resamples,
-        st.alpha,
-        st.depth.map(|d| format!("; {d} results kept per query")).unwrap_or_default()
+        "<section id=\"inputs\">\n<h2>Inputs and settings</h2>\n<p>{}</p>",
+        spans_html(&settings_sentence(r))
     );
+    s.push_str("<ul class=\"coverage\">\n");
+    for line in coverage_lines(r) {
+        let _ = writeln!(s, "<li>{}</li>", esc(&line));
+    }
+    s.push_str("</ul>\n");
     s.push_str(
         "<div class=\"scroll\"><table>\n<thead><tr><th scope=\"col\">role</th><th scope=\"col\">path</th>\
          <th scope=\"col\">SHA-256</th></tr></thead>\n<tbody>\n",

@@ -11,9 +11,9 @@ use crate::diagnose::render::{
 };
 use crate::report::model::Report;
 use crate::report::text::{
-    breakdown_caveat, build_time, cost_table, fixed, headline, interval, moved_tables,
-    names_groups, pvalue, reindex_case, route_table, sentence, signed, spans_markdown,
-    ROUTING_NOTE,
+    breakdown_caveat, build_time, cost_table, coverage_lines, definitions_table, fixed, headline,
+    interval, moved_tables, names_groups, pvalue, reindex_case, route_table, sentence,
+    settings_sentence, signed, spans_markdown, CHAINS_INTRO, ROUTING_NOTE,
 };
 
 /// Render the whole Markdown report.
@@ -41,6 +41,7 @@ pub fn render(r: &Report) -> String {
     moved(&mut s, r);
     breakdowns(&mut s, r, &headline);
     cost(&mut s, r);
+    chains(&mut s, r);
     diagnostics(&mut s, r);
     if !r.skipped_queries.is_empty() {
         let _ = writeln!(s, "## Skipped queries\n");
@@ -54,8 +55,25 @@ pub fn render(r: &Report) -> String {
         }
         s.push('\n');
     }
+    inputs(&mut s, r);
     timing(&mut s, r, &headline);
     s
+}
+
+/// What the numbers rest on: the settings, every input file with its
+/// SHA-256, and how many evaluated queries each system answered.
+fn inputs(s: &mut String, r: &Report) {
+    let _ = writeln!(s, "## Inputs and settings\n");
+    let _ = writeln!(s, "{}\n", spans_markdown(&settings_sentence(r)));
+    for line in coverage_lines(r) {
+        let _ = writeln!(s, "- {line}");
+    }
+    let _ = writeln!(s, "\n| role | path | SHA-256 |\n|---|---|---|");
+    for i in &r.inputs {
+        let path = cell(&i.path).replace('`', "'");
+        let _ = writeln!(s, "| {} | `{path}` | `{}` |", cell(&i.role), i.sha256);
+    }
+    s.push('\n');
 }
 
 /// The reindex case (see [`crate::report::html::reindex_case`], shared with
@@ -236,6 +254,13 @@ fn cost(s: &mut String, r: &Report) {
     }
     if let Some(table) = route_table(r) {
         let _ = writeln!(s, "### Routing\n\n{ROUTING_NOTE}\n\n{}", table.markdown());
+    }
+}
+
+/// Every chain's definition, exactly as run (`run` only).
+fn chains(s: &mut String, r: &Report) {
+    if let Some(table) = definitions_table(r) {
+        let _ = writeln!(s, "## Chains\n\n{CHAINS_INTRO}\n\n{}", table.markdown());
     }
 }
 

@@ -2,18 +2,22 @@
 //! Markdown, HTML). Last stage of the data flow; nothing here computes a number.
 //!
 //! [`write_outputs`] writes every file of formats.md's output table into the
-//! `--out` directory, each one atomically (a temporary file in the same
-//! directory, then a rename), so a reader never sees a half-written file.
+//! `--out` directory, which afterwards holds exactly these outputs: they are
+//! written into a new directory that is swapped in ([`out_dir`], shared by
+//! every command that writes a directory), so a reader never sees a
+//! half-written file or a stale one of an earlier run. [`write_atomic`]
+//! writes a single file (`gate --junit`, `pool --out`) the same way.
 
 pub mod csv;
 pub mod html;
 pub mod markdown;
 pub mod model;
+pub mod out_dir;
 pub mod svg;
 pub mod text;
 
 use std::io::Write;
-use std::path::Path;
+use std::path::{Path, PathBuf};
 
 use crate::error::{Error, Result};
 use crate::ids::ChainName;
@@ -51,30 +55,25 @@ pub fn write_atomic(path: &Path, bytes: &[u8]) -> Result<()> {
     Ok(())
 }
 
-/// Write every output file into `out` (created when missing): the CSVs,
-/// `report.json`, `report.md`, `report.html` and, for `run`, `runs/NAME.csv`.
+/// Make `out` hold exactly the output files (created when missing): the
+/// CSVs, `report.json`, `report.md`, `report.html` and, for `run`,
+/// `runs/NAME.csv`. Files postassay wrote there before are replaced (a chain
+/// no longer run leaves no `runs/NAME.csv`); a directory holding files
+/// postassay did not write is refused ([`out_dir::replace_out_dir`]).
 pub fn write_outputs(out: &Path, report: &Report, runs: &[(ChainName, &Run)]) -> Result<()> {
     // Render everything first so a rendering error writes nothing.
-    let mut files: Vec<(std::path::PathBuf, Vec<u8>)> = vec![
-        (out.join("summary.csv"), csv::summary_csv(report)?.into_bytes()),
-        (out.join("per-query.csv"), csv::per_query_csv(report)?.into_bytes()),
-        (out.join("comparisons.csv"), csv::comparisons_csv(report)?.into_bytes()),
-        (out.join("report.json"), to_json(report)?.into_bytes()),
-        (out.join("report.md"), markdown::render(report).into_bytes()),
-        (out.join("report.html"), html::render(report).into_bytes()),
+    let mut files: Vec<out_dir::OutputFile> = vec![
+        (PathBuf::from("summary.csv"), csv::summary_csv(report)?.into_bytes()),
+        (PathBuf::from("per-query.csv"), csv::per_query_csv(report)?.into_bytes()),
+        (PathBuf::from("comparisons.csv"), csv::comparisons_csv(report)?.into_bytes()),
+        (PathBuf::from("report.json"), to_json(report)?.into_bytes()),
+        (PathBuf::from("report.md"), markdown::render(report).into_bytes()),
+        (PathBuf::from("report.html"), html::render(report).into_bytes()),
     ];
     for (name, run) in runs {
         let mut bytes = Vec::new();
         write_run(run, &mut bytes)?;
-        files.push((out.join("runs").join(format!("{name}.csv")), bytes));
+        files.push((Path::new("runs").join(format!("{name}.csv")), bytes));
     }
-    std::fs::create_dir_all(out).map_err(|e| Error::io(out, e))?;
-    if !runs.is_empty() {
-        let dir = out.join("runs");
-        std::fs::create_dir_all(&dir).map_err(|e| Error::io(&dir, e))?;
-    }
-    for (path, bytes) in files {
-        write_atomic(&path, &bytes)?;
-    }
-    Ok(())
+    out_dir::replace_out_dir(out, &files)
 }

@@ -2,11 +2,13 @@
 //! any rendering. `report.json` is this model serialised; the Markdown, HTML
 //! and CSV writers render the same value and compute nothing of their own.
 
+use std::collections::BTreeMap;
+
 use serde::{Deserialize, Serialize};
 
 use crate::bench::compare::{BreakdownCell, ComparisonRow, SystemSummary};
 use crate::bench::moved::MovedQuery;
-use crate::ids::{ChainName, QueryId};
+use crate::ids::{ChainName, PostId, QueryId};
 use crate::index::BuildCost;
 
 /// Version of the `report.json` layout; bumped on any incompatible change.
@@ -24,6 +26,11 @@ pub struct Report {
     /// Every input file with its SHA-256, so two reports can be checked to
     /// rest on the same inputs.
     pub inputs: Vec<InputFile>,
+    /// What the judgments and queries say, whatever the files' bytes: the
+    /// gate compares this (absent from reports of older versions, which the
+    /// gate compares by file hash).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub basis: Option<Basis>,
     /// Settings that shaped the numbers.
     pub settings: Settings,
     /// Sizes of the inputs.
@@ -73,6 +80,27 @@ pub struct InputFile {
     pub path: String,
     /// Hex SHA-256 of the file's bytes.
     pub sha256: String,
+}
+
+/// The judgments and queries as parsed, independent of how their files
+/// were written (BOM, CRLF line ends, CSV or four-column layout, line order,
+/// a repeated line): two reports with the same basis measured the same
+/// thing. The hashes are over a canonical text, one JSON array per line in
+/// byte order of the ids: `[query, post, grade]` for judgments, `[query,
+/// text, lang, tags]` (tags sorted) for queries.
+#[derive(Debug, Clone, Default, PartialEq, Eq, Serialize, Deserialize)]
+pub struct Basis {
+    /// SHA-256 of the canonical judgments.
+    pub judgments_sha256: String,
+    /// SHA-256 of the canonical queries; `None` when no queries file was
+    /// read (`score` without `--queries`).
+    pub queries_sha256: Option<String>,
+    /// Every judgment: query → post → grade, so that a changed basis can be
+    /// described (pairs added, removed, grades changed).
+    pub judgments: BTreeMap<QueryId, BTreeMap<PostId, u32>>,
+    /// Per query, the first 16 hex digits of the SHA-256 of its canonical
+    /// line, to name the queries whose text, language or tags changed.
+    pub queries: BTreeMap<QueryId, String>,
 }
 
 /// Settings recorded in the report.
@@ -130,6 +158,10 @@ pub struct SystemInfo {
     /// How a language-routed chain routed this run's posts and queries.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub routing: Option<RoutingInfo>,
+    /// How many evaluated queries the system returned results for; the
+    /// others score 0 on every metric.
+    #[serde(default)]
+    pub coverage: Coverage,
 }
 
 /// What a language-routed chain did with this run's posts and queries.
@@ -155,6 +187,45 @@ pub struct RoutingInfo {
     pub queries_without_branch: usize,
 }
 
+/// The evaluated queries a system answered (returned at least one post for).
+#[derive(Debug, Clone, Default, PartialEq, Eq, Serialize, Deserialize)]
+pub struct Coverage {
+    /// Evaluated queries.
+    pub evaluated: usize,
+    /// Evaluated queries with at least one result.
+    pub answered: usize,
+    /// Evaluated queries with no result, in byte order of their ids.
+    pub unanswered: Vec<QueryId>,
+}
+
+impl Coverage {
+    /// The first unanswered ids named in [`Coverage::describe`].
+    const NAMED: usize = 5;
+
+    /// The coverage of `system` in words, for the warning and the reports'
+    /// inputs section alike, or `None` when every evaluated query was
+    /// answered. `kind` is `chain` or `run`.
+    pub fn describe(&self, kind: &str, system: &str) -> Option<String> {
+        if self.unanswered.is_empty() {
+            return None;
+        }
+        let mut ids: Vec<&str> =
+            self.unanswered.iter().take(Self::NAMED).map(QueryId::as_str).collect();
+        if self.unanswered.len() > Self::NAMED {
+            ids.push("…");
+        }
+        Some(format!(
+            "{kind} {system} has no results for {} of the {} evaluated {} ({}); {} \
+             0 on every metric",
+            self.unanswered.len(),
+            self.evaluated,
+            if self.evaluated == 1 { "query" } else { "queries" },
+            ids.join(", "),
+            if self.unanswered.len() == 1 { "it scores" } else { "they score" }
+        ))
+    }
+}
+
 /// The deterministic part of what a chain costs.
 #[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct Cost {
@@ -165,7 +236,7 @@ pub struct Cost {
     /// Mean tokens per post.
     pub mean_tokens_per_post: f64,
     /// Posts per index field (languages and fallback for routed chains).
-    pub posts_per_field: std::collections::BTreeMap<String, u64>,
+    pub posts_per_field: BTreeMap<String, u64>,
 }
 
 impl From<&BuildCost> for Cost {

@@ -111,7 +111,7 @@ fn the_readme_ci_recipe_fails_the_build_when_a_chain_change_lowers_ndcg() {
     let res = sh(dir, ci_step);
     let (out, err) = texts(&res);
     assert_eq!(res.status.code(), Some(0), "stdout: {out}\nstderr: {err}");
-    assert!(junit_failures(&dir.join("target/bench/gate.xml")).is_empty());
+    assert!(junit_failures(&dir.join("target/gate.xml")).is_empty());
 
     // The change under review drops stemming: the build fails on nDCG@10.
     std::fs::write(bench.join("chains.toml"), UNSTEMMED).unwrap();
@@ -119,9 +119,9 @@ fn the_readme_ci_recipe_fails_the_build_when_a_chain_change_lowers_ndcg() {
     let (out, err) = texts(&res);
     assert_eq!(res.status.code(), Some(1), "stdout: {out}\nstderr: {err}");
     assert!(err.contains("retrieval quality regressed"), "{err}");
-    let md = std::fs::read_to_string(dir.join("target/bench/gate.md")).unwrap();
+    let md = std::fs::read_to_string(dir.join("target/gate.md")).unwrap();
     assert_eq!(out, md, "the CI step prints the Markdown summary");
-    let failures = junit_failures(&dir.join("target/bench/gate.xml"));
+    let failures = junit_failures(&dir.join("target/gate.xml"));
     assert!(failures.contains(&"postassay.gate.posts ndcg@10".to_string()), "{failures:?}");
     // The PR comment: the nDCG@10 row shows the drop, a significant paired
     // test and the verdict.

@@ -38,6 +38,18 @@ fn expect_score_error(qrels: &str, run: &str, extra: &[&str], needles: &[&str]) 
 
 /// Run `run` on the given three files; expect exit 2 with every needle.
 fn expect_run_error(corpus: &str, queries: &str, qrels: &str, corpus_name: &str, needles: &[&str]) {
+    expect_run_error_with(corpus, queries, qrels, corpus_name, needles, &[]);
+}
+
+/// [`expect_run_error`] with `extra` flags.
+fn expect_run_error_with(
+    corpus: &str,
+    queries: &str,
+    qrels: &str,
+    corpus_name: &str,
+    needles: &[&str],
+    extra: &[&str],
+) {
     let tmp = tempfile::tempdir().unwrap();
     let c = write(tmp.path(), corpus_name, corpus);
     let q = write(tmp.path(), "queries.csv", queries);
@@ -56,6 +68,7 @@ fn expect_run_error(corpus: &str, queries: &str, qrels: &str, corpus_name: &str,
         "--chains",
         "standard",
     ];
+    let args: Vec<&str> = args.iter().chain(extra).copied().collect();
     check(tmp.path(), &args, &out, needles);
 }
 
@@ -160,6 +173,36 @@ fn max_grade_below_an_occurring_grade() {
         RUN_OK,
         &["--max-grade", "2"],
         &["--max-grade", "3"],
+    );
+}
+
+/// Issue 12, item 4: a threshold no grade reaches used to write a full
+/// report on 0 evaluated queries. Grades here go up to 3 (hand-made file).
+#[test]
+fn relevance_threshold_no_grade_reaches() {
+    let qrels = "query_id,doc_id,grade\nq1,d1,3\nq1,d2,1\n";
+    expect_score_error(
+        qrels,
+        RUN_OK,
+        &["--relevant-from", "4"],
+        &[
+            "qrels.csv: --relevant-from 4 is above the highest grade in the judgments (3)",
+            "give a grade from 1 to 3",
+        ],
+    );
+    expect_score_error(
+        qrels,
+        RUN_OK,
+        &["--relevant-from", "3", "--max-grade", "2"],
+        &["--relevant-from 3 is above --max-grade 2"],
+    );
+    expect_run_error_with(
+        GOOD_CORPUS,
+        GOOD_QUERIES,
+        GOOD_QRELS,
+        "posts.jsonl",
+        &["qrels.csv", "--relevant-from 2 is above the highest grade in the judgments (1)"],
+        &["--relevant-from", "2"],
     );
 }
 

@@ -172,11 +172,13 @@ fn require_significance_passes_an_insignificant_drop_and_fails_a_significant_one
     assert_eq!(res.status.code(), Some(0), "{}", texts(&res).0);
 }
 
+/// Issue 12, item 2: the refusal says how the judgments differ (pairs
+/// added, removed, grades changed), not only that their files' hashes do.
 #[test]
 fn reports_on_different_judgments_are_refused_unless_allowed() {
     let tmp = tempfile::tempdir().unwrap();
     let base = report(tmp.path(), "base", &[("a", "run_base")], &qrels());
-    let mut changed = std::fs::read_to_string(qrels()).unwrap();
+    let mut changed = std::fs::read_to_string(qrels()).unwrap().replace("q3,n3,0", "q3,n3,1");
     changed.push_str("q8,x8,1\n");
     let other = write(tmp.path(), "qrels2.csv", &changed);
     let cur = report(tmp.path(), "cur", &[("a", "run_base")], &other);
@@ -185,7 +187,12 @@ fn reports_on_different_judgments_are_refused_unless_allowed() {
     assert_eq!(res.status.code(), Some(2), "stdout: {out}\nstderr: {err}");
     assert!(out.is_empty(), "nothing on stdout when refusing: {out}");
     assert!(err.contains("were not built on the same inputs"), "{err}");
-    assert!(err.contains("judgments: baseline sha256 "), "{err}");
+    assert!(
+        err.contains(
+            "judgments: 1 pair added (q8 x8 = 1), 1 grade changed (q3 n3: 0 → 1) (baseline sha256 "
+        ),
+        "{err}"
+    );
     assert!(err.contains("qrels2.csv"), "{err}");
     assert!(err.contains("--allow-different-inputs"), "{err}");
 
@@ -196,22 +203,143 @@ fn reports_on_different_judgments_are_refused_unless_allowed() {
     let (out, _) = texts(&res);
     assert_eq!(res.status.code(), Some(1), "{out}");
     assert!(out.contains("| a | ndcg@5 | 1.0000 | 0.9783 |"), "{out}");
-    assert!(out.contains("- different inputs allowed: judgments: baseline sha256"), "{out}");
+    assert!(out.contains("- different inputs allowed: judgments: 1 pair added"), "{out}");
 }
 
+/// Issue 12, item 2: the same judgments saved with a BOM and CRLF line
+/// ends, in the four-column layout of public test collections, or with a
+/// line repeated and the lines in another order, are the same inputs
+/// (formats.md accepts each of them); so are the same queries with a BOM,
+/// CRLF and their tags in another order. The gate compares them and notes
+/// that the files' bytes differ. A Windows checkout of the README's CI
+/// recipe used to be refused.
 #[test]
-fn systems_and_metrics_in_one_report_only_are_warnings() {
+fn the_same_inputs_saved_differently_are_compared() {
+    let tmp = tempfile::tempdir().unwrap();
+    let original = std::fs::read_to_string(qrels()).unwrap();
+    let queries = "query_id,text,tags\nq1,ferry delays,short;inflected\nq2,harbour,short\n";
+    let base_queries = write(tmp.path(), "queries.csv", queries);
+    let base = score_with_queries(tmp.path(), "base", &qrels(), &base_queries);
+    let body: Vec<&str> = original.lines().skip(1).collect();
+    let four_columns: String = body
+        .iter()
+        .map(|l| {
+            let f: Vec<&str> = l.split(',').collect();
+            format!("{}\t0\t{}\t{}\n", f[0], f[1], f[2])
+        })
+        .collect();
+    let mut shuffled: Vec<&str> = body.clone();
+    shuffled.reverse();
+    let repeated = format!("query_id,doc_id,grade\n{}\n{}\n", shuffled.join("\n"), body[0]);
+    let variants = [
+        ("bom_crlf.csv", format!("\u{feff}{}", original.replace('\n', "\r\n"))),
+        ("four_columns.txt", four_columns),
+        ("repeated.csv", repeated),
+    ];
+    let other_queries = write(
+        tmp.path(),
+        "queries_crlf.csv",
+        &format!(
+            "\u{feff}{}",
+            queries.replace("short;inflected", "inflected;short").replace('\n', "\r\n")
+        ),
+    );
+    for (name, text) in variants {
+        let q = write(tmp.path(), name, &text);
+        let cur = score_with_queries(tmp.path(), &format!("cur_{name}"), &q, &other_queries);
+        let res = gate(tmp.path(), &base, &cur, &[]);
+        let (out, err) = texts(&res);
+        assert_eq!(res.status.code(), Some(0), "{name}: stdout: {out}\nstderr: {err}");
+        assert!(
+            out.contains("- the judgments files differ in bytes but hold the same judgments"),
+            "{name}: {out}"
+        );
+        assert!(
+            out.contains("- the queries files differ in bytes but hold the same queries"),
+            "{name}: {out}"
+        );
+    }
+    // A query whose text changed is a different input, named.
+    let edited = write(tmp.path(), "queries_edited.csv", &queries.replace("harbour", "harbor"));
+    let cur = score_with_queries(tmp.path(), "cur_edited", &qrels(), &edited);
+    let res = gate(tmp.path(), &base, &cur, &[]);
+    let (_, err) = texts(&res);
+    assert_eq!(res.status.code(), Some(2), "{err}");
+    assert!(err.contains("queries: 1 changed in text, language or tags (q2) (baseline"), "{err}");
+}
+
+/// `score` of run `a` = run_base with a queries file, into `dir/name`.
+fn score_with_queries(dir: &Path, name: &str, qrels: &Path, queries: &Path) -> PathBuf {
+    let out = dir.join(name);
+    let spec = format!("a={}", fixture("gate/run_base.csv").display());
+    let res = postassay(
+        dir,
+        &[
+            "score",
+            "--judgments",
+            qrels.to_str().unwrap(),
+            "--queries",
+            queries.to_str().unwrap(),
+            "--run",
+            &spec,
+            "--metrics",
+            METRICS,
+            "--out",
+            out.to_str().unwrap(),
+            "--quiet",
+        ],
+    );
+    assert_eq!(res.status.code(), Some(0), "score failed: {}", texts(&res).1);
+    out
+}
+
+/// Issue 12, item 3: a system of the baseline that the current report
+/// lacks used to be a warning, so a gate passed when the guarded chain
+/// disappeared. It fails unless `--allow-missing` names it; a system only
+/// the current report has stays a warning.
+#[test]
+fn a_baseline_system_missing_from_the_current_report_fails_unless_allowed() {
     let tmp = tempfile::tempdir().unwrap();
     let base = report(tmp.path(), "base", &[("a", "run_base"), ("old", "run_base")], &qrels());
     let cur = report(tmp.path(), "cur", &[("a", "run_base"), ("new", "run_big_drop")], &qrels());
-    let res = gate(tmp.path(), &base, &cur, &[]);
+    let junit = tmp.path().join("gate.xml");
+    let res = gate(tmp.path(), &base, &cur, &["--junit", junit.to_str().unwrap()]);
     let (out, err) = texts(&res);
-    assert_eq!(res.status.code(), Some(0), "stdout: {out}\nstderr: {err}");
-    assert!(out.contains("- system old is in the baseline report only"), "{out}");
+    assert_eq!(res.status.code(), Some(1), "stdout: {out}\nstderr: {err}");
+    assert!(out.starts_with("### postassay gate: FAIL\n"), "{out}");
+    assert!(out.contains("- `old`: **MISSING**, which fails the gate"), "{out}");
+    assert!(out.contains("give `--allow-missing old`"), "{out}");
     assert!(out.contains("- system new is in the current report only"), "{out}");
-    assert!(out.trim_end().ends_with("no regression in 2 checks."), "{out}");
+    assert_eq!(
+        out.trim_end().lines().last().unwrap(),
+        "**FAIL**: 1 system of the baseline missing from the current report: `old`; no \
+         regression in 2 checks."
+    );
+    let xml = std::fs::read_to_string(&junit).unwrap();
+    assert!(xml.contains(r#"<testsuite name="postassay gate" tests="4" failures="1""#), "{xml}");
+    assert!(
+        xml.contains(r#"<testcase classname="postassay.gate.old" name="present" time="0">"#),
+        "{xml}"
+    );
+    assert!(xml.contains(r#"<failure type="missing" message="old is in the baseline"#), "{xml}");
 
-    // Metrics: the current report drops unjudged@5 and adds mrr.
+    // Allowed by name: a pass, with the absence recorded.
+    let res = gate(tmp.path(), &base, &cur, &["--allow-missing", "old"]);
+    let (out, _) = texts(&res);
+    assert_eq!(res.status.code(), Some(0), "{out}");
+    assert!(out.contains("- `old`: allowed by `--allow-missing`"), "{out}");
+    assert!(out.trim_end().ends_with("**PASS**: no regression in 2 checks."), "{out}");
+    // A name the baseline does not have allows nothing: a usage error.
+    let res = gate(tmp.path(), &base, &cur, &["--allow-missing", "olld"]);
+    assert_eq!(res.status.code(), Some(2));
+    assert!(texts(&res).1.contains("--allow-missing olld: the baseline has no system"));
+}
+
+#[test]
+fn metrics_in_one_report_only_are_warnings() {
+    let tmp = tempfile::tempdir().unwrap();
+    let base = report(tmp.path(), "base", &[("a", "run_base")], &qrels());
+    // The current report drops unjudged@5 and adds mrr.
     let other = tmp.path().join("other");
     let spec = format!("a={}", fixture("gate/run_base.csv").display());
     let res = postassay(
@@ -367,4 +495,29 @@ fn reports_scored_with_different_settings_are_refused() {
     assert!(err.contains("relevant_from: baseline 1; current 2"), "{err}");
     assert!(err.contains("gain: baseline exp; current linear"), "{err}");
     assert!(!err.contains("judgments:"), "same judgments file: {err}");
+}
+
+/// Issue 12, item 6: `gate` compared a `stemmed` that stems German with the
+/// English one as "the same `stemmed`". It names each chain whose
+/// definition changed, with the part that changed, and still compares it
+/// (that is often the point of the change).
+#[test]
+fn chains_whose_definition_changed_are_named() {
+    let tmp = tempfile::tempdir().unwrap();
+    let base = crate::run::run_stemming_fixture_with(tmp.path(), "en", "mrr", &[]);
+    let cur =
+        crate::run::run_stemming_fixture_with(tmp.path(), "de", "mrr", &["--stem-lang", "de"]);
+    let junit = tmp.path().join("gate.xml");
+    let res = gate(tmp.path(), &base, &cur, &["--junit", junit.to_str().unwrap()]);
+    let (out, err) = texts(&res);
+    assert!(matches!(res.status.code(), Some(0 | 1)), "compared, not refused: {err}");
+    let line = "- `stemmed` steps: baseline `lowercase → stem (language en, generation current)`; \
+                current `lowercase → stem (language de, generation current)`";
+    assert!(out.contains(line), "{out}");
+    assert!(!out.contains("`standard` steps"), "standard did not change: {out}");
+    let xml = std::fs::read_to_string(&junit).unwrap();
+    assert!(xml.contains("definition changed: stemmed steps: baseline lowercase → stem"), "{xml}");
+    // Unchanged chains name nothing.
+    let res = gate(tmp.path(), &base, &base, &[]);
+    assert!(!texts(&res).0.contains("definition changed"), "{}", texts(&res).0);
 }

@@ -298,3 +298,40 @@ fn one_evaluated_query_has_no_interval_and_no_test() {
     );
     assert!(!md.contains("p = n/a"), "{md}");
 }
+
+/// Issue 12, item 1: an evaluated query a run has no result for scores 0
+/// (metrics.md), and the user is told so: a warning per run on stderr, the
+/// same line in the reports' inputs section, coverage per run in
+/// report.json. Run `b` of the fixture has nothing for q2 (module docs).
+#[test]
+fn runs_that_miss_evaluated_queries_are_named_with_their_coverage() {
+    let tmp = tempfile::tempdir().unwrap();
+    let out = tmp.path().join("out");
+    let res = score(&out, "ndcg@3,map", &[]);
+    let (_, err) = texts(&res);
+    assert_eq!(res.status.code(), Some(0), "stderr: {err}");
+    let line = "run b has no results for 1 of the 2 evaluated queries (q2); it scores 0 on every \
+                metric";
+    assert!(err.contains(&format!("postassay: warning: {line}\n")), "{err}");
+    assert!(!err.contains("run a has no results"), "{err}");
+    let md = std::fs::read_to_string(out.join("report.md")).unwrap();
+    let inputs = md.split("## Inputs and settings\n").nth(1).expect("inputs section in report.md");
+    assert!(inputs.contains(&format!("- {line}\n")), "{inputs}");
+    let html = std::fs::read_to_string(out.join("report.html")).unwrap();
+    let inputs = html.split("<section id=\"inputs\">").nth(1).expect("inputs section in html");
+    assert!(inputs.contains(&format!("<li>{line}</li>")), "{inputs}");
+    let report: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("report.json")).unwrap()).unwrap();
+    assert_eq!(
+        report["systems"][1]["coverage"],
+        serde_json::json!({"evaluated": 2, "answered": 1, "unanswered": ["q2"]})
+    );
+    assert_eq!(report["systems"][0]["coverage"]["answered"], 2);
+    // --quiet silences the warning; the report keeps it.
+    let quiet = tmp.path().join("quiet");
+    let res = score(&quiet, "ndcg@3", &["--quiet"]);
+    assert!(texts(&res).1.is_empty(), "{}", texts(&res).1);
+    let report: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(quiet.join("report.json")).unwrap()).unwrap();
+    assert!(report["warnings"].as_array().unwrap().iter().any(|w| w == line), "{report}");
+}
