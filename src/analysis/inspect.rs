@@ -194,16 +194,16 @@ mod tests {
     }
 
     #[test]
-    fn french_elision_then_stem() {
+    fn french_elided_articles_then_stem() {
         let chain = one(
-            r#"{ step = "elision", language = "fr" }, { step = "lowercase" }, { step = "stem", language = "fr" }"#,
+            r#"{ step = "strip_elided", language = "fr" }, { step = "lowercase" }, { step = "stem", language = "fr" }"#,
             "words",
         );
         assert_eq!(
             trace_texts(&chain, "L'amitié qu’il préfère", None),
             [
                 "text words: L'amitié qu’il préfère",
-                "text elision(fr): amitié il préfère",
+                "text strip_elided(fr): amitié il préfère",
                 "text lowercase: amitié il préfère",
                 "text stem(fr, current): amiti il préfer",
             ]

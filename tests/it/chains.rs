@@ -35,7 +35,7 @@ fn bad_chain_file_exits_2_with_every_problem_and_writes_nothing() {
         tmp.path(),
         "bad.toml",
         "[[chain]]\nname = \"a\"\nsteps = [{ step = \"stemm\" }]\n\n\
-         [[chain]]\nname = \"b\"\nsteps = [{ step = \"length\", min = 5, max = 2 }]\n",
+         [[chain]]\nname = \"b\"\nsteps = [{ step = \"keep_sizes\", shortest = 5, longest = 2 }]\n",
     );
     let out = tmp.path().join("out");
     let res = postassay(
@@ -50,4 +50,86 @@ fn bad_chain_file_exits_2_with_every_problem_and_writes_nothing() {
     assert!(stderr.contains("unknown variant `stemm`, expected one of `lowercase`"), "{stderr}");
     assert!(stderr.contains("bad.toml:7"), "the second problem is listed too: {stderr}");
     assert!(!out.exists(), "--out must not be created on failure");
+}
+
+/// The step names of the previous release (`elision`, `length`,
+/// `edge_ngrams` with `min`/`max`) still work for one release: exit 0, the
+/// same tokens as the new names, and a warning per use on stderr naming the
+/// file, the line and the new name.
+#[test]
+fn old_step_names_still_work_with_a_warning() {
+    let tmp = tempfile::tempdir().unwrap();
+    let chain = |steps: &str| {
+        format!("[[chain]]\nname = \"c\"\ntokenizer = \"words\"\nsteps = [\n{steps}\n]\n")
+    };
+    let old = write(
+        tmp.path(),
+        "old.toml",
+        &chain(
+            "  { step = \"elision\", language = \"fr\" },\n  { step = \"lowercase\" },\n  \
+             { step = \"length\", min = 3, max = 30 },\n  { step = \"edge_ngrams\", min = 3, max = 5 },",
+        ),
+    );
+    let new = write(
+        tmp.path(),
+        "new.toml",
+        &chain(
+            "  { step = \"strip_elided\", language = \"fr\" },\n  { step = \"lowercase\" },\n  \
+             { step = \"keep_sizes\", shortest = 3, longest = 30 },\n  \
+             { step = \"prefixes\", shortest = 3, longest = 5 },",
+        ),
+    );
+    let tokens = |file: &std::path::Path| {
+        let res = postassay(
+            &root(),
+            &[
+                "tokens",
+                "--chain-file",
+                file.to_str().unwrap(),
+                "--chain",
+                "c",
+                "--format",
+                "json",
+                "L'amitié d'un an",
+            ],
+        );
+        let (stdout, stderr) = texts(&res);
+        assert_eq!(res.status.code(), Some(0), "{stderr}");
+        let v: serde_json::Value = serde_json::from_str(&stdout).unwrap();
+        let tokens: Vec<String> = v[0]["tokens"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|t| t["token"].as_str().unwrap().to_string())
+            .collect();
+        (tokens, stderr)
+    };
+    let (old_tokens, warnings) = tokens(&old);
+    let (new_tokens, quiet) = tokens(&new);
+    // l' and d' stripped, "un" and "an" (2 characters) dropped, then the
+    // prefixes of 3 to 5 characters of "amitié".
+    assert_eq!(new_tokens, ["ami", "amit", "amiti"]);
+    assert_eq!(old_tokens, new_tokens);
+    assert_eq!(quiet, "", "the new names warn of nothing");
+    let lines: Vec<&str> = warnings.lines().collect();
+    let at = old.display();
+    assert_eq!(
+        lines,
+        [
+            format!(
+                "postassay: warning: {at}:5: chain \"c\": step = \"elision\" is now step = \
+                 \"strip_elided\"; the old name is read in this release only"
+            ),
+            format!(
+                "postassay: warning: {at}:7: chain \"c\": step = \"length\" is now step = \
+                 \"keep_sizes\", min is now shortest, max is now longest; the old name is read \
+                 in this release only"
+            ),
+            format!(
+                "postassay: warning: {at}:8: chain \"c\": step = \"edge_ngrams\" is now step = \
+                 \"prefixes\", min is now shortest, max is now longest; the old name is read in \
+                 this release only"
+            ),
+        ]
+    );
 }
