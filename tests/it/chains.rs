@@ -2,7 +2,7 @@
 //! demo bench, and a bad chain file exits 2 naming its lines, with nothing
 //! written.
 
-use crate::util::{postassay, read_csv, root, texts, write};
+use crate::util::{postassay, read_csv, root, texts, token_texts, write};
 
 #[test]
 fn example_chain_file_runs_on_the_demo() {
@@ -80,29 +80,9 @@ fn old_step_names_still_work_with_a_warning() {
         ),
     );
     let tokens = |file: &std::path::Path| {
-        let res = postassay(
-            &root(),
-            &[
-                "tokens",
-                "--chain-file",
-                file.to_str().unwrap(),
-                "--chain",
-                "c",
-                "--format",
-                "json",
-                "L'amitié d'un an",
-            ],
-        );
-        let (stdout, stderr) = texts(&res);
-        assert_eq!(res.status.code(), Some(0), "{stderr}");
-        let v: serde_json::Value = serde_json::from_str(&stdout).unwrap();
-        let tokens: Vec<String> = v[0]["tokens"]
-            .as_array()
-            .unwrap()
-            .iter()
-            .map(|t| t["token"].as_str().unwrap().to_string())
-            .collect();
-        (tokens, stderr)
+        let file = file.to_str().unwrap();
+        let args = ["tokens", "--chain-file", file, "--chain", "c", "--format", "json"];
+        token_texts(&root(), &[&args[..], &["L'amitié d'un an"]].concat())
     };
     let (old_tokens, warnings) = tokens(&old);
     let (new_tokens, quiet) = tokens(&new);

@@ -3,7 +3,7 @@
 use std::io::Write;
 use std::process::{Command, Stdio};
 
-use crate::util::{postassay, root, texts};
+use crate::util::{postassay, root, texts, token_texts};
 
 fn json(args: &[&str]) -> serde_json::Value {
     let res = postassay(&root(), args);
@@ -96,20 +96,7 @@ fn unknown_chain_and_bad_language_exit_2() {
 #[test]
 fn hashtag_words_default_to_the_demo_corpus_and_say_so() {
     let words = |cwd: &std::path::Path| {
-        let res = postassay(
-            cwd,
-            &["tokens", "--chain", "hashtag", "--format", "json", "#harbourmarketday"],
-        );
-        let (stdout, stderr) = texts(&res);
-        assert_eq!(res.status.code(), Some(0), "{stderr}");
-        let v: serde_json::Value = serde_json::from_str(&stdout).unwrap();
-        let tokens: Vec<String> = v[0]["tokens"]
-            .as_array()
-            .unwrap()
-            .iter()
-            .map(|t| t["token"].as_str().unwrap().to_string())
-            .collect();
-        (tokens, stderr)
+        token_texts(cwd, &["tokens", "--chain", "hashtag", "--format", "json", "#harbourmarketday"])
     };
     let (tokens, note) = words(&root());
     assert_eq!(tokens, ["harbourmarketday", "harbour", "market", "day"]);
