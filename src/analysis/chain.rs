@@ -419,21 +419,21 @@ fn add_step(
             )
         }
         StepSpec::Stem { .. } => builder.filter_dynamic(stemmer(step)?),
-        StepSpec::Elision { language } => builder.filter_dynamic(
+        StepSpec::StripElided { language } => builder.filter_dynamic(
             Elision::new(*language)
-                .ok_or_else(|| unsupported(step, "no prefix list for the language"))?,
+                .ok_or_else(|| unsupported(step, "no list of elided words for the language"))?,
         ),
-        StepSpec::Length { min, max } => {
-            if *min == 0 || min > max {
-                return Err(unsupported(step, "needs 1 ≤ min ≤ max"));
+        StepSpec::KeepSizes { shortest, longest } => {
+            if *shortest == 0 || shortest > longest {
+                return Err(unsupported(step, "needs 1 ≤ shortest ≤ longest"));
             }
-            builder.filter_dynamic(LengthLimit { min: *min, max: *max })
+            builder.filter_dynamic(LengthLimit { min: *shortest, max: *longest })
         }
-        StepSpec::EdgeNgrams { min, max } => {
-            if *min == 0 || min > max {
-                return Err(unsupported(step, "needs 1 ≤ min ≤ max"));
+        StepSpec::Prefixes { shortest, longest } => {
+            if *shortest == 0 || shortest > longest {
+                return Err(unsupported(step, "needs 1 ≤ shortest ≤ longest"));
             }
-            builder.filter_dynamic(EdgeNgrams { min: *min, max: *max })
+            builder.filter_dynamic(EdgeNgrams { min: *shortest, max: *longest })
         }
         StepSpec::Drop { .. } => builder.filter_dynamic(drop_tokens(step)?),
         StepSpec::Hashtags { .. } => builder.filter_dynamic(hashtags(step, ctx)?),

@@ -1,11 +1,11 @@
 //! The shared mechanism of the steps that look at one token at a time
-//! (`lowercase`, `fold`, `stem`, `elision`, `length`, `drop`): each says
+//! (`lowercase`, `fold`, `stem`, `strip_elided`, `keep_sizes`, `drop`): each says
 //! what it does to one token by implementing [`TokenEdit`], and
 //! [`EachTokenFilter`] / [`EachTokenStream`] carry it through tantivy's
 //! filter traits, so the wrapper and stream code exists once.
 //!
 //! Place in the data flow: `analysis` stage. Steps that turn one token into
-//! several (`edge_ngrams`, `hashtags`) keep their own streams.
+//! several (`prefixes`, `hashtags`) keep their own streams.
 
 use tantivy::tokenizer::{Token, TokenStream, Tokenizer};
 

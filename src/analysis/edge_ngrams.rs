@@ -1,16 +1,17 @@
-//! The `edge_ngrams` step: replaces each token with its prefixes of `min` to
-//! `max` characters, all at the token's position (for prefix matching of
+//! The `prefixes` step (called `edge_ngrams` before; that name is still
+//! read, with a deprecation note): replaces each token with its prefixes of
+//! `shortest` (here `min`) to `longest` (`max`) characters, all at the token's position (for prefix matching of
 //! partly typed words). A token shorter than `min` is kept whole, so short
 //! words stay searchable.
 //!
 //! Place in the data flow: `analysis` stage, a filter of a chain; it should
-//! be the last step that changes text (only `length` may follow), since
+//! be the last step that changes text (only `keep_sizes`, `lowercase`, `fold` and `drop` may follow), since
 //! stemming or stop-listing prefixes makes no sense. Prefixes end on
 //! character boundaries; offsets stay those of the whole token.
 
 use tantivy::tokenizer::{Token, TokenFilter, TokenStream, Tokenizer};
 
-/// Filter settings for `edge_ngrams`.
+/// Filter settings for `prefixes`.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub struct EdgeNgrams {
     /// Fewest characters of a prefix (at least 1).

@@ -1,4 +1,5 @@
-//! The `elision` step: strips an elided article or pronoun glued to the word
+//! The `strip_elided` step (called `elision` before; that name is still
+//! read, with a deprecation note): strips an elided article or pronoun glued to the word
 //! by an apostrophe, as French, Italian and Catalan write them: `l'avion` →
 //! `avion`, `qu’il` → `il`, `dell'arte` → `arte`.
 //!
@@ -29,10 +30,10 @@ const ITALIAN: &[&str] = &[
 ];
 const CATALAN: &[&str] = &["d", "l", "m", "n", "s", "t"];
 
-/// The languages `elision` has prefix lists for.
+/// The languages `strip_elided` has lists of elided words for.
 pub const ELISION_LANGUAGES: &[&str] = &["ca", "fr", "it"];
 
-/// Filter settings for `elision`.
+/// Filter settings for `strip_elided`.
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub struct Elision {
     prefixes: Vec<&'static str>,

@@ -14,16 +14,21 @@ use super::spec::{ChainBody, ChainSpec, Pipeline};
 use crate::error::Result;
 use crate::input::LangCode;
 
-/// One token as shown to a person.
+/// One token as shown to a person. In JSON its keys are our own words, as
+/// in the text view (`token`, `at`, and the byte range `start`..`end`).
 #[derive(Clone, Debug, PartialEq, Eq, Serialize)]
 pub struct TokenView {
-    /// The token's text after the chain.
+    /// The token's text after the chain (JSON `token`).
+    #[serde(rename = "token")]
     pub text: String,
-    /// Its position (tokens at the same position are alternatives).
+    /// Its position (tokens at the same position are alternatives; JSON `at`).
+    #[serde(rename = "at")]
     pub position: usize,
-    /// Byte offset of its first byte in the original text.
+    /// Byte offset of its first byte in the original text (JSON `start`).
+    #[serde(rename = "start")]
     pub offset_from: usize,
-    /// Byte offset just past its last byte in the original text.
+    /// Byte offset just past its last byte in the original text (JSON `end`).
+    #[serde(rename = "end")]
     pub offset_to: usize,
 }
 
@@ -146,7 +151,7 @@ mod tests {
             ]
         );
         let json = serde_json::to_string(&tokenize(&a, "Dogs", None)).expect("serializes");
-        assert_eq!(json, r#"[{"text":"dog","position":0,"offset_from":0,"offset_to":4}]"#);
+        assert_eq!(json, r#"[{"token":"dog","at":0,"start":0,"end":4}]"#);
     }
 
     #[test]
@@ -189,16 +194,16 @@ mod tests {
     }
 
     #[test]
-    fn french_elision_then_stem() {
+    fn french_elided_articles_then_stem() {
         let chain = one(
-            r#"{ step = "elision", language = "fr" }, { step = "lowercase" }, { step = "stem", language = "fr" }"#,
+            r#"{ step = "strip_elided", language = "fr" }, { step = "lowercase" }, { step = "stem", language = "fr" }"#,
             "words",
         );
         assert_eq!(
             trace_texts(&chain, "L'amitié qu’il préfère", None),
             [
                 "text words: L'amitié qu’il préfère",
-                "text elision(fr): amitié il préfère",
+                "text strip_elided(fr): amitié il préfère",
                 "text lowercase: amitié il préfère",
                 "text stem(fr, current): amiti il préfer",
             ]

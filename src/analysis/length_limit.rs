@@ -1,5 +1,6 @@
-//! The `length` step: drops tokens shorter than `min` or longer than `max`
-//! characters (Unicode scalar values, not bytes).
+//! The `keep_sizes` step (called `length` before; that name is still read,
+//! with a deprecation note): keeps the tokens of `shortest` (here `min`) to
+//! `longest` (`max`) characters, dropping the others (Unicode scalar values, not bytes).
 //!
 //! Place in the data flow: `analysis` stage, a filter of a chain. Positions
 //! of the kept tokens do not change, so a dropped token leaves a gap, as a
@@ -9,7 +10,7 @@ use tantivy::tokenizer::Token;
 
 use super::each_token::{token_edit_filter, TokenEdit};
 
-/// Filter settings for `length`: keep tokens with `min ≤ chars ≤ max`.
+/// Filter settings for `keep_sizes`: keep tokens with `min ≤ chars ≤ max`.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub struct LengthLimit {
     /// Fewest characters a kept token has.

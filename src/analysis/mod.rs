@@ -21,7 +21,8 @@
 //!   Burmese, Chinese and Japanese into words (icu_segmenter) or character
 //!   pairs;
 //! - filters: [`Lowercase`], [`Fold`], [`StopWords`], [`Stem`] (two Snowball
-//!   generations), [`Elision`], [`LengthLimit`], [`EdgeNgrams`],
+//!   generations), [`Elision`] (`strip_elided`), [`LengthLimit`]
+//!   (`keep_sizes`), [`EdgeNgrams`] (`prefixes`),
 //!   [`DropTokens`], and [`hashtag::HashtagSplit`].
 //!
 //! ```
@@ -81,9 +82,10 @@ pub use length_limit::LengthLimit;
 pub use lowercase::Lowercase;
 pub use post_tokenizer::{PostTokenStream, PostTokenizer};
 pub use spec::{
-    builtin_chains, parse_chains, read_chain_file, select_chains, Branch, ChainBody, ChainSpec,
-    FallbackPosts, Fusion, Pipeline, PostRouting, QueryRouting, QuerySearch, RouteSpec, StepSpec,
-    TagVocabulary, TokenizerKind, BUILTIN_CHAINS_TOML, DEFAULT_MIN_CONFIDENCE,
+    builtin_chains, parse_chain_file, parse_chains, read_chain_file, select_chains, Branch,
+    ChainBody, ChainFile, ChainSpec, FallbackPosts, Fusion, Pipeline, PostRouting, QueryRouting,
+    QuerySearch, RouteSpec, StepSpec, TagVocabulary, TokenizerKind, BUILTIN_CHAINS_TOML,
+    DEFAULT_MIN_CONFIDENCE,
 };
 pub use stem::{stem_languages, Stem, StemGeneration, StemWork, STEM_CACHE_CAPACITY};
 pub use stop_words::{stop_languages, StopWords};

@@ -65,17 +65,26 @@
 //! | `fold` | – |
 //! | `stop` | `language` (required outside routes) |
 //! | `stem` | `language` (required outside routes), `generation` = `"2018"` \| `"current"` [current] |
-//! | `elision` | `language` = `fr` \| `it` \| `ca` [all three] |
-//! | `length` | `min` [1], `max` [40] (characters) |
-//! | `edge_ngrams` | `min` [2], `max` [15] |
+//! | `strip_elided` | `language` = `fr` \| `it` \| `ca` [all three] |
+//! | `keep_sizes` | `shortest` [1], `longest` [40] (characters) |
+//! | `prefixes` | `shortest` [2], `longest` [15] (characters) |
 //! | `drop` | `kinds` = list of `mentions` `urls` `emoji` `numbers` `hashtags` |
 //! | `hashtags` | `vocabulary` = `"corpus"` \| `"lists"` \| `"corpus+lists"` \| `"none"` [corpus]; `language` (a built-in list: de en es fr it nl pt; none = all merged) |
+//!
+//! `strip_elided` removes an elided article or pronoun glued to a word by an
+//! apostrophe (`l'`, `d'`, `qu'` …); `keep_sizes` keeps the tokens whose
+//! length in characters lies in `shortest..=longest`; `prefixes` replaces
+//! each token with its leading prefixes, for search as you type.
+//!
+//! The names of the previous release (`elision`, `length`, `edge_ngrams`
+//! with `min` and `max`) are still read, for this release only: each use
+//! gives a deprecation note naming the new name ([`ChainFile::deprecations`]).
 //!
 //! # Orders that are rejected, and why
 //!
 //! - `stem` and `stop` need a `lowercase` step before them: Snowball's rules
 //!   and the stop lists are lower case, so capitalised words would slip by.
-//! - `stop` and `elision` must come before `stem`: stop lists and elided
+//! - `stop` and `strip_elided` must come before `stem`: stop lists and elided
 //!   prefixes are surface forms, which stemming changes.
 //! - `fold` before `stem` is rejected except for English, German, Dutch and
 //!   Russian: the other Snowball algorithms have accented letters in their
@@ -89,8 +98,8 @@
 //!   changes) and needs the `posts` or `whitespace` tokenizer (`words` drops
 //!   the `#`). `drop` of mentions, URLs, emoji or hashtags also needs one of
 //!   those tokenizers, and dropping hashtags after `hashtags` finds none.
-//! - Nothing but `length`, `lowercase`, `fold` and `drop` may follow
-//!   `edge_ngrams`: stemming, stop-listing or splitting prefixes is nonsense.
+//! - Nothing but `keep_sizes`, `lowercase`, `fold` and `drop` may follow
+//!   `prefixes`: stemming, stop-listing or splitting prefixes is nonsense.
 //! - `stem` and `hashtags` may appear once per chain.
 
 use std::collections::{BTreeMap, BTreeSet};
@@ -191,16 +200,16 @@ impl TagVocabulary {
 fn default_generation() -> StemGeneration {
     StemGeneration::Current
 }
-fn default_length_min() -> usize {
+fn default_size_shortest() -> usize {
     1
 }
-fn default_length_max() -> usize {
+fn default_size_longest() -> usize {
     40
 }
-fn default_ngram_min() -> usize {
+fn default_prefix_shortest() -> usize {
     2
 }
-fn default_ngram_max() -> usize {
+fn default_prefix_longest() -> usize {
     15
 }
 
@@ -233,29 +242,32 @@ pub enum StepSpec {
         #[serde(default = "default_generation")]
         generation: StemGeneration,
     },
-    /// Elided-article removal ([`Elision`](super::Elision)).
-    Elision {
+    /// `strip_elided`: removal of elided articles and pronouns (`l'`, `d'`,
+    /// `qu'` …) glued to a word ([`Elision`](super::Elision)).
+    StripElided {
         /// `fr`, `it` or `ca`; all three when absent.
         #[serde(default, skip_serializing_if = "Option::is_none")]
         language: Option<LangCode>,
     },
-    /// Length bounds in characters ([`LengthLimit`](super::LengthLimit)).
-    Length {
+    /// `keep_sizes`: keeps the tokens whose length in characters is in
+    /// `shortest..=longest` ([`LengthLimit`](super::LengthLimit)).
+    KeepSizes {
         /// Fewest characters kept.
-        #[serde(default = "default_length_min")]
-        min: usize,
+        #[serde(default = "default_size_shortest")]
+        shortest: usize,
         /// Most characters kept.
-        #[serde(default = "default_length_max")]
-        max: usize,
+        #[serde(default = "default_size_longest")]
+        longest: usize,
     },
-    /// Prefixes of each token ([`EdgeNgrams`](super::EdgeNgrams)).
-    EdgeNgrams {
+    /// `prefixes`: each token's leading prefixes of `shortest..=longest`
+    /// characters, for search as you type ([`EdgeNgrams`](super::EdgeNgrams)).
+    Prefixes {
         /// Shortest prefix.
-        #[serde(default = "default_ngram_min")]
-        min: usize,
+        #[serde(default = "default_prefix_shortest")]
+        shortest: usize,
         /// Longest prefix.
-        #[serde(default = "default_ngram_max")]
-        max: usize,
+        #[serde(default = "default_prefix_longest")]
+        longest: usize,
     },
     /// Removal of tokens by shape ([`DropTokens`](super::DropTokens)).
     Drop {
@@ -283,9 +295,9 @@ impl StepSpec {
             StepSpec::Fold {} => "fold",
             StepSpec::Stop { .. } => "stop",
             StepSpec::Stem { .. } => "stem",
-            StepSpec::Elision { .. } => "elision",
-            StepSpec::Length { .. } => "length",
-            StepSpec::EdgeNgrams { .. } => "edge_ngrams",
+            StepSpec::StripElided { .. } => "strip_elided",
+            StepSpec::KeepSizes { .. } => "keep_sizes",
+            StepSpec::Prefixes { .. } => "prefixes",
             StepSpec::Drop { .. } => "drop",
             StepSpec::Hashtags { .. } => "hashtags",
         }
@@ -302,9 +314,13 @@ impl StepSpec {
             StepSpec::Stem { language: None, generation } => {
                 format!("stem({})", generation.as_str())
             }
-            StepSpec::Elision { language: Some(l) } => format!("elision({l})"),
-            StepSpec::Length { min, max } => format!("length({min}..={max})"),
-            StepSpec::EdgeNgrams { min, max } => format!("edge_ngrams({min}..={max})"),
+            StepSpec::StripElided { language: Some(l) } => format!("strip_elided({l})"),
+            StepSpec::KeepSizes { shortest, longest } => {
+                format!("keep_sizes({shortest}..={longest})")
+            }
+            StepSpec::Prefixes { shortest, longest } => {
+                format!("prefixes({shortest}..={longest})")
+            }
             StepSpec::Drop { kinds } => {
                 let kinds: Vec<&str> = kinds.iter().map(|k| k.as_str()).collect();
                 format!("drop({})", kinds.join(", "))
@@ -550,17 +566,28 @@ impl ChainSpec {
     }
 }
 
+/// A validated chain file: its chains, and a deprecation note for every
+/// step or option written with a name of the previous release.
+#[derive(Clone, Debug, PartialEq)]
+pub struct ChainFile {
+    /// The chains, in file order.
+    pub chains: Vec<ChainSpec>,
+    /// One `file:line: chain "x": …` note per use of an old name, saying
+    /// the new one (the CLI prints them as warnings; they never fail a run).
+    pub deprecations: Vec<String>,
+}
+
 /// Read and validate a chain file. Plain chains named as a route's
 /// `fallback` are looked up in the file first, then among the built-ins. A
 /// chain named like a built-in (`standard`, …) is refused: the name would
 /// mean two different chains.
-pub fn read_chain_file(path: &Path) -> Result<Vec<ChainSpec>> {
+pub fn read_chain_file(path: &Path) -> Result<ChainFile> {
     let bytes = std::fs::read(path).map_err(|e| Error::io(path, e))?;
     let text = String::from_utf8(bytes)
         .map_err(|e| Error::chain(format!("{}: not UTF-8 ({})", path.display(), e.utf8_error())))?;
     let text = text.strip_prefix('\u{feff}').unwrap_or(&text);
     let builtins = builtin_chains(LangCode::parse("en").expect("en is ISO 639-1"))?;
-    parse_chains(text, &path.display().to_string(), &builtins)
+    parse_chain_file(text, &path.display().to_string(), &builtins)
 }
 
 /// The built-in chains (`standard`, `stemmed`, `hashtag`, `routed`) from the
@@ -613,16 +640,30 @@ pub fn select_chains(available: &[ChainSpec], names: &str) -> Result<Vec<ChainSp
     Ok(chosen)
 }
 
+/// Parse and validate chain-file text, keeping only the chains (any
+/// deprecation notes are dropped: for the built-ins and texts in code; files
+/// a user wrote go through [`parse_chain_file`]).
+pub fn parse_chains(text: &str, origin: &str, pool: &[ChainSpec]) -> Result<Vec<ChainSpec>> {
+    parse_chain_file(text, origin, pool).map(|file| file.chains)
+}
+
 /// Parse and validate chain-file text. `origin` names the file in messages;
 /// `pool` holds the chains the file may not redefine (the built-ins, for a
 /// user's chain file): their names are taken, and their plain chains may be
 /// named as a route's `fallback`.
-pub fn parse_chains(text: &str, origin: &str, pool: &[ChainSpec]) -> Result<Vec<ChainSpec>> {
+pub fn parse_chain_file(text: &str, origin: &str, pool: &[ChainSpec]) -> Result<ChainFile> {
     let raw: RawFile = toml::from_str(text).map_err(|e| {
         let line = e.span().map_or(1, |s| line_of(text, s.start));
         Error::chain(format!("{origin}:{line}: {}", toml_message(text, &e)))
     })?;
-    let mut issues = Issues { origin, text, seen: BTreeSet::new(), listed: Vec::new(), more: 0 };
+    let mut issues = Issues {
+        origin,
+        text,
+        seen: BTreeSet::new(),
+        listed: Vec::new(),
+        more: 0,
+        deprecations: Vec::new(),
+    };
     if raw.chain.is_empty() {
         issues.push(0..0, "no [[chain]] table: a chain file defines at least one chain");
     }
@@ -728,7 +769,10 @@ pub fn parse_chains(text: &str, origin: &str, pool: &[ChainSpec]) -> Result<Vec<
     }
 
     if issues.listed.is_empty() {
-        Ok(specs.into_iter().flatten().collect())
+        Ok(ChainFile {
+            chains: specs.into_iter().flatten().collect(),
+            deprecations: issues.deprecations,
+        })
     } else {
         let mut message = issues.listed.join("\n");
         if issues.more > 0 {
@@ -798,12 +842,59 @@ fn typed_steps(
 ) -> Vec<Spanned<StepSpec>> {
     let mut steps = Vec::with_capacity(raw.len());
     for value in raw {
+        let mut value = Spanned::new(value.span(), value.get_ref().clone());
+        let renamed = rename_old_step(value.get_mut());
+        if !renamed.is_empty() {
+            issues.deprecate(
+                value.span(),
+                format!(
+                    "{label}: {}; the old name is read in this release only",
+                    renamed.join(", ")
+                ),
+            );
+        }
         match value.get_ref().clone().try_into::<StepSpec>() {
             Ok(step) => steps.push(Spanned::new(value.span(), step)),
             Err(e) => issues.push(value.span(), format!("{label}: {}", one_line(e.message()))),
         }
     }
     steps
+}
+
+/// Step names of the previous release and their replacements.
+const RENAMED_STEPS: &[(&str, &str)] =
+    &[("elision", "strip_elided"), ("length", "keep_sizes"), ("edge_ngrams", "prefixes")];
+
+/// Option keys of `keep_sizes` and `prefixes` in the previous release and
+/// their replacements.
+const RENAMED_BOUNDS: &[(&str, &str)] = &[("min", "shortest"), ("max", "longest")];
+
+/// Rewrite a step written with the previous release's names (see
+/// [`RENAMED_STEPS`], [`RENAMED_BOUNDS`]) into today's, returning what was
+/// renamed (`step = "length" is now step = "keep_sizes"`, `min is now
+/// shortest`); nothing for a step in today's words. An old key beside its
+/// new one is left alone, for serde to refuse as unknown.
+fn rename_old_step(value: &mut toml::Value) -> Vec<String> {
+    let mut renamed = Vec::new();
+    let Some(table) = value.as_table_mut() else { return renamed };
+    let old = table.get("step").and_then(toml::Value::as_str).unwrap_or_default();
+    if let Some((old, new)) = RENAMED_STEPS.iter().find(|(o, _)| *o == old) {
+        table.insert("step".into(), toml::Value::String((*new).into()));
+        renamed.push(format!("step = {old:?} is now step = {new:?}"));
+    }
+    let step = table.get("step").and_then(toml::Value::as_str).unwrap_or_default();
+    if matches!(step, "keep_sizes" | "prefixes") {
+        for (old, new) in RENAMED_BOUNDS {
+            if table.contains_key(*new) {
+                continue;
+            }
+            if let Some(v) = table.remove(*old) {
+                table.insert((*new).into(), v);
+                renamed.push(format!("{old} is now {new}"));
+            }
+        }
+    }
+    renamed
 }
 
 /// The TOML parser's message on one line. The parser gives no message when
@@ -848,9 +939,20 @@ struct Issues<'a> {
     seen: BTreeSet<String>,
     listed: Vec<String>,
     more: usize,
+    /// Uses of old names, as `origin:line: message` (not errors).
+    deprecations: Vec<String>,
 }
 
 impl Issues<'_> {
+    /// Note a use of a previous release's name (a warning, not a problem).
+    fn deprecate(&mut self, span: Range<usize>, message: impl AsRef<str>) {
+        let entry =
+            format!("{}:{}: {}", self.origin, line_of(self.text, span.start), message.as_ref());
+        if !self.deprecations.contains(&entry) {
+            self.deprecations.push(entry);
+        }
+    }
+
     fn push(&mut self, span: Range<usize>, message: impl AsRef<str>) {
         let line = line_of(self.text, span.start);
         let entry = format!("{}:{}: {}", self.origin, line, message.as_ref());
@@ -931,15 +1033,15 @@ fn check_pipeline(
         if seen_ngrams
             && !matches!(
                 step,
-                StepSpec::Length { .. }
+                StepSpec::KeepSizes { .. }
                     | StepSpec::Lowercase { .. }
                     | StepSpec::Fold {}
                     | StepSpec::Drop { .. }
             )
         {
             err(format!(
-                "{name} cannot follow edge_ngrams (it would work on prefixes); \
-                 only length, lowercase, fold and drop may"
+                "{name} cannot follow prefixes (it would work on prefixes); \
+                 only keep_sizes, lowercase, fold and drop may"
             ));
         }
         match &mut step {
@@ -1020,26 +1122,30 @@ fn check_pipeline(
                 }
                 seen_stem = true;
             }
-            StepSpec::Elision { language } => {
+            StepSpec::StripElided { language } => {
                 if let Some(l) = language {
                     if !ELISION_LANGUAGES.contains(&l.as_str()) {
                         err(format!(
-                            "elision: no prefix list for language {:?}; accepted: {} \
-                             (or no language for all three)",
+                            "strip_elided: no list of elided words for language {:?}; \
+                             accepted: {} (or no language for all three)",
                             l.as_str(),
                             ELISION_LANGUAGES.join(", ")
                         ));
                     }
                 }
                 if seen_stem {
-                    err("elision must come before stem".to_string());
+                    err("strip_elided must come before stem".to_string());
                 }
             }
-            StepSpec::Length { min, max } | StepSpec::EdgeNgrams { min, max } => {
-                if *min == 0 || min > max {
-                    err(format!("{name}: need 1 ≤ min ≤ max, found min = {min}, max = {max}"));
+            StepSpec::KeepSizes { shortest, longest }
+            | StepSpec::Prefixes { shortest, longest } => {
+                if *shortest == 0 || shortest > longest {
+                    err(format!(
+                        "{name}: need 1 ≤ shortest ≤ longest, found shortest = {shortest}, \
+                         longest = {longest}"
+                    ));
                 }
-                if name == "edge_ngrams" {
+                if name == "prefixes" {
                     seen_ngrams = true;
                 }
             }
@@ -1267,8 +1373,9 @@ fn check_route(
             toml::Value::Table(table) => {
                 match toml::Value::Table(table.clone()).try_into::<RawPipelineOwned>() {
                     Ok(p) => {
-                        let steps: Vec<Spanned<StepSpec>> =
+                        let raw: Vec<Spanned<toml::Value>> =
                             p.steps.into_iter().map(|s| Spanned::new(value.span(), s)).collect();
+                        let steps = typed_steps(issues, &format!("{label}: fallback"), &raw);
                         let tokenizer = p.tokenizer.map(|t| Spanned::new(value.span(), t));
                         let own = p.unspaced.map(|u| Spanned::new(value.span(), u));
                         let unspaced = own.as_ref().or(r.unspaced.as_ref());
@@ -1349,7 +1456,7 @@ struct RawPipelineOwned {
     tokenizer: Option<TokenizerKind>,
     unspaced: Option<Unspaced>,
     #[serde(default)]
-    steps: Vec<StepSpec>,
+    steps: Vec<toml::Value>,
 }
 
 #[cfg(test)]
@@ -1442,7 +1549,7 @@ mod tests {
         assert_eq!(
             e,
             "my.toml:6: chain \"a\": unknown variant `stemm`, expected one of `lowercase`, \
-             `fold`, `stop`, `stem`, `elision`, `length`, `edge_ngrams`, `drop`, `hashtags`"
+             `fold`, `stop`, `stem`, `strip_elided`, `keep_sizes`, `prefixes`, `drop`, `hashtags`"
         );
     }
 
@@ -1456,8 +1563,12 @@ mod tests {
         let e = err(&chain("  { step = \"lowercase\" },\n  { step = \"stem\", language = \"en\", generation = \"2020\" },"));
         assert!(e.starts_with("my.toml:6: "), "{e}");
         assert!(e.contains("expected `2018` or `current`"), "{e}");
-        let e = err(&chain("  { step = \"length\", min = 5, max = 2 },"));
-        assert_eq!(e, "my.toml:5: chain \"a\": length: need 1 ≤ min ≤ max, found min = 5, max = 2");
+        let e = err(&chain("  { step = \"keep_sizes\", shortest = 5, longest = 2 },"));
+        assert_eq!(
+            e,
+            "my.toml:5: chain \"a\": keep_sizes: need 1 ≤ shortest ≤ longest, found shortest = 5, \
+             longest = 2"
+        );
         let e = err(&chain("  { step = \"drop\", kinds = [] },"));
         assert!(e.contains("accepted: mentions, urls, emoji, numbers, hashtags"), "{e}");
         let e = err("[[chain]]\nname = \"a\"\ntokenizer = \"word\"\n");
@@ -1481,7 +1592,7 @@ mod tests {
         let e =
             err(&chain("  { step = \"lowercase\" },\n  { step = \"stop\", language = \"tr\" },"));
         assert!(e.contains("no stop list for language \"tr\""), "{e}");
-        let e = err(&chain("  { step = \"elision\", language = \"de\" },"));
+        let e = err(&chain("  { step = \"strip_elided\", language = \"de\" },"));
         assert!(e.contains("accepted: ca, fr, it"), "{e}");
         let e = err(&chain("  { step = \"stem\", language = \"xx\" },"));
         assert_eq!(e, "my.toml:5: chain \"a\": expected an ISO 639-1 code, found \"xx\"");
@@ -1561,8 +1672,8 @@ mod tests {
         let e = err("[[chain]]\nname = \"a\"\nsteps = [{ step = \"hashtags\" }, { step = \"drop\", kinds = [\"urls\"] }]\n");
         assert!(e.contains("hashtags needs tokenizer = \"posts\""), "{e}");
         assert!(e.contains("drop urls: the words tokenizer never produces them"), "{e}");
-        let e = err(&chain("  { step = \"edge_ngrams\" },\n  { step = \"lowercase\" },\n  { step = \"stem\", language = \"en\" },"));
-        assert!(e.contains("my.toml:7: chain \"a\": stem cannot follow edge_ngrams"), "{e}");
+        let e = err(&chain("  { step = \"prefixes\" },\n  { step = \"lowercase\" },\n  { step = \"stem\", language = \"en\" },"));
+        assert!(e.contains("my.toml:7: chain \"a\": stem cannot follow prefixes"), "{e}");
     }
 
     #[test]
@@ -1777,8 +1888,9 @@ mod tests {
         let path = dir.path().join("chains.toml");
         std::fs::write(&path, "\u{feff}[[chain]]\nname = \"x\"\nsteps = [{ step = \"fold\" }]\n")
             .expect("write");
-        let chains = read_chain_file(&path).expect("valid");
-        assert_eq!(chains[0].name.as_str(), "x");
+        let file = read_chain_file(&path).expect("valid");
+        assert_eq!(file.chains[0].name.as_str(), "x");
+        assert!(file.deprecations.is_empty());
         std::fs::write(&path, "[[chain]]\nname = \"x\"\nsteps = [{ step = \"nope\" }]\n")
             .expect("write");
         let e = read_chain_file(&path).expect_err("bad step").to_string();
@@ -1791,7 +1903,72 @@ mod tests {
     #[test]
     fn example_file_is_valid() {
         let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("chains/example.toml");
-        let chains = read_chain_file(&path).expect("valid example");
-        assert_eq!(chains.len(), 5);
+        let file = read_chain_file(&path).expect("valid example");
+        assert_eq!(file.chains.len(), 5);
+        assert_eq!(file.deprecations, Vec::<String>::new(), "the example uses today's names");
+    }
+
+    /// The previous release's names read as today's steps, each use noted
+    /// with its line and the new name; a step in today's words is not noted.
+    #[test]
+    fn old_step_names_are_read_with_a_note() {
+        let old = chain(
+            "  { step = \"elision\", language = \"it\" },\n  { step = \"lowercase\" },\n  \
+             { step = \"length\", max = 20 },\n  { step = \"edge_ngrams\", min = 3 },",
+        );
+        let file = parse_chain_file(&old, "old.toml", &[]).expect("old names are read");
+        let ChainBody::Plain(p) = &file.chains[0].body else { panic!("plain") };
+        assert_eq!(
+            p.steps,
+            [
+                StepSpec::StripElided { language: LangCode::parse("it") },
+                StepSpec::Lowercase { language: None },
+                StepSpec::KeepSizes { shortest: 1, longest: 20 },
+                StepSpec::Prefixes { shortest: 3, longest: 15 },
+            ]
+        );
+        assert_eq!(
+            file.deprecations,
+            [
+                "old.toml:5: chain \"a\": step = \"elision\" is now step = \"strip_elided\"; \
+                 the old name is read in this release only",
+                "old.toml:7: chain \"a\": step = \"length\" is now step = \"keep_sizes\", max is \
+                 now longest; the old name is read in this release only",
+                "old.toml:8: chain \"a\": step = \"edge_ngrams\" is now step = \"prefixes\", min is \
+                 now shortest; the old name is read in this release only",
+            ]
+        );
+        // Today's step with yesterday's key.
+        let file = parse_chain_file(&chain("  { step = \"keep_sizes\", max = 9 },"), "k.toml", &[])
+            .expect("old key is read");
+        assert_eq!(
+            file.chains[0].pipelines().next().map(|p| p.steps.clone()),
+            Some(vec![StepSpec::KeepSizes { shortest: 1, longest: 9 }])
+        );
+        assert_eq!(
+            file.deprecations,
+            ["k.toml:5: chain \"a\": max is now longest; the old name is read in this release only"]
+        );
+        // Reports record today's names.
+        let json = serde_json::to_value(&file.chains[0]).expect("serializes");
+        assert_eq!(
+            json["steps"][0],
+            serde_json::json!({"step": "keep_sizes", "shortest": 1, "longest": 9})
+        );
+        // An old key beside its new one is refused, not silently dropped.
+        let e = err(&chain("  { step = \"prefixes\", min = 2, shortest = 3 },"));
+        assert!(e.starts_with("my.toml:5: chain \"a\": unknown field `min`"), "{e}");
+        // Routes and inline fallbacks read old names too.
+        let routed = "[[chain]]\nname = \"r\"\n[chain.route]\nlanguages = [\"fr\"]\n\
+                      steps = [{ step = \"elision\" }, { step = \"lowercase\" }, { step = \"stem\" }]\n\
+                      fallback = { steps = [{ step = \"length\", min = 2 }] }\n";
+        let file = parse_chain_file(routed, "r.toml", &[]).expect("old names are read");
+        let route = file.chains[0].route().expect("routed");
+        assert_eq!(route.branches[0].pipeline.steps[0], StepSpec::StripElided { language: None });
+        assert_eq!(route.fallback.steps, [StepSpec::KeepSizes { shortest: 2, longest: 40 }]);
+        assert_eq!(file.deprecations.len(), 2, "{:?}", file.deprecations);
+        assert!(
+            file.deprecations[1].starts_with("r.toml:6: chain \"r\": fallback: step = \"length\"")
+        );
     }
 }

@@ -156,6 +156,17 @@ impl InputFlags {
     }
 }
 
+/// The chains of a chain file; each use of a step name of the previous
+/// release is printed as `postassay: warning: FILE:LINE: …` with its new
+/// name (it does not fail the run).
+pub fn read_chain_file(path: &Path) -> Result<Vec<ChainSpec>, Error> {
+    let file = analysis::read_chain_file(path)?;
+    for note in &file.deprecations {
+        eprintln!("postassay: warning: {note}");
+    }
+    Ok(file.chains)
+}
+
 /// Which chains to use.
 #[derive(Debug, Args)]
 pub struct ChainFlags {
@@ -183,7 +194,7 @@ impl ChainFlags {
         })?;
         let builtins = analysis::builtin_chains(stem_lang)?;
         let from_file = match &self.chain_file {
-            Some(f) => analysis::read_chain_file(f)?,
+            Some(f) => read_chain_file(f)?,
             None => Vec::new(),
         };
         match (&self.chains, from_file.is_empty()) {

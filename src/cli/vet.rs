@@ -13,7 +13,7 @@ use postassay::diagnose::{self, render, DiagnosePlan, FreqSource, Sections};
 use postassay::error::Error;
 use postassay::input::LangCode;
 
-use super::common::{resolve_data_dir, DEFAULT_TOP, DEMO_CORPUS};
+use super::common::{read_chain_file, resolve_data_dir, DEFAULT_TOP, DEMO_CORPUS};
 
 #[derive(Debug, Args)]
 pub struct VetArgs {
@@ -197,7 +197,7 @@ fn missing_default_list(
 fn chains(args: &VetArgs) -> Result<Vec<ChainSpec>, Error> {
     let builtins = analysis::builtin_chains(LangCode::parse("en").expect("en is ISO 639-1"))?;
     let from_file = match &args.chain_file {
-        Some(f) => analysis::read_chain_file(f)?,
+        Some(f) => read_chain_file(f)?,
         None => Vec::new(),
     };
     Ok(match (&args.chains, from_file.is_empty()) {

@@ -2,7 +2,7 @@
 //! demo bench, and a bad chain file exits 2 naming its lines, with nothing
 //! written.
 
-use crate::util::{postassay, read_csv, root, texts, write};
+use crate::util::{postassay, read_csv, root, texts, token_texts, write};
 
 #[test]
 fn example_chain_file_runs_on_the_demo() {
@@ -35,7 +35,7 @@ fn bad_chain_file_exits_2_with_every_problem_and_writes_nothing() {
         tmp.path(),
         "bad.toml",
         "[[chain]]\nname = \"a\"\nsteps = [{ step = \"stemm\" }]\n\n\
-         [[chain]]\nname = \"b\"\nsteps = [{ step = \"length\", min = 5, max = 2 }]\n",
+         [[chain]]\nname = \"b\"\nsteps = [{ step = \"keep_sizes\", shortest = 5, longest = 2 }]\n",
     );
     let out = tmp.path().join("out");
     let res = postassay(
@@ -122,4 +122,66 @@ fn a_file_chain_cannot_take_a_built_in_name() {
     assert!(!out.exists(), "--out must not be created on failure");
     let res = postassay(&root(), &["tokens", "--chain-file", file, "--chain", "mine", "Ferry"]);
     assert_eq!(res.status.code(), Some(2), "tokens reads the same file: {}", texts(&res).1);
+}
+
+/// The step names of the previous release (`elision`, `length`,
+/// `edge_ngrams` with `min`/`max`) still work for one release: exit 0, the
+/// same tokens as the new names, and a warning per use on stderr naming the
+/// file, the line and the new name.
+#[test]
+fn old_step_names_still_work_with_a_warning() {
+    let tmp = tempfile::tempdir().unwrap();
+    let chain = |steps: &str| {
+        format!("[[chain]]\nname = \"c\"\ntokenizer = \"words\"\nsteps = [\n{steps}\n]\n")
+    };
+    let old = write(
+        tmp.path(),
+        "old.toml",
+        &chain(
+            "  { step = \"elision\", language = \"fr\" },\n  { step = \"lowercase\" },\n  \
+             { step = \"length\", min = 3, max = 30 },\n  { step = \"edge_ngrams\", min = 3, max = 5 },",
+        ),
+    );
+    let new = write(
+        tmp.path(),
+        "new.toml",
+        &chain(
+            "  { step = \"strip_elided\", language = \"fr\" },\n  { step = \"lowercase\" },\n  \
+             { step = \"keep_sizes\", shortest = 3, longest = 30 },\n  \
+             { step = \"prefixes\", shortest = 3, longest = 5 },",
+        ),
+    );
+    let tokens = |file: &std::path::Path| {
+        let file = file.to_str().unwrap();
+        let args = ["tokens", "--chain-file", file, "--chain", "c", "--format", "json"];
+        token_texts(&root(), &[&args[..], &["L'amitié d'un an"]].concat())
+    };
+    let (old_tokens, warnings) = tokens(&old);
+    let (new_tokens, quiet) = tokens(&new);
+    // l' and d' stripped, "un" and "an" (2 characters) dropped, then the
+    // prefixes of 3 to 5 characters of "amitié".
+    assert_eq!(new_tokens, ["ami", "amit", "amiti"]);
+    assert_eq!(old_tokens, new_tokens);
+    assert_eq!(quiet, "", "the new names warn of nothing");
+    let lines: Vec<&str> = warnings.lines().collect();
+    let at = old.display();
+    assert_eq!(
+        lines,
+        [
+            format!(
+                "postassay: warning: {at}:5: chain \"c\": step = \"elision\" is now step = \
+                 \"strip_elided\"; the old name is read in this release only"
+            ),
+            format!(
+                "postassay: warning: {at}:7: chain \"c\": step = \"length\" is now step = \
+                 \"keep_sizes\", min is now shortest, max is now longest; the old name is read \
+                 in this release only"
+            ),
+            format!(
+                "postassay: warning: {at}:8: chain \"c\": step = \"edge_ngrams\" is now step = \
+                 \"prefixes\", min is now shortest, max is now longest; the old name is read in \
+                 this release only"
+            ),
+        ]
+    );
 }

@@ -32,6 +32,22 @@ pub fn texts(out: &Output) -> (String, String) {
     )
 }
 
+/// Run the binary in `cwd` with `args` (a `tokens … --format json` call),
+/// expecting exit 0: the first text's tokens, and stderr.
+pub fn token_texts(cwd: &Path, args: &[&str]) -> (Vec<String>, String) {
+    let res = postassay(cwd, args);
+    let (stdout, stderr) = texts(&res);
+    assert_eq!(res.status.code(), Some(0), "{stderr}");
+    let v: serde_json::Value = serde_json::from_str(&stdout).expect("JSON on stdout");
+    let tokens = v[0]["tokens"]
+        .as_array()
+        .expect("a token list")
+        .iter()
+        .map(|t| t["token"].as_str().expect("a token text").to_string())
+        .collect();
+    (tokens, stderr)
+}
+
 /// Write `content` to `dir/name` and return the path.
 pub fn write(dir: &Path, name: &str, content: &str) -> PathBuf {
     let p = dir.join(name);
