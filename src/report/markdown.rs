@@ -8,10 +8,11 @@ use crate::bench::compare::{BreakdownCell, MIN_BREAKDOWN_QUERIES};
 use crate::diagnose::render::{
     conflation_table, routing_by_chain, routing_table, segmentation_table,
 };
+use crate::plural::counted;
 use crate::report::model::Report;
 use crate::report::text::{
     breakdown_caveat, build_time, cost_table, fixed, headline, interval, moved_tables,
-    names_groups, pvalue, reindex_case, sentence, signed, spans_markdown,
+    names_groups, pvalue, reindex_case, sentence, signed, spans_markdown, systems_compared,
 };
 
 /// Render the whole Markdown report.
@@ -21,15 +22,14 @@ pub fn render(r: &Report) -> String {
     let _ = writeln!(s, "# postassay report\n");
     let _ = writeln!(
         s,
-        "{} {} compared on {} evaluated queries ({} skipped for having no relevant post), \
-         {} judgments{}. Baseline: `{}`. Significance: two-sided paired randomization test, \
-         Holm-adjusted across systems, α = {}.\n",
-        r.systems.len(),
-        if r.command == "run" { "analysis chains" } else { "runs" },
-        r.counts.queries_evaluated,
+        "{} compared on {} ({} skipped for having no relevant post), {}{}. Baseline: `{}`. \
+         Significance: two-sided paired randomization test, Holm-adjusted across systems, \
+         α = {}.\n",
+        systems_compared(r),
+        counted(r.counts.queries_evaluated, "evaluated query", "evaluated queries"),
         r.counts.queries_skipped,
-        r.counts.judgments,
-        r.counts.posts.map(|p| format!(", {p} posts")).unwrap_or_default(),
+        counted(r.counts.judgments, "judgment", "judgments"),
+        r.counts.posts.map(|p| format!(", {}", counted(p, "post", "posts"))).unwrap_or_default(),
         r.settings.baseline,
         r.settings.alpha,
     );

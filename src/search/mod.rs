@@ -162,7 +162,10 @@ fn top_hits(
     }
     docs.sort_by(|a, b| b.0.total_cmp(&a.0).then_with(|| a.1.cmp(b.1)));
     docs.truncate(depth);
-    Ok(docs.into_iter().map(|(s, id)| RankedDoc { doc: id.clone(), score: f64::from(s) }).collect())
+    Ok(docs
+        .into_iter()
+        .map(|(s, id)| RankedDoc { doc: id.clone(), score: Some(f64::from(s)) })
+        .collect())
 }
 
 /// Where one post stands for one query under one chain.
@@ -203,7 +206,7 @@ pub fn explain_post(
         }
         None => None,
     };
-    Ok(PostMatch { rank: Some(pos + 1), score: all.get(pos).map(|d| d.score), explanation })
+    Ok(PostMatch { rank: Some(pos + 1), score: all.get(pos).and_then(|d| d.score), explanation })
 }
 
 /// The address of a post in the index (a scan of the ordinal column; used

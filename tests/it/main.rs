@@ -13,6 +13,8 @@ mod pool;
 mod run;
 mod run_vet;
 mod score;
+#[path = "../../src/test_skips.rs"]
+mod test_skips;
 mod tokens;
 mod util;
 mod vet;
