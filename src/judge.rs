@@ -783,6 +783,20 @@ mod tests {
     }
 
     #[test]
+    fn a_declared_separator_is_kept_when_appending() {
+        // A spreadsheet's `sep=;` line, then a header in its own column order.
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("j.csv");
+        std::fs::write(&path, "sep=;\ngrade;query_id;doc_id\n2;q1;d1\n").unwrap();
+        let (mut appender, judged) = JudgmentsAppender::open(&path).unwrap();
+        assert_eq!(judged.len(), 1);
+        appender.append(&QueryId::from("q1"), &PostId::from("d2"), 1).unwrap();
+        let text = std::fs::read_to_string(&path).unwrap();
+        assert_eq!(text, "sep=;\ngrade;query_id;doc_id\n2;q1;d1\n1;q1;d2\n");
+        assert_eq!(read_judgments(&path).unwrap().0.len(), 2, "reads back");
+    }
+
+    #[test]
     fn complete_last_line_without_line_end_is_completed_by_the_first_grade() {
         let dir = tempfile::tempdir().unwrap();
         let path = dir.path().join("j.csv");
