@@ -13,9 +13,14 @@
 //!   `kill -9` leaves either the whole line or nothing, and loses no grade
 //!   whose key was pressed. Only an undo removes a line, and only the one
 //!   this session appended last (see below).
-//! - A file that does not end with a line end when the session starts (a
-//!   torn tail left by another program) is refused, naming the line, rather
-//!   than appended to (the next line would be glued onto it).
+//! - A file whose last line has no line end is accepted when that line
+//!   reads as a complete judgment (or header): an editor or a spreadsheet
+//!   often saves a file that way, and `run` reads it. The line end is then
+//!   written together with the first grade (one `write_all`), so the next
+//!   line is never glued onto it, and an undo of that grade restores the
+//!   file exactly. A last line that does not read (a torn tail left by an
+//!   interrupted program) is refused, naming the line, rather than appended
+//!   to.
 //! - A missing or empty file is created with the header
 //!   `query_id,doc_id,grade`. An existing file keeps its layout: CSV lines
 //!   follow its header's column order (extra columns left empty), the
@@ -44,9 +49,10 @@ use std::fs::{File, OpenOptions};
 use std::io::{BufRead, Read, Seek, SeekFrom, Write};
 use std::path::{Path, PathBuf};
 
-use crate::error::{Error, Result};
+use crate::error::{Error, ErrorKind, Result};
 use crate::ids::{PostId, QueryId};
-use crate::input::{read_judgments, Judgments};
+use crate::input::{declared_separator, read_judgments, Judgments};
+use crate::plural::counted;
 use crate::pool::PoolItem;
 
 /// The grade scale shown to the judge, with each grade's meaning.
@@ -105,8 +111,9 @@ pub fn keys_help() -> String {
 /// How lines are laid out in the judgments file being appended to.
 #[derive(Debug, Clone, PartialEq, Eq)]
 enum Layout {
-    /// CSV with a header: number of columns and where the three are.
-    Csv { width: usize, query: usize, doc: usize, grade: usize },
+    /// CSV with a header: number of columns, where the three are, and the
+    /// separator (`,`, or what a first line `sep=X` declares).
+    Csv { width: usize, query: usize, doc: usize, grade: usize, separator: u8 },
     /// `query_id iteration doc_id grade`, whitespace-separated.
     FourColumn,
 }
@@ -119,46 +126,62 @@ struct Inspection {
     has_judgments: bool,
     /// The line end of the first line (`\r\n` or `\n`).
     line_end: &'static str,
+    /// The number of the last line when it has no line end.
+    unterminated: Option<u64>,
 }
 
-/// Look at an existing, non-empty judgments file: refuse a torn tail, find
-/// the layout, the line end and whether it holds any judgment.
+/// Look at an existing judgments file: find the layout, the line end,
+/// whether it holds any judgment and whether its last line lacks a line end
+/// (whether that line reads is [`read_existing`]'s to check).
 fn inspect(path: &Path) -> Result<Inspection> {
     let mut file = File::open(path).map_err(|e| Error::io(path, e))?;
     let mut bytes = Vec::new();
     // The whole file is read once here; judgment files are small (one short
     // line per judged pair).
     file.read_to_end(&mut bytes).map_err(|e| Error::io(path, e))?;
-    if bytes.last().is_some_and(|&b| b != b'\n') {
-        let line = bytes.iter().filter(|&&b| b == b'\n').count() as u64 + 1;
-        return Err(Error::at_line(
-            path,
-            line,
-            "the file does not end with a line end: the last line may be a torn write of an \
-             interrupted program; complete or remove it before judging",
-        ));
-    }
+    let unterminated = bytes
+        .last()
+        .is_some_and(|&b| b != b'\n')
+        .then(|| bytes.iter().filter(|&&b| b == b'\n').count() as u64 + 1);
     let text = bytes.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(&bytes);
     let mut lines =
         text.split(|&b| b == b'\n').enumerate().filter(|(_, l)| !l.trim_ascii().is_empty());
     let Some((first_index, first)) = lines.next() else {
         return Ok(Inspection {
-            layout: Layout::Csv { width: 3, query: 0, doc: 1, grade: 2 },
+            layout: Layout::Csv { width: 3, query: 0, doc: 1, grade: 2, separator: b',' },
             has_judgments: false,
             line_end: "\n",
+            unterminated,
         });
     };
     let line_end = if first.ends_with(b"\r") { "\r\n" } else { "\n" };
+    // A spreadsheet's `sep=X` line declares the separator; the header follows.
+    let (separator, first_index, first) = match declared_separator(first) {
+        Some(Ok(separator)) => match lines.next() {
+            Some((index, header)) => (separator, index, header),
+            None => {
+                return Ok(Inspection {
+                    layout: Layout::Csv { width: 3, query: 0, doc: 1, grade: 2, separator },
+                    has_judgments: false,
+                    line_end,
+                    unterminated,
+                })
+            }
+        },
+        _ => (b',', first_index, first),
+    };
     let first = String::from_utf8_lossy(first);
-    let fields: Vec<&str> = first.trim_end_matches('\r').split(',').map(str::trim).collect();
+    let fields: Vec<&str> =
+        first.trim_end_matches('\r').split(char::from(separator)).map(str::trim).collect();
     let has_more = lines.next().is_some();
     if fields.contains(&"query_id") {
         let find = |name: &str| fields.iter().position(|f| *f == name);
         match (find("query_id"), find("doc_id"), find("grade")) {
             (Some(query), Some(doc), Some(grade)) => Ok(Inspection {
-                layout: Layout::Csv { width: fields.len(), query, doc, grade },
+                layout: Layout::Csv { width: fields.len(), query, doc, grade, separator },
                 has_judgments: has_more,
                 line_end,
+                unterminated,
             }),
             _ => Err(Error::at_line(
                 path,
@@ -167,8 +190,35 @@ fn inspect(path: &Path) -> Result<Inspection> {
             )),
         }
     } else {
-        Ok(Inspection { layout: Layout::FourColumn, has_judgments: true, line_end })
+        Ok(Inspection { layout: Layout::FourColumn, has_judgments: true, line_end, unterminated })
     }
+}
+
+/// The judgments of an inspected file (none when it holds none). When its
+/// last line has no line end and is the only line that does not read, that
+/// line is a torn write: the error says so instead of listing it as a bad
+/// judgment.
+fn read_existing(path: &Path, inspection: &Inspection) -> Result<(Judgments, Vec<String>)> {
+    if !inspection.has_judgments {
+        return Ok((Judgments::default(), Vec::new()));
+    }
+    read_judgments(path).map_err(|err| {
+        let Some(last) = inspection.unterminated else { return err };
+        let ErrorKind::Input { problems, more: 0, .. } = err.kind() else { return err };
+        if problems.is_empty() || problems.iter().any(|p| p.line != Some(last)) {
+            return err;
+        }
+        let what: Vec<&str> = problems.iter().map(|p| p.message.as_str()).collect();
+        Error::at_line(
+            path,
+            last,
+            format!(
+                "the last line has no line end and does not read as a judgment ({}): it may be \
+                 a torn write of an interrupted program; complete or remove it before judging",
+                what.join("; ")
+            ),
+        )
+    })
 }
 
 /// Read a judgments file that may hold no judgment yet: a missing file, an
@@ -179,12 +229,7 @@ pub fn read_judgments_allow_empty(path: &Path) -> Result<(Judgments, Vec<String>
     if !path.exists() {
         return Ok((Judgments::default(), Vec::new()));
     }
-    let inspection = inspect(path)?;
-    if inspection.has_judgments {
-        read_judgments(path)
-    } else {
-        Ok((Judgments::default(), Vec::new()))
-    }
+    read_existing(path, &inspect(path)?)
 }
 
 /// Appends grades to a judgments file, one whole line per write, each
@@ -195,6 +240,9 @@ pub struct JudgmentsAppender {
     file: File,
     layout: Layout,
     line_end: &'static str,
+    /// The file's last line has no line end yet: the next append writes one
+    /// first, in the same `write_all`.
+    complete_last_line: bool,
 }
 
 impl JudgmentsAppender {
@@ -218,13 +266,13 @@ impl JudgmentsAppender {
             sync_parent(path);
         }
         let inspection = inspect(path)?;
-        let judgments =
-            if inspection.has_judgments { read_judgments(path)?.0 } else { Judgments::default() };
+        let judgments = read_existing(path, &inspection)?.0;
         let appender = JudgmentsAppender {
             path: path.to_path_buf(),
             file,
             layout: inspection.layout,
             line_end: inspection.line_end,
+            complete_last_line: inspection.unterminated.is_some(),
         };
         Ok((appender, judgments))
     }
@@ -237,7 +285,7 @@ impl JudgmentsAppender {
     /// The line that records `grade` for the pair, line end included.
     fn line(&self, query: &QueryId, doc: &PostId, grade: u32) -> Result<Vec<u8>> {
         match self.layout {
-            Layout::Csv { width, query: qc, doc: dc, grade: gc } => {
+            Layout::Csv { width, query: qc, doc: dc, grade: gc, separator } => {
                 let mut fields = vec![String::new(); width];
                 for (c, v) in
                     [(qc, query.to_string()), (dc, doc.to_string()), (gc, grade.to_string())]
@@ -251,8 +299,10 @@ impl JudgmentsAppender {
                 } else {
                     csv::Terminator::Any(b'\n')
                 };
-                let mut w =
-                    csv::WriterBuilder::new().terminator(terminator).from_writer(Vec::new());
+                let mut w = csv::WriterBuilder::new()
+                    .delimiter(separator)
+                    .terminator(terminator)
+                    .from_writer(Vec::new());
                 w.write_record(&fields)
                     .map_err(|e| Error::usage(format!("formatting a judgment: {e}")))?;
                 w.into_inner().map_err(|e| Error::usage(format!("formatting a judgment: {e}")))
@@ -276,14 +326,19 @@ impl JudgmentsAppender {
     /// Append one grade: one `write_all` of the whole line, then fsync.
     /// Returns where the line went, for [`JudgmentsAppender::retract`].
     pub fn append(&mut self, query: &QueryId, doc: &PostId, grade: u32) -> Result<Appended> {
-        let line = self.line(query, doc, grade)?;
+        let mut line = self.line(query, doc, grade)?;
+        let completes_last_line = self.complete_last_line;
+        if completes_last_line {
+            line.splice(0..0, self.line_end.bytes());
+        }
         let io = |e| Error::io(&self.path, e);
         self.file.write_all(&line).map_err(io)?;
         self.file.sync_data().map_err(io)?;
+        self.complete_last_line = false;
         // In append mode the line went to the end of the file, wherever that
         // was; the length after the write says where it starts.
         let end = self.file.metadata().map_err(io)?.len();
-        Ok(Appended { start: end.saturating_sub(line.len() as u64), line })
+        Ok(Appended { start: end.saturating_sub(line.len() as u64), line, completes_last_line })
     }
 
     /// Take back a line this appender wrote: cut the file to where the line
@@ -305,6 +360,8 @@ impl JudgmentsAppender {
         }
         self.file.set_len(appended.start).map_err(io)?;
         self.file.sync_data().map_err(io)?;
+        // The line end written before this line went with it.
+        self.complete_last_line |= appended.completes_last_line;
         Ok(true)
     }
 }
@@ -314,6 +371,8 @@ impl JudgmentsAppender {
 pub struct Appended {
     start: u64,
     line: Vec<u8>,
+    /// The bytes begin with the line end of the file's former last line.
+    completes_last_line: bool,
 }
 
 /// Make a newly created file's directory entry durable (best effort: some
@@ -390,9 +449,9 @@ impl Session {
     /// One line on where the session starts.
     pub fn opening(&self) -> String {
         format!(
-            "judging into {}: {} pairs in the pool, {} already judged, {} to go",
+            "judging into {}: {} in the pool, {} already judged, {} to go",
             self.appender.path().display(),
-            self.queue.len() + self.already_judged,
+            counted(self.queue.len() + self.already_judged, "pair", "pairs"),
             self.already_judged,
             self.queue.len()
         )
@@ -470,8 +529,8 @@ impl Session {
     pub fn closing(&self) -> String {
         let left = self.queue.len().saturating_sub(self.position);
         format!(
-            "saved {} grades to {}; {} skipped and {} not reached are left for the next session",
-            self.graded,
+            "saved {} to {}; {} skipped and {} not reached are left for the next session",
+            counted(self.graded, "grade", "grades"),
             self.appender.path().display(),
             self.skipped,
             left
@@ -706,9 +765,57 @@ mod tests {
         let path = dir.path().join("j.csv");
         std::fs::write(&path, "query_id,doc_id,grade\nq1,d1,2\nq1,d").unwrap();
         let msg = JudgmentsAppender::open(&path).unwrap_err().to_string();
-        assert!(msg.contains("j.csv:3: the file does not end with a line end"), "{msg}");
+        assert_eq!(
+            msg,
+            format!(
+                "{}:3: the last line has no line end and does not read as a judgment (expected \
+                 3 fields as in the header, found 2): it may be a torn write of an interrupted \
+                 program; complete or remove it before judging",
+                path.display()
+            )
+        );
         // Untouched.
         assert_eq!(std::fs::read_to_string(&path).unwrap(), "query_id,doc_id,grade\nq1,d1,2\nq1,d");
+        // A bad line elsewhere is reported as it is, not as a torn tail.
+        std::fs::write(&path, "query_id,doc_id,grade\nq1,d1,x\nq1,d2,1").unwrap();
+        let msg = JudgmentsAppender::open(&path).unwrap_err().to_string();
+        assert!(msg.contains("j.csv:2: column \"grade\""), "{msg}");
+    }
+
+    #[test]
+    fn a_declared_separator_is_kept_when_appending() {
+        // A spreadsheet's `sep=;` line, then a header in its own column order.
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("j.csv");
+        std::fs::write(&path, "sep=;\ngrade;query_id;doc_id\n2;q1;d1\n").unwrap();
+        let (mut appender, judged) = JudgmentsAppender::open(&path).unwrap();
+        assert_eq!(judged.len(), 1);
+        appender.append(&QueryId::from("q1"), &PostId::from("d2"), 1).unwrap();
+        let text = std::fs::read_to_string(&path).unwrap();
+        assert_eq!(text, "sep=;\ngrade;query_id;doc_id\n2;q1;d1\n1;q1;d2\n");
+        assert_eq!(read_judgments(&path).unwrap().0.len(), 2, "reads back");
+    }
+
+    #[test]
+    fn complete_last_line_without_line_end_is_completed_by_the_first_grade() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("j.csv");
+        let before = "query_id,doc_id,grade\r\nq1,d1,2";
+        std::fs::write(&path, before).unwrap();
+        let (mut appender, judged) = JudgmentsAppender::open(&path).unwrap();
+        assert_eq!(judged.len(), 1);
+        assert_eq!(std::fs::read_to_string(&path).unwrap(), before, "untouched until a grade");
+        let first = appender.append(&QueryId::from("q1"), &PostId::from("d2"), 0).unwrap();
+        let second = appender.append(&QueryId::from("q1"), &PostId::from("d3"), 3).unwrap();
+        let after = "query_id,doc_id,grade\r\nq1,d1,2\r\nq1,d2,0\r\nq1,d3,3\r\n";
+        assert_eq!(std::fs::read_to_string(&path).unwrap(), after);
+        // Undoing both restores the file byte for byte; the next grade
+        // completes the line again.
+        assert!(appender.retract(&second).unwrap() && appender.retract(&first).unwrap());
+        assert_eq!(std::fs::read_to_string(&path).unwrap(), before);
+        appender.append(&QueryId::from("q2"), &PostId::from("d1"), 1).unwrap();
+        let again = "query_id,doc_id,grade\r\nq1,d1,2\r\nq2,d1,1\r\n";
+        assert_eq!(std::fs::read_to_string(&path).unwrap(), again);
     }
 
     #[test]

@@ -9,6 +9,7 @@
 pub mod error;
 pub mod ids;
 pub mod input;
+pub mod plural;
 
 pub use error::{Error, ErrorKind, Result};
 pub mod analysis;
@@ -22,3 +23,5 @@ pub mod pool;
 pub mod report;
 pub mod search;
 pub mod stats;
+#[cfg(test)]
+mod test_skips;

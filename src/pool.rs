@@ -23,6 +23,7 @@ use crate::error::{Error, Problems, Result};
 use crate::gate::load_report;
 use crate::ids::{ChainName, PostId, QueryId};
 use crate::input::{Judgments, Post, Query, Run};
+use crate::plural::counted;
 
 /// The header of a pool file, in this order.
 pub const POOL_HEADER: [&str; 6] =
@@ -154,14 +155,17 @@ pub fn write_pool<W: std::io::Write>(
     let mut warnings = Vec::new();
     if !missing_queries.is_empty() {
         warnings.push(format!(
-            "{} pooled queries are not in the query file (their text is left empty): {}",
-            missing_queries.len(),
+            "{} not in the query file ({} text is left empty): {}",
+            counted(missing_queries.len(), "pooled query is", "pooled queries are"),
+            if missing_queries.len() == 1 { "its" } else { "their" },
             abbreviate(&missing_queries)
         ));
     }
     if missing_posts > 0 {
         warnings.push(format!(
-            "{missing_posts} pooled posts are not in the corpus (their text is left empty)"
+            "{} not in the corpus ({} text is left empty)",
+            counted(missing_posts, "pooled post is", "pooled posts are"),
+            if missing_posts == 1 { "its" } else { "their" }
         ));
     }
     Ok(warnings)
@@ -329,7 +333,7 @@ mod tests {
                 .map(|(q, docs)| {
                     let ranked = docs
                         .iter()
-                        .map(|d| RankedDoc { doc: PostId::from(*d), score: 1.0 })
+                        .map(|d| RankedDoc { doc: PostId::from(*d), score: Some(1.0) })
                         .collect();
                     (QueryId::from(*q), ranked)
                 })
@@ -378,7 +382,7 @@ mod tests {
         }];
         let mut bytes = Vec::new();
         let warnings = write_pool(&pool, &queries, &posts, &mut bytes).unwrap();
-        assert_eq!(warnings, ["1 pooled posts are not in the corpus (their text is left empty)"]);
+        assert_eq!(warnings, ["1 pooled post is not in the corpus (its text is left empty)"]);
         let text = String::from_utf8(bytes).unwrap();
         assert_eq!(
             text,

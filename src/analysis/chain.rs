@@ -410,7 +410,7 @@ fn add_step(
 ) -> Result<TextAnalyzerBuilder> {
     Ok(match step {
         StepSpec::Lowercase { .. } => builder.filter_dynamic(lowercase(step)?),
-        StepSpec::Fold {} => builder.filter_dynamic(Fold),
+        StepSpec::Fold { form } => builder.filter_dynamic(Fold { form: *form }),
         StepSpec::Stop { language } => {
             let lang = language.ok_or_else(|| unsupported(step, "needs a language"))?;
             builder.filter_dynamic(

@@ -448,10 +448,7 @@ mod tests {
         if dir.is_dir() {
             true
         } else {
-            crate::analysis::testutil::report_line(&format!(
-                "skipped: {} is absent",
-                dir.display()
-            ));
+            crate::analysis::testutil::skip(&format!("{} is absent", dir.display()));
             false
         }
     }

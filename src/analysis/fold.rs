@@ -1,5 +1,8 @@
 //! The `fold` step: removes diacritics so that `café`, `cafe` and `CAFÉ`
-//! (after lowercasing) meet, folding Latin letters to ASCII.
+//! (after lowercasing) meet, folding Latin letters to ASCII. With
+//! `form = "compatibility"` it also folds what Unicode calls compatibility
+//! variants and case, so that fullwidth `ｆｕｌｌ`, the ligature in `ﬁle`,
+//! `x²`, `ℌ` and `Ⅻ` meet `full`, `file`, `x2`, `h` and `xii`.
 //!
 //! Place in the data flow: `analysis` stage, a filter of a chain. Most
 //! Snowball stemmers rely on accented letters in their suffix rules, so
@@ -19,20 +22,67 @@
 //! - Marks on other scripts are kept: in Arabic, Hebrew and the Indic
 //!   scripts they are vowels, not accents.
 //!
-//! Pure-ASCII tokens are left as they are without any work. Offsets never
-//! change.
+//! Compatibility form (`form = "compatibility"`): before the above, the
+//! token gets compatibility decomposition (NFKD, UAX #15: fullwidth and
+//! halfwidth forms, ligatures, super- and subscripts, letterlike symbols,
+//! Roman numerals, circled and squared letters) and full case folding, so
+//! the result is NFKC with case folding (the NFKC_Casefold practice of
+//! UAX #15 and UTS #46) plus the accent removal above. Case folding here is
+//! Rust's lower-casing plus the two folds that differ from it for the
+//! scripts whose marks are dropped (final `ς` → `σ`, and the iota subscript
+//! U+0345 → `ι`); Cherokee, whose small letters fold to capitals, is not
+//! folded. `src/analysis/fold.rs`'s tests check the form against Python's
+//! `unicodedata` and `str.casefold` (`scripts/fold_compat_fixture.py`).
+//! The canonical form stays the default: it keeps `ｆｕｌｌ` and `ﬁ` as they
+//! are, and no built-in chain folds at all.
+//!
+//! Pure-ASCII tokens are left as they are without any work (the
+//! compatibility form only lower-cases them). Offsets never change.
 
 use std::mem;
 
+use serde::{Deserialize, Serialize};
 use tantivy::tokenizer::Token;
 use unicode_normalization::char::is_combining_mark;
 use unicode_normalization::UnicodeNormalization;
 
 use super::each_token::{token_edit_filter, TokenEdit};
 
-/// Filter settings for `fold` (no options).
+/// Which Unicode equivalence `fold` applies before dropping marks (chain
+/// files: `{ step = "fold", form = "compatibility" }`).
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Hash, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum FoldForm {
+    /// Canonical decomposition (NFD): accents only; case, fullwidth letters
+    /// and ligatures stay as they are. The default.
+    #[default]
+    Canonical,
+    /// Compatibility decomposition (NFKD) and case folding as well (see the
+    /// module docs).
+    Compatibility,
+}
+
+impl FoldForm {
+    /// The name used in chain files.
+    pub fn as_str(self) -> &'static str {
+        match self {
+            FoldForm::Canonical => "canonical",
+            FoldForm::Compatibility => "compatibility",
+        }
+    }
+
+    /// True for the default form (chain definitions leave it out).
+    pub fn is_canonical(&self) -> bool {
+        *self == FoldForm::Canonical
+    }
+}
+
+/// Filter settings for `fold`.
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
-pub struct Fold;
+pub struct Fold {
+    /// The equivalence applied before marks are dropped.
+    pub form: FoldForm,
+}
 
 token_edit_filter!(Fold);
 
@@ -46,9 +96,13 @@ impl TokenEdit for Fold {
     }
 
     fn edit(&self, buffer: &mut String, token: &mut Token) -> bool {
-        if !token.text.is_ascii() {
-            fold_into(&token.text, buffer);
-            mem::swap(&mut token.text, buffer);
+        match self.form {
+            _ if !token.text.is_ascii() => {
+                fold_form_into(self.form, &token.text, buffer);
+                mem::swap(&mut token.text, buffer);
+            }
+            FoldForm::Compatibility => token.text.make_ascii_lowercase(),
+            FoldForm::Canonical => {}
         }
         true
     }
@@ -96,7 +150,30 @@ enum BaseKind {
     Other,
 }
 
-/// Fold `text` into `out` (cleared first).
+/// Fold `text` into `out` (cleared first) in the given form.
+pub(crate) fn fold_form_into(form: FoldForm, text: &str, out: &mut String) {
+    match form {
+        FoldForm::Canonical => fold_into(text, out),
+        FoldForm::Compatibility => {
+            let folded: String = text.nfkd().flat_map(case_fold).collect();
+            fold_into(&folded, out);
+        }
+    }
+}
+
+/// Full case folding of one character, near enough for `fold` (module
+/// docs): lower case, and the final sigma and the iota subscript as the
+/// letters they fold to (CaseFolding.txt).
+fn case_fold(c: char) -> impl Iterator<Item = char> {
+    let special = match c {
+        'ς' => Some('σ'),
+        '\u{345}' => Some('ι'),
+        _ => None,
+    };
+    special.into_iter().chain(special.is_none().then(|| c.to_lowercase()).into_iter().flatten())
+}
+
+/// Fold `text` into `out` (cleared first), canonical form.
 pub(crate) fn fold_into(text: &str, out: &mut String) {
     out.clear();
     let mut base = BaseKind::Other;
@@ -133,7 +210,49 @@ mod tests {
     use crate::analysis::WordTokenizer;
 
     fn analyzer() -> TextAnalyzer {
-        TextAnalyzer::builder(WordTokenizer::default()).filter(Fold).build()
+        TextAnalyzer::builder(WordTokenizer::default()).filter(Fold::default()).build()
+    }
+
+    fn compatibility() -> TextAnalyzer {
+        let fold = Fold { form: FoldForm::Compatibility };
+        TextAnalyzer::builder(WordTokenizer::default()).filter(fold).build()
+    }
+
+    #[test]
+    fn canonical_form_keeps_compatibility_variants() {
+        // NFD leaves fullwidth letters (U+FF46 …) and the fi ligature
+        // (U+FB01) alone: they only have compatibility decompositions
+        // (UnicodeData.txt, <wide> and <compat>).
+        assert_eq!(texts(&mut analyzer(), "ｆｕｌｌ ﬁle"), ["ｆｕｌｌ", "ﬁle"]);
+    }
+
+    #[test]
+    fn compatibility_form_matches_python_unicodedata() {
+        // scripts/fold_compat_fixture.py: Python's unicodedata NFKD and
+        // str.casefold, marks after Latin and Greek letters dropped, NFC.
+        let text =
+            std::fs::read_to_string(crate::analysis::testutil::fixture_path("fold_compat.json"))
+                .expect("the fold fixture is committed");
+        let fixture: serde_json::Value = serde_json::from_str(&text).expect("JSON");
+        let cases = fixture["cases"].as_array().expect("cases");
+        assert_eq!(cases.len(), 25);
+        let mut out = String::new();
+        for case in cases {
+            let (input, expected) = (case["input"].as_str(), case["expected"].as_str());
+            let (Some(input), Some(expected)) = (input, expected) else { panic!("{case}") };
+            fold_form_into(FoldForm::Compatibility, input, &mut out);
+            assert_eq!(out, expected, "fold(compatibility) of {input:?}");
+        }
+    }
+
+    #[test]
+    fn compatibility_form_in_a_chain_keeps_offsets_and_lowercases_ascii() {
+        // Offsets are the original bytes: ｆ is 3 bytes in UTF-8.
+        assert_tokens(
+            &mut compatibility(),
+            "ＦＵＬＬ ﬁle Café",
+            &[("full", 0, 0, 12), ("file", 1, 13, 18), ("cafe", 2, 19, 24)],
+        );
     }
 
     #[test]

@@ -923,7 +923,7 @@ impl<T: TokenStream> TokenStream for HashtagSplitStream<'_, T> {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::analysis::testutil::report_line;
+    use crate::analysis::testutil::skip;
     use approx::assert_relative_eq;
     use tantivy::tokenizer::{TextAnalyzer, WhitespaceTokenizer};
 
@@ -1377,7 +1377,7 @@ mod tests {
         if dir.is_dir() {
             Some(dir)
         } else {
-            report_line(&format!("skipped: {} is absent", dir.display()));
+            skip(&format!("{} is absent", dir.display()));
             None
         }
     }
@@ -1449,7 +1449,7 @@ mod tests {
         let path = std::path::Path::new(env!("CARGO_MANIFEST_DIR"))
             .join("tests/fixtures/analysis/hashtag/wordfreq_en.tsv");
         if !path.is_file() {
-            report_line(&format!("skipped wordfreq table: {} is absent", path.display()));
+            skip(&format!("wordfreq table: {} is absent", path.display()));
             return None;
         }
         Some(WordFreqs::read_counts(&path).expect("fixture is well formed"))

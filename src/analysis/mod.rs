@@ -77,7 +77,7 @@ pub use drop_tokens::{DropKind, DropTokens};
 pub use each_token::{EachTokenFilter, EachTokenStream, TokenEdit};
 pub use edge_ngrams::{EdgeNgrams, EdgeNgramsFilter, EdgeNgramsStream};
 pub use elision::{Elision, ELISION_LANGUAGES};
-pub use fold::Fold;
+pub use fold::{Fold, FoldForm};
 pub use length_limit::LengthLimit;
 pub use lowercase::Lowercase;
 pub use post_tokenizer::{PostTokenStream, PostTokenizer};

@@ -62,7 +62,7 @@
 //! | step | options |
 //! |---|---|
 //! | `lowercase` | `language` [none; `tr`/`az` use the Turkic i rules] |
-//! | `fold` | – |
+//! | `fold` | `form` = `"canonical"` \| `"compatibility"` [canonical; compatibility also folds fullwidth letters, ligatures and case] |
 //! | `stop` | `language` (required outside routes) |
 //! | `stem` | `language` (required outside routes), `generation` = `"2018"` \| `"current"` [current] |
 //! | `strip_elided` | `language` = `fr` \| `it` \| `ca` [all three] |
@@ -112,6 +112,7 @@ use toml::Spanned;
 use super::detect;
 use super::drop_tokens::DropKind;
 use super::elision::ELISION_LANGUAGES;
+use super::fold::FoldForm;
 use super::stem::{stem_languages, StemGeneration};
 use super::stop_words::stop_languages;
 use super::unspaced::Unspaced;
@@ -226,7 +227,12 @@ pub enum StepSpec {
         language: Option<LangCode>,
     },
     /// Diacritic removal ([`Fold`](super::Fold)).
-    Fold {},
+    Fold {
+        /// Canonical (accents only) or compatibility (also fullwidth
+        /// letters, ligatures and case).
+        #[serde(default, skip_serializing_if = "FoldForm::is_canonical")]
+        form: FoldForm,
+    },
     /// Stop-word removal ([`StopWords`](super::StopWords)).
     Stop {
         /// The list's language (taken from the branch in a route).
@@ -292,7 +298,7 @@ impl StepSpec {
     pub fn name(&self) -> &'static str {
         match self {
             StepSpec::Lowercase { .. } => "lowercase",
-            StepSpec::Fold {} => "fold",
+            StepSpec::Fold { .. } => "fold",
             StepSpec::Stop { .. } => "stop",
             StepSpec::Stem { .. } => "stem",
             StepSpec::StripElided { .. } => "strip_elided",
@@ -321,6 +327,7 @@ impl StepSpec {
             StepSpec::Prefixes { shortest, longest } => {
                 format!("prefixes({shortest}..={longest})")
             }
+            StepSpec::Fold { form: FoldForm::Compatibility } => "fold(compatibility)".into(),
             StepSpec::Drop { kinds } => {
                 let kinds: Vec<&str> = kinds.iter().map(|k| k.as_str()).collect();
                 format!("drop({})", kinds.join(", "))
@@ -1035,7 +1042,7 @@ fn check_pipeline(
                 step,
                 StepSpec::KeepSizes { .. }
                     | StepSpec::Lowercase { .. }
-                    | StepSpec::Fold {}
+                    | StepSpec::Fold { .. }
                     | StepSpec::Drop { .. }
             )
         {
@@ -1051,7 +1058,7 @@ fn check_pipeline(
                 }
                 seen_lowercase = true;
             }
-            StepSpec::Fold {} => seen_fold = true,
+            StepSpec::Fold { .. } => seen_fold = true,
             StepSpec::Stop { language } => {
                 if language.is_none() {
                     *language = branch;
@@ -1650,6 +1657,21 @@ mod tests {
     }
 
     #[test]
+    fn fold_form_is_read_and_checked() {
+        let text =
+            chain("  { step = \"lowercase\" },\n  { step = \"fold\", form = \"compatibility\" },");
+        let chains = parse_chains(&text, "my.toml", &[]).expect("valid");
+        let steps = &chains[0].pipelines().next().expect("plain").steps;
+        assert_eq!(steps.get(1), Some(&StepSpec::Fold { form: FoldForm::Compatibility }));
+        assert_eq!(steps.get(1).map(StepSpec::label).as_deref(), Some("fold(compatibility)"));
+        let e = err(&chain("  { step = \"fold\", form = \"nfkc\" },"));
+        assert_eq!(
+            e,
+            "my.toml:5: chain \"a\": unknown variant `nfkc`, expected `canonical` or `compatibility`"
+        );
+    }
+
+    #[test]
     fn impossible_orders() {
         let e =
             err(&chain("  { step = \"stem\", language = \"en\" },\n  { step = \"lowercase\" },"));
@@ -1722,7 +1744,7 @@ mod tests {
         assert!(e.contains("own_and_fallback"), "{e}");
         assert_eq!(
             route.fallback.steps,
-            [StepSpec::Lowercase { language: None }, StepSpec::Fold {}]
+            [StepSpec::Lowercase { language: None }, StepSpec::Fold { form: FoldForm::Canonical }]
         );
         assert_eq!(route.branches[1].pipeline.steps, [StepSpec::Lowercase { language: None }]);
         assert_eq!(route.branches[0].pipeline.steps.len(), 2);

@@ -1,7 +1,10 @@
 //! Test helpers shared by the analysis module's tests (compiled only for
 //! tests): collect a chain's tokens and compare them with expectations, read
 //! the committed fixtures under `tests/fixtures/analysis/`, and report why a
-//! test that needs the shared open data skipped ([`report_line`]).
+//! test that needs the shared open data skipped ([`skip`], shared by every
+//! test of the library).
+
+pub use crate::test_skips::skip;
 
 use tantivy::tokenizer::{TextAnalyzer, Token};
 
@@ -34,15 +37,6 @@ pub fn assert_tokens(
 /// The texts of the tokens `analyzer` produces for `input`.
 pub fn texts(analyzer: &mut TextAnalyzer, input: &str) -> Vec<String> {
     collect_tokens(analyzer, input).into_iter().map(|t| t.text).collect()
-}
-
-/// Write `msg` as one line straight to the process's stderr. The test
-/// harness captures only the `print!`/`eprint!` macros, so unlike
-/// `eprintln!` this shows in a plain `cargo test` run: use it for the reason
-/// a test skipped (shared data absent), which must not go unseen.
-pub fn report_line(msg: &str) {
-    use std::io::Write;
-    let _ = writeln!(std::io::stderr().lock(), "{msg}");
 }
 
 /// Path of a committed fixture under `tests/fixtures/analysis/`.
@@ -95,7 +89,7 @@ pub fn snowball_vocabulary(generation: &str, language: &str) -> Option<Vec<(Stri
     let text = match std::fs::read_to_string(&path) {
         Ok(text) => text,
         Err(err) => {
-            report_line(&format!("skipped: {} unreadable ({err})", path.display()));
+            skip(&format!("{} unreadable ({err})", path.display()));
             return None;
         }
     };

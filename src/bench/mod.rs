@@ -169,9 +169,10 @@ pub fn run(plan: &RunPlan, progress: &mut dyn FnMut(&str)) -> Result<BenchOutput
     let missing = evaluated_not_in(&population, &queries);
     if !missing.is_empty() {
         warnings.push(format!(
-            "{}: {} judged queries are not in the query file and were not evaluated: {}",
+            "{}: {} not in the query file and {} not evaluated: {}",
             plan.judgments.display(),
-            missing.len(),
+            crate::plural::counted(missing.len(), "judged query is", "judged queries are"),
+            if missing.len() == 1 { "was" } else { "were" },
             abbreviate(&missing)
         ));
         // Both lists are in byte order of the ids.
@@ -503,8 +504,12 @@ impl Assembly<'_> {
         }
         if self.population.evaluated.len() < 2 {
             warnings.push(format!(
-                "only {} evaluated queries: significance tests need at least 2, p-values are left empty",
-                self.population.evaluated.len()
+                "only {}: significance tests need at least 2, p-values are left empty",
+                crate::plural::counted(
+                    self.population.evaluated.len(),
+                    "evaluated query",
+                    "evaluated queries"
+                )
             ));
         }
         let refs: Vec<(ChainName, &SystemScores)> =

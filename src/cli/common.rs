@@ -109,6 +109,30 @@ impl EvalFlags {
     }
 }
 
+/// Refuse a directory given where a file is expected, naming the flag it
+/// came from (the operating system's "Is a directory" names neither).
+pub fn check_file_flag(flag: &str, path: &Path) -> Result<(), Error> {
+    refuse_directory(&format!("{flag} {}", path.display()), path)
+}
+
+/// [`check_file_flag`] for an argument shown as typed (`--run a=FILE`).
+pub fn refuse_directory(argument: &str, path: &Path) -> Result<(), Error> {
+    if path.is_dir() {
+        return Err(Error::usage(format!("{argument}: expected a file, found a directory")));
+    }
+    Ok(())
+}
+
+/// The last progress line of `run` and `score`: where the reports went,
+/// naming the page to open first.
+pub fn wrote_reports(out: &Path) -> String {
+    format!(
+        "wrote {}: open {} first (report.md, report.json and the CSV tables are beside it)",
+        out.display(),
+        out.join("report.html").display()
+    )
+}
+
 /// The bundled demo bench, relative to the repository root.
 pub const DEMO_CORPUS: &str = "corpora/demo/posts.jsonl";
 /// Demo queries.
@@ -135,7 +159,12 @@ impl InputFlags {
     /// bench's when none is given.
     pub fn resolve(&self) -> Result<(PathBuf, PathBuf, PathBuf), Error> {
         match (&self.corpus, &self.queries, &self.judgments) {
-            (Some(c), Some(q), Some(j)) => Ok((c.clone(), q.clone(), j.clone())),
+            (Some(c), Some(q), Some(j)) => {
+                check_file_flag("--corpus", c)?;
+                check_file_flag("--queries", q)?;
+                check_file_flag("--judgments", j)?;
+                Ok((c.clone(), q.clone(), j.clone()))
+            }
             (None, None, None) => {
                 for f in [DEMO_CORPUS, DEMO_QUERIES, DEMO_JUDGMENTS] {
                     if !Path::new(f).is_file() {
@@ -194,7 +223,10 @@ impl ChainFlags {
         })?;
         let builtins = analysis::builtin_chains(stem_lang)?;
         let from_file = match &self.chain_file {
-            Some(f) => read_chain_file(f)?,
+            Some(f) => {
+                check_file_flag("--chain-file", f)?;
+                read_chain_file(f)?
+            }
             None => Vec::new(),
         };
         match (&self.chains, from_file.is_empty()) {

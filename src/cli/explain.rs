@@ -56,16 +56,16 @@ pub fn execute(args: ExplainArgs) -> anyhow::Result<ExitCode> {
 
 fn render(e: &Explanation) -> String {
     let mut s = format!(
-        "query {} ({:?}) · post {} ({:?}) · grade {}\n",
+        "query {} (\"{}\") · post {} (\"{}\") · grade {}\n",
         e.query_id,
-        e.query_text,
+        one_line(&e.query_text),
         e.post_id,
-        e.post_text,
+        one_line(&e.post_text),
         e.grade.map_or_else(|| "unjudged".to_string(), |g| g.to_string())
     );
     for c in &e.chains {
         s.push_str(&format!("\n{}\n", c.chain));
-        s.push_str(&format!("  query terms:   {}\n", c.query_terms.join(" ")));
+        s.push_str(&format!("  query terms:   {}\n", terms_by_field(&c.query_terms)));
         s.push_str(&format!("  post terms:    {} ({})\n", c.post_terms.join(" "), c.post_field));
         s.push_str(&format!(
             "  matched:       {}\n",
@@ -132,4 +132,30 @@ fn standing_lines(f: &search::FieldStanding, out: &mut String) {
         search::BM25_K1,
         search::BM25_B
     ));
+}
+
+/// A text as written (emoji sequences, accents and all: not Rust's escapes),
+/// on one line: control characters such as line ends become spaces.
+fn one_line(text: &str) -> String {
+    text.chars().map(|c| if c.is_control() { ' ' } else { c }).collect()
+}
+
+/// Query terms, given as `field:term`, written as the post's terms are:
+/// the terms, then their index field in parentheses (one group per field, in
+/// the order the fields first appear).
+fn terms_by_field(terms: &[String]) -> String {
+    let mut groups: Vec<(&str, Vec<&str>)> = Vec::new();
+    for term in terms {
+        let (field, text) = term.split_once(':').unwrap_or(("", term.as_str()));
+        match groups.iter_mut().find(|(f, _)| *f == field) {
+            Some((_, texts)) => texts.push(text),
+            None => groups.push((field, vec![text])),
+        }
+    }
+    if groups.is_empty() {
+        return "(none)".to_string();
+    }
+    let shown: Vec<String> =
+        groups.iter().map(|(field, texts)| format!("{} ({field})", texts.join(" "))).collect();
+    shown.join("; ")
 }

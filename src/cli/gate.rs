@@ -13,6 +13,8 @@ use postassay::gate::{self, GateSettings, Thresholds};
 use postassay::ids::ChainName;
 use postassay::report::write_atomic;
 
+use super::common::check_file_flag;
+
 /// Exit code of a gate that found a regression.
 const EXIT_REGRESSION: u8 = 1;
 
@@ -61,6 +63,9 @@ pub struct GateArgs {
 
 pub fn execute(args: GateArgs) -> anyhow::Result<ExitCode> {
     let settings = settings(&args)?;
+    if let Some(junit) = &args.junit {
+        check_file_flag("--junit", junit)?;
+    }
     let baseline = gate::load_report(&args.baseline)?;
     let current = gate::load_report(&args.current)?;
     let outcome = gate::run_gate(&baseline, &current, &settings)?;

@@ -14,6 +14,8 @@ use clap::Args;
 use postassay::judge::{script_keys, JudgmentsAppender, Key, Session, Step};
 use postassay::pool::read_pool;
 
+use super::common::check_file_flag;
+
 #[derive(Debug, Args)]
 pub struct JudgeArgs {
     /// The pool to judge (as `postassay pool` writes it).
@@ -26,6 +28,8 @@ pub struct JudgeArgs {
 }
 
 pub fn execute(args: JudgeArgs) -> anyhow::Result<ExitCode> {
+    check_file_flag("--pool", &args.pool)?;
+    check_file_flag("--judgments", &args.judgments)?;
     let items = read_pool(&args.pool)?;
     let (appender, judged) = JudgmentsAppender::open(&args.judgments)?;
     let mut session = Session::new(items, appender, &judged);

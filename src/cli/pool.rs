@@ -12,8 +12,11 @@ use postassay::error::Error;
 use postassay::ids::ChainName;
 use postassay::input::{self, Post, Query, Run};
 use postassay::judge::read_judgments_allow_empty;
+use postassay::plural::counted;
 use postassay::pool::{self, PoolSources};
 use postassay::report::write_atomic;
+
+use super::common::{check_file_flag, refuse_directory};
 
 #[derive(Debug, Args)]
 pub struct PoolArgs {
@@ -62,6 +65,14 @@ pub fn execute(args: PoolArgs) -> anyhow::Result<ExitCode> {
     let corpus_path = need(&sources.corpus, "--corpus")?;
     let queries_path = need(&sources.queries, "--queries")?;
     let judgments_path = need(&sources.judgments, "--judgments")?;
+    for (flag, path) in
+        [("--corpus", &corpus_path), ("--queries", &queries_path), ("--judgments", &judgments_path)]
+    {
+        check_file_flag(flag, path)?;
+    }
+    if let Some(out) = &args.out {
+        check_file_flag("--out", out)?;
+    }
     if let Some(report) = &args.report {
         for (path, flag) in [(&corpus_path, "--corpus"), (&queries_path, "--queries")] {
             if !path.exists() {
@@ -115,16 +126,18 @@ pub fn execute(args: PoolArgs) -> anyhow::Result<ExitCode> {
         let queries_pooled: std::collections::BTreeSet<_> =
             pool.entries.iter().map(|e| &e.query).collect();
         eprintln!(
-            "postassay: pool: {} unjudged pairs over {} queries from the top {} of {} systems",
-            pool.entries.len(),
-            queries_pooled.len(),
+            "postassay: pool: {} over {} from the top {} of {}",
+            counted(pool.entries.len(), "unjudged pair", "unjudged pairs"),
+            counted(queries_pooled.len(), "query", "queries"),
             args.depth,
-            pool.contributions.len()
+            counted(pool.contributions.len(), "system", "systems")
         );
         for c in &pool.contributions {
             eprintln!(
-                "postassay: pool: {} contributes {} pairs ({} only from it)",
-                c.system, c.pairs, c.unique
+                "postassay: pool: {} contributes {} ({} only from it)",
+                c.system,
+                counted(c.pairs, "pair", "pairs"),
+                c.unique
             );
         }
         for w in &warnings {
@@ -171,6 +184,7 @@ fn parse_runs(specs: &[String]) -> Result<Vec<(ChainName, PathBuf)>, Error> {
         if runs.iter().any(|(n, _)| n.as_str() == name) {
             return Err(Error::usage(format!("--run: the name {name:?} is given twice")));
         }
+        refuse_directory(&format!("--run {spec}"), Path::new(file))?;
         runs.push((ChainName::from(name), Path::new(file).to_path_buf()));
     }
     Ok(runs)

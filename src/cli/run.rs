@@ -11,7 +11,9 @@ use postassay::bench::{self, RunDiagnostics, RunPlan};
 use postassay::error::Error;
 use postassay::report;
 
-use super::common::{resolve_data_dir, ChainFlags, EvalFlags, InputFlags, DEFAULT_TOP};
+use super::common::{
+    resolve_data_dir, wrote_reports, ChainFlags, EvalFlags, InputFlags, DEFAULT_TOP,
+};
 
 #[derive(Debug, Args)]
 pub struct RunArgs {
@@ -46,7 +48,7 @@ pub fn execute(args: RunArgs) -> anyhow::Result<ExitCode> {
     let out = bench::run(&plan, &mut progress)?;
     let runs: Vec<_> = out.runs.iter().map(|(n, r)| (n.clone(), r)).collect();
     report::write_outputs(&args.eval.out, &out.report, &runs)?;
-    progress(&format!("wrote {}", args.eval.out.join("report.md").display()));
+    progress(&wrote_reports(&args.eval.out));
     Ok(ExitCode::SUCCESS)
 }
 

@@ -1,6 +1,6 @@
 //! `postassay score`: evaluate and compare existing runs.
 
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
 use clap::Args;
@@ -10,7 +10,7 @@ use postassay::error::Error;
 use postassay::ids::ChainName;
 use postassay::report;
 
-use super::common::EvalFlags;
+use super::common::{check_file_flag, refuse_directory, wrote_reports, EvalFlags};
 
 /// Where `score` writes when `--out` is not given: not `reports/` itself,
 /// which holds the committed sample of the demo `run` (README) that a
@@ -23,8 +23,8 @@ pub struct ScoreArgs {
     /// Judgments: CSV `query_id,doc_id,grade` or the four-column layout.
     #[arg(long, value_name = "FILE")]
     judgments: PathBuf,
-    /// A named run, `NAME=FILE` (CSV `query_id,doc_id,rank,score`); repeat for
-    /// each system. The first is the baseline unless --baseline says otherwise.
+    /// A named run, `NAME=FILE` (CSV `query_id,doc_id,rank`, optional
+    /// `score`); repeat for each system. The first is the baseline unless --baseline says otherwise.
     #[arg(long = "run", value_name = "NAME=FILE", required = true)]
     runs: Vec<String>,
     /// Optional queries file, for breakdowns by query language and tag.
@@ -41,7 +41,7 @@ pub fn execute(args: ScoreArgs) -> anyhow::Result<ExitCode> {
     // The report's warnings come through `progress` (bench::score).
     let out = bench::score(&plan, &mut progress)?;
     report::write_outputs(&args.eval.out, &out.report, &[])?;
-    progress(&format!("wrote {}", args.eval.out.join("report.md").display()));
+    progress(&wrote_reports(&args.eval.out));
     Ok(ExitCode::SUCCESS)
 }
 
@@ -62,7 +62,12 @@ fn plan(args: &ScoreArgs) -> Result<ScorePlan, Error> {
         if runs.iter().any(|(n, _)| n.as_str() == name) {
             return Err(Error::usage(format!("--run: the name {name:?} is given twice")));
         }
+        refuse_directory(&format!("--run {spec}"), Path::new(file))?;
         runs.push((ChainName::from(name), PathBuf::from(file)));
+    }
+    check_file_flag("--judgments", &args.judgments)?;
+    if let Some(q) = &args.queries {
+        check_file_flag("--queries", q)?;
     }
     Ok(ScorePlan {
         judgments: args.judgments.clone(),

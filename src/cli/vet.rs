@@ -13,7 +13,7 @@ use postassay::diagnose::{self, render, DiagnosePlan, FreqSource, Sections};
 use postassay::error::Error;
 use postassay::input::LangCode;
 
-use super::common::{read_chain_file, resolve_data_dir, DEFAULT_TOP, DEMO_CORPUS};
+use super::common::{check_file_flag, read_chain_file, resolve_data_dir, DEFAULT_TOP, DEMO_CORPUS};
 
 #[derive(Debug, Args)]
 pub struct VetArgs {
@@ -115,9 +115,15 @@ fn plan(args: &VetArgs) -> Result<DiagnosePlan, Error> {
     let languages = args.langs.as_ref().map(|list| {
         list.split(',').map(str::trim).filter(|s| !s.is_empty()).map(String::from).collect()
     });
+    for list in &args.freq_list {
+        check_file_flag("--freq-list", list)?;
+    }
     let mut freq_sources = Vec::new();
     match &args.freq_corpus {
-        Some(f) => freq_sources.push(FreqSource::Corpus(f.clone())),
+        Some(f) => {
+            check_file_flag("--freq-corpus", f)?;
+            freq_sources.push(FreqSource::Corpus(f.clone()))
+        }
         None if Path::new(DEMO_CORPUS).is_file() => {
             freq_sources.push(FreqSource::Corpus(DEMO_CORPUS.into()))
         }
@@ -197,7 +203,10 @@ fn missing_default_list(
 fn chains(args: &VetArgs) -> Result<Vec<ChainSpec>, Error> {
     let builtins = analysis::builtin_chains(LangCode::parse("en").expect("en is ISO 639-1"))?;
     let from_file = match &args.chain_file {
-        Some(f) => read_chain_file(f)?,
+        Some(f) => {
+            check_file_flag("--chain-file", f)?;
+            read_chain_file(f)?
+        }
         None => Vec::new(),
     };
     Ok(match (&args.chains, from_file.is_empty()) {

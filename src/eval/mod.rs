@@ -26,7 +26,7 @@
 //! let mut run = Run::default();
 //! run.by_query.insert(
 //!     "q1".into(),
-//!     vec![RankedDoc { doc: "d2".into(), score: 2.0 }, RankedDoc { doc: "d1".into(), score: 1.0 }],
+//!     vec![RankedDoc { doc: "d2".into(), score: Some(2.0) }, RankedDoc { doc: "d1".into(), score: Some(1.0) }],
 //! );
 //! let settings = EvalSettings::default();
 //! let population = query_population(&judgments, &settings);
@@ -313,7 +313,7 @@ mod tests {
             let ranked = docs
                 .iter()
                 .enumerate()
-                .map(|(i, d)| RankedDoc { doc: (*d).into(), score: 100.0 - i as f64 })
+                .map(|(i, d)| RankedDoc { doc: (*d).into(), score: Some(100.0 - i as f64) })
                 .collect();
             run.by_query.insert((*query).into(), ranked);
         }
@@ -430,8 +430,8 @@ mod tests {
         run.by_query.insert(
             "q1".into(),
             vec![
-                RankedDoc { doc: "d2".into(), score: 1.0 },
-                RankedDoc { doc: "d1".into(), score: 1.0 },
+                RankedDoc { doc: "d2".into(), score: Some(1.0) },
+                RankedDoc { doc: "d1".into(), score: Some(1.0) },
             ],
         );
         let s = settings(1);
@@ -552,7 +552,7 @@ mod tests {
     fn cranfield_perfect_run() {
         let path = concat!(env!("CARGO_MANIFEST_DIR"), "/../shared/data/cranfield/qrels.csv");
         let Ok(mut reader) = csv::Reader::from_path(path) else {
-            crate::analysis::testutil::report_line(&format!("skipped: {path} is absent"));
+            crate::analysis::testutil::skip(&format!("{path} is absent"));
             return;
         };
         let mut triples = Vec::new();
@@ -566,7 +566,8 @@ mod tests {
         for (q, posts) in j.queries() {
             let mut docs: Vec<(&PostId, u32)> = posts.iter().map(|(p, g)| (p, *g)).collect();
             docs.sort_by(|a, b| b.1.cmp(&a.1).then(a.0.cmp(b.0)));
-            let ranked = docs.iter().map(|(p, _)| RankedDoc { doc: (*p).clone(), score: 0.0 });
+            let ranked =
+                docs.iter().map(|(p, _)| RankedDoc { doc: (*p).clone(), score: Some(0.0) });
             run.by_query.insert(q.clone(), ranked.collect());
         }
         let metrics = parse_metric_list("ndcg@10,map,mrr,bpref,unjudged@10").unwrap();

@@ -454,7 +454,7 @@ mod tests {
         );
         let msg = read_corpus(&path).expect_err("not UTF-8").to_string();
         assert!(
-            msg.ends_with("lat1.jsonl:1: expected UTF-8 text, found an invalid byte sequence at byte 23 of the line"),
+            msg.ends_with("lat1.jsonl:1: expected UTF-8 text, found an invalid byte sequence at byte 23 of the line (a Latin-1 or Windows-1252 file? save it as UTF-8)"),
             "{msg}"
         );
         assert_eq!(msg.lines().count(), 1, "{msg}");

@@ -18,7 +18,8 @@ use std::path::Path;
 use crate::error::{Error, Problems, Result};
 use crate::ids::{PostId, QueryId};
 use crate::input::text::{
-    check_id, first_non_blank_line, in_column, quoted, utf8_message, CsvTable, Lines,
+    check_id, declared_separator, first_non_blank_line, in_column, quoted, separator_hint,
+    utf8_message, CsvTable, Lines,
 };
 
 /// What a file must start with, for the message when it does not.
@@ -84,15 +85,19 @@ pub fn read_judgments(path: &Path) -> Result<(Judgments, Vec<String>)> {
     };
     let first = first.map_err(|e| Error::at_line(path, number, utf8_message(e, "the line")))?;
     let mut pairs = Pairs::new(path);
-    if names_query_id(&first) {
+    if names_query_id(&first) || declared_separator(first.as_bytes()).is_some() {
         read_csv(path, &mut pairs)?;
     } else if split_fields(&first).count() == 4 {
         read_four_columns(path, &mut pairs)?;
     } else {
+        let hint = separator_hint(&first)
+            .filter(|_| first.contains("query_id"))
+            .map(|h| format!("; {h}"))
+            .unwrap_or_default();
         return Err(Error::at_line(
             path,
             number,
-            format!("{EXPECTED_LAYOUT}, found {}", quoted(&first)),
+            format!("{EXPECTED_LAYOUT}, found {}{hint}", quoted(&first)),
         ));
     }
     pairs.finish()

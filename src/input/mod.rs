@@ -18,6 +18,7 @@ pub use judgments::{read_judgments, Judgments};
 pub use lang_code::LangCode;
 pub use queries::{read_queries, Query};
 pub use runs::{format_shortest, read_run, write_run, RankedDoc, Run};
+pub use text::{declared_separator, utf8_message};
 
 /// Hex SHA-256 of a file's bytes, streamed (reports record it for every
 /// file they read).

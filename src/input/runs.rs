@@ -1,13 +1,17 @@
-//! Ranked runs: CSV with columns `query_id,doc_id,rank,score`, read from the
-//! files given to `score` (input stage) and written by `run` for every chain
-//! (`runs/NAME.csv`), so a written run reads back to the same value.
+//! Ranked runs: CSV with columns `query_id,doc_id,rank` and optionally
+//! `score`, read from the files given to `score` (input stage) and written by
+//! `run` for every chain (`runs/NAME.csv`, always with `score`), so a written
+//! run reads back to the same value.
 //!
 //! Reading: `rank` is any integer (`i64`, negative allowed: only the order
-//! matters), `score` a finite number (Rust's `f64` syntax, so `1e-3` is
-//! accepted and `NaN`/`inf` rejected). The order of a query's posts is rank
-//! ascending, equal ranks broken by `doc_id` in byte order; the score plays no
-//! part in it. A post listed twice for one query is an error naming both
-//! lines. A header-only file is a valid, empty run.
+//! matters). The order of a query's posts is rank ascending, equal ranks
+//! broken by `doc_id` in byte order; the score plays no part in it, so the
+//! `score` column may be left out (formats.md asks for it; issue 12 made it
+//! optional, since an engine's export often has ranks only). When the column
+//! is there, every value must be a finite number (Rust's `f64` syntax, so
+//! `1e-3` is accepted and `NaN`/`inf` rejected). A post listed twice for one
+//! query is an error naming both lines. A header-only file is a valid, empty
+//! run.
 //!
 //! Writing: queries in byte order of their ids, ranks 1..n in list order,
 //! scores in the shortest form that parses back to the same `f64` (see
@@ -23,13 +27,17 @@ use crate::input::text::{check_id, in_column, quoted, CsvTable};
 /// The run layout's header, in this order when written.
 const HEADER: [&str; 4] = ["query_id", "doc_id", "rank", "score"];
 
+/// The columns a run file must have (`score` is optional).
+const REQUIRED: [&str; 3] = ["query_id", "doc_id", "rank"];
+
 /// One retrieved post with its engine score (informational only).
 #[derive(Debug, Clone, PartialEq)]
 pub struct RankedDoc {
     /// The retrieved post.
     pub doc: PostId,
-    /// The engine's score; finite.
-    pub score: f64,
+    /// The engine's score, finite; `None` when the run file has no `score`
+    /// column.
+    pub score: Option<f64>,
 }
 
 /// A system's ranked results: for each query, posts in final rank order
@@ -45,13 +53,13 @@ pub struct Run {
 struct Entry {
     rank: i64,
     doc: PostId,
-    score: f64,
+    score: Option<f64>,
 }
 
 /// Read and validate a run file, listing every bad line.
 pub fn read_run(path: &Path) -> Result<Run> {
     let mut table = CsvTable::open(path, &HEADER.join(","))?;
-    let ([q_col, d_col, r_col, s_col], []) = table.columns(HEADER, [])?;
+    let ([q_col, d_col, r_col], [s_col]) = table.columns(REQUIRED, ["score"])?;
     let mut problems = Problems::new(path);
     let mut first_line: HashMap<(QueryId, PostId), u64> = HashMap::new();
     let mut entries: BTreeMap<QueryId, Vec<Entry>> = BTreeMap::new();
@@ -65,9 +73,13 @@ pub fn read_run(path: &Path) -> Result<Run> {
         let rank = parse_rank(row.get(r_col))
             .map_err(|msg| problems.push(row.line, in_column("rank", &msg)))
             .ok();
-        let score = parse_score(row.get(s_col))
-            .map_err(|msg| problems.push(row.line, in_column("score", &msg)))
-            .ok();
+        let score = match s_col {
+            Some(col) => parse_score(row.get(col))
+                .map(Some)
+                .map_err(|msg| problems.push(row.line, in_column("score", &msg)))
+                .ok(),
+            None => Some(None),
+        };
         let (Some(query), Some(doc)) = (query, doc) else { continue };
         let key = (QueryId::from(query), PostId::from(doc));
         if let Some(first) = first_line.get(&key) {
@@ -106,9 +118,9 @@ fn parse_score(raw: &str) -> std::result::Result<f64, String> {
     }
 }
 
-/// Write a run in the run layout (ranks 1..n in list order). A non-finite
-/// score is refused (the layout requires finite numbers, and the file must
-/// read back); I/O errors name the output as `<run output>` since the writer
+/// Write a run in the run layout (ranks 1..n in list order). A missing or
+/// non-finite score is refused (the file must read back with its `score`
+/// column); I/O errors name the output as `<run output>` since the writer
 /// has no path.
 pub fn write_run<W: std::io::Write>(run: &Run, out: W) -> Result<()> {
     let output = Path::new("<run output>");
@@ -123,16 +135,21 @@ pub fn write_run<W: std::io::Write>(run: &Run, out: W) -> Result<()> {
     writer.write_record(HEADER).map_err(wrap)?;
     for (query, docs) in &run.by_query {
         for (rank, doc) in (1u64..).zip(docs) {
-            if !doc.score.is_finite() {
-                return Err(Error::usage(format!(
-                    "cannot write run: query {:?} doc {:?} has the non-finite score {}",
-                    query.as_str(),
-                    doc.doc.as_str(),
-                    doc.score
-                )));
-            }
+            let score = match doc.score {
+                Some(s) if s.is_finite() => s,
+                other => {
+                    return Err(Error::usage(format!(
+                        "cannot write run: query {:?} doc {:?} has {}",
+                        query.as_str(),
+                        doc.doc.as_str(),
+                        other.map_or("no score".to_string(), |s| format!(
+                            "the non-finite score {s}"
+                        ))
+                    )))
+                }
+            };
             let record =
-                [query.as_str(), doc.doc.as_str(), &rank.to_string(), &format_shortest(doc.score)];
+                [query.as_str(), doc.doc.as_str(), &rank.to_string(), &format_shortest(score)];
             writer.write_record(record).map_err(wrap)?;
         }
     }
@@ -172,7 +189,7 @@ mod tests {
         read_run(&path).expect_err("should be rejected").to_string()
     }
 
-    fn docs(run: &Run, q: &str) -> Vec<(String, f64)> {
+    fn docs(run: &Run, q: &str) -> Vec<(String, Option<f64>)> {
         run.by_query
             .get(&QueryId::from(q))
             .map(|v| v.iter().map(|d| (d.doc.to_string(), d.score)).collect())
@@ -191,10 +208,30 @@ mod tests {
         let run = read_run(&path).expect("valid");
         let q1 = docs(&run, "q1");
         let expected = [("a", 9.0), ("d9", 2.5), ("B", 1.5), ("z", 1.5), ("é", 0.5)]
-            .map(|(d, s)| (d.to_string(), s));
+            .map(|(d, s)| (d.to_string(), Some(s)));
         assert_eq!(q1, expected);
         let queries: Vec<&str> = run.by_query.keys().map(QueryId::as_str).collect();
         assert_eq!(queries, ["q0", "q1"]);
+    }
+
+    #[test]
+    fn score_column_is_optional_and_plays_no_part_in_the_order() {
+        // The same ranking as above without its scores (issue 12).
+        let (_dir, path) = temp_file(
+            "run.csv",
+            b"rank,doc_id,query_id
+2,z,q1
+1,d9,q1
+2,B,q1
+-3,a,q1
+",
+        );
+        let run = read_run(&path).expect("valid without a score column");
+        let expected = ["a", "d9", "B", "z"].map(|d| (d.to_string(), None));
+        assert_eq!(docs(&run, "q1"), expected);
+        // Written back, a run without scores is refused rather than invented.
+        let err = write_run(&run, Vec::new()).expect_err("no score to write");
+        assert!(err.to_string().contains(r#"query "q1" doc "a" has no score"#), "{err}");
     }
 
     #[test]
@@ -232,9 +269,9 @@ mod tests {
     }
 
     #[test]
-    fn missing_score_column_lists_the_header_found() {
-        let msg = error_of(b"query_id,doc_id,rank\nq1,d1,1\n");
-        assert!(msg.contains(r#"run.csv:1: missing column "score": expected a header with columns "query_id", "doc_id", "rank", "score", found "query_id,doc_id,rank""#), "{msg}");
+    fn missing_rank_column_lists_the_header_found() {
+        let msg = error_of(b"query_id,doc_id,score\nq1,d1,1\n");
+        assert!(msg.contains(r#"run.csv:1: missing column "rank": expected a header with columns "query_id", "doc_id", "rank" (optional: "score"), found "query_id,doc_id,score""#), "{msg}");
     }
 
     #[test]
@@ -244,7 +281,7 @@ mod tests {
         let ranked = ["p,1", "p\"2", "p3", "π", "p 5", "p6"]
             .iter()
             .zip(scores)
-            .map(|(d, s)| RankedDoc { doc: PostId::from(*d), score: s })
+            .map(|(d, s)| RankedDoc { doc: PostId::from(*d), score: Some(s) })
             .collect();
         run.by_query.insert(QueryId::from("q,2"), ranked);
         run.by_query.insert(QueryId::from("q1"), vec![]);
@@ -256,17 +293,17 @@ mod tests {
         // A query with an empty list writes no row, so it reads back absent.
         run.by_query.remove(&QueryId::from("q1"));
         assert_eq!(back.by_query.len(), 1);
-        let q: Vec<(String, u64)> = back
+        let q: Vec<(String, Option<u64>)> = back
             .by_query
             .values()
             .flatten()
-            .map(|d| (d.doc.to_string(), d.score.to_bits()))
+            .map(|d| (d.doc.to_string(), d.score.map(f64::to_bits)))
             .collect();
-        let expected: Vec<(String, u64)> = run
+        let expected: Vec<(String, Option<u64>)> = run
             .by_query
             .values()
             .flatten()
-            .map(|d| (d.doc.to_string(), d.score.to_bits()))
+            .map(|d| (d.doc.to_string(), d.score.map(f64::to_bits)))
             .collect();
         assert_eq!(q, expected);
         assert!(
@@ -283,7 +320,7 @@ mod tests {
         for q in ["b", "a", "B"] {
             let list = ["x", "y"]
                 .iter()
-                .map(|d| RankedDoc { doc: PostId::from(*d), score: 1.0 })
+                .map(|d| RankedDoc { doc: PostId::from(*d), score: Some(1.0) })
                 .collect();
             run.by_query.insert(QueryId::from(q), list);
         }
@@ -300,7 +337,7 @@ mod tests {
         let mut run = Run::default();
         run.by_query.insert(
             QueryId::from("q"),
-            vec![RankedDoc { doc: PostId::from("d"), score: f64::NAN }],
+            vec![RankedDoc { doc: PostId::from("d"), score: Some(f64::NAN) }],
         );
         let err = write_run(&run, Vec::new()).expect_err("NaN refused");
         assert!(

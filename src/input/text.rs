@@ -24,6 +24,15 @@
 //! the record at end of file). [`LineIndex`] therefore follows the parser's
 //! quoting rules byte by byte ([`QuoteState`]); a record still inside a quoted
 //! field at end of file is an error at the line where the record starts.
+//!
+//! Files saved by spreadsheets: a first line `sep=;` (the separator
+//! declaration some spreadsheet programs write and read) is accepted, and
+//! the CSV is then read with that separator (`,` `;` tab or `|`); line
+//! numbers stay physical. A header without a comma but with semicolons, tabs
+//! or bars gets a hint to save the file with commas or to declare its
+//! separator that way. A file in UTF-16 (a byte order mark, or the zero
+//! bytes ASCII text has in UTF-16) is refused at once with what to do, and
+//! bytes that are not UTF-8 get a hint that the file may be Latin-1.
 
 use std::collections::VecDeque;
 use std::fs::File;
@@ -37,21 +46,96 @@ use crate::input::LangCode;
 /// The UTF-8 byte order mark, accepted (and skipped) at the start of a file.
 const BOM: &[u8] = b"\xEF\xBB\xBF";
 
+/// What to do about bytes that are not UTF-8 (text saved in a legacy
+/// encoding is the usual cause).
+const NOT_UTF8_HINT: &str = "a Latin-1 or Windows-1252 file? save it as UTF-8";
+
+/// Separators a `sep=` first line may declare.
+const DECLARABLE_SEPARATORS: [u8; 4] = [b',', b';', b'\t', b'|'];
+
 /// Longest stretch of a found value quoted in a message; longer values are
 /// cut with `…` so a bad post does not flood the terminal.
 const MAX_QUOTED_CHARS: usize = 60;
 
-/// Open `path` for buffered reading, with a leading UTF-8 BOM already skipped.
+/// Open `path` for buffered reading, with a leading UTF-8 BOM already
+/// skipped; a UTF-16 file is an error that says what to do.
 pub(super) fn open(path: &Path) -> Result<BufReader<File>> {
     let file = File::open(path).map_err(|e| Error::io(path, e))?;
     let mut reader = BufReader::new(file);
     // fill_buf returns at least the first bytes of a non-empty file; the
     // buffer (8 KiB) is always larger than the 3-byte mark.
-    let starts_with_bom = reader.fill_buf().map_err(|e| Error::io(path, e))?.starts_with(BOM);
+    let head = reader.fill_buf().map_err(|e| Error::io(path, e))?;
+    if let Some(found) = utf16_sign(head) {
+        return Err(Error::in_file(
+            path,
+            format!(
+                "expected UTF-8 text, found UTF-16 ({found}): save the file as UTF-8 (in a \
+                 spreadsheet: \"CSV UTF-8\"; in an editor: the encoding UTF-8)"
+            ),
+        ));
+    }
+    let starts_with_bom = head.starts_with(BOM);
     if starts_with_bom {
         reader.consume(BOM.len());
     }
     Ok(reader)
+}
+
+/// What shows that `head`, the start of a file, is UTF-16: its byte order
+/// mark, or the zero byte every ASCII character has in UTF-16 (two of the
+/// first four bytes, alternating). `None` for anything else.
+fn utf16_sign(head: &[u8]) -> Option<&'static str> {
+    match head {
+        [0xFF, 0xFE, ..] => Some("the byte order mark FF FE"),
+        [0xFE, 0xFF, ..] => Some("the byte order mark FE FF"),
+        [a, 0, b, 0, ..] | [0, a, 0, b, ..] if *a != 0 && *b != 0 => {
+            Some("a zero byte beside every character")
+        }
+        _ => None,
+    }
+}
+
+/// The separator a spreadsheet's first line `sep=X` declares (`sep=` in any
+/// case, then one separator byte); `None` when `line` (without its `\n`) is
+/// not such a line, `Some(Err(message))` when it declares an unusable one.
+pub fn declared_separator(line: &[u8]) -> Option<std::result::Result<u8, String>> {
+    let (prefix, rest) = (line.get(..4)?, line.get(4..)?);
+    if !prefix.eq_ignore_ascii_case(b"sep=") {
+        return None;
+    }
+    let rest = rest.strip_suffix(b"\r").unwrap_or(rest);
+    Some(match rest {
+        [b] if DECLARABLE_SEPARATORS.contains(b) => Ok(*b),
+        _ => Err(format!(
+            "expected a separator declaration \"sep=,\", \"sep=;\", \"sep=|\" or \"sep=\" and a \
+             tab, found {}",
+            quoted(&String::from_utf8_lossy(line))
+        )),
+    })
+}
+
+/// A hint for a header that would have had its columns with another
+/// separator: it holds no comma but semicolons, tabs or bars. `None` when
+/// it does not look like that.
+pub(super) fn separator_hint(header: &str) -> Option<String> {
+    if header.contains(',') {
+        return None;
+    }
+    let (count, name, declaration) = [
+        (';', "semicolon", "\"sep=;\""),
+        ('\t', "tab", "\"sep=\" and a tab"),
+        ('|', "bar", "\"sep=|\""),
+    ]
+    .into_iter()
+    .map(|(c, name, declaration)| (header.matches(c).count(), name, declaration))
+    .max_by_key(|(n, _, _)| *n)?;
+    (count > 0).then(|| {
+        format!(
+            "the header has no comma but {}: save the file as comma-separated CSV, or make its \
+             first line {declaration} to declare the separator",
+            crate::plural::counted(count, name, &format!("{name}s"))
+        )
+    })
 }
 
 /// One physical line: its 1-based number and its text without the line end,
@@ -133,11 +217,17 @@ pub(super) fn first_non_blank_byte(path: &Path) -> Result<Option<u8>> {
 }
 
 /// The message for bytes that are not UTF-8, naming the first bad byte
-/// (1-based) within `what` ("the line", "the field").
-pub(super) fn utf8_message(err: Utf8Error, what: &str) -> String {
+/// (1-based) within `what` ("the line", "the field"), with what to do.
+pub fn utf8_message(err: Utf8Error, what: &str) -> String {
+    invalid_utf8_at(err.valid_up_to(), what)
+}
+
+/// [`utf8_message`] for the first bad byte at the 0-based offset `at`.
+fn invalid_utf8_at(at: usize, what: &str) -> String {
     format!(
-        "expected UTF-8 text, found an invalid byte sequence at byte {} of {what}",
-        err.valid_up_to() + 1
+        "expected UTF-8 text, found an invalid byte sequence at byte {} of {what} \
+         ({NOT_UTF8_HINT})",
+        at + 1
     )
 }
 
@@ -178,7 +268,8 @@ pub(super) fn check_lang(raw: &str) -> std::result::Result<Option<LangCode>, Str
 }
 
 /// Where the CSV parser stands with respect to quoting, after a byte. These
-/// are the parser's own states (csv-core's defaults: `,` separates fields,
+/// are the parser's own states (csv-core's defaults: `,` (or the declared
+/// separator) separates fields,
 /// `\r` or `\n` ends a record, `"` quotes, `""` is a quote inside quotes, no
 /// escape byte, no comments) folded to the four that decide what a `"` means.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -195,14 +286,15 @@ enum QuoteState {
 }
 
 impl QuoteState {
-    /// The state after `byte`.
-    fn next(self, byte: u8) -> QuoteState {
+    /// The state after `byte`, fields separated by `separator`.
+    fn next(self, byte: u8, separator: u8) -> QuoteState {
         use QuoteState::*;
         match (self, byte) {
             (Quoted, b'"') => QuoteInQuoted,
             (Quoted, _) | (QuoteInQuoted, b'"') => Quoted,
             (FieldStart, b'"') => Quoted,
-            (_, b',' | b'\r' | b'\n') => FieldStart,
+            (_, b'\r' | b'\n') => FieldStart,
+            (_, b) if b == separator => FieldStart,
             (FieldStart | Unquoted | QuoteInQuoted, _) => Unquoted,
         }
     }
@@ -231,18 +323,21 @@ struct LineIndex<R> {
     /// Where the quoted field the parser is in (or last was in) opened.
     opened: UnclosedQuote,
     at_end: bool,
+    separator: u8,
 }
 
 impl<R> LineIndex<R> {
-    fn new(inner: R) -> LineIndex<R> {
+    /// Follow `inner`, whose first byte is on physical line `lines_before + 1`.
+    fn new(inner: R, lines_before: u64, separator: u8) -> LineIndex<R> {
         LineIndex {
             inner,
             offset: 0,
             newlines: VecDeque::new(),
-            lines_before: 0,
+            lines_before,
             quote: QuoteState::FieldStart,
-            opened: UnclosedQuote { offset: 0, line: 1 },
+            opened: UnclosedQuote { offset: 0, line: lines_before + 1 },
             at_end: false,
+            separator,
         }
     }
 }
@@ -256,7 +351,7 @@ impl<R: Read> Read for LineIndex<R> {
         let read = buf.get(..n).unwrap_or(&[]);
         for (i, &b) in read.iter().enumerate() {
             let offset = self.offset + i as u64;
-            let next = self.quote.next(b);
+            let next = self.quote.next(b, self.separator);
             if next == QuoteState::Quoted && self.quote == QuoteState::FieldStart {
                 self.opened = UnclosedQuote { offset, line: self.lines_before + 1 };
             }
@@ -297,6 +392,9 @@ pub(super) struct CsvTable {
     header: Vec<String>,
     header_line: u64,
     record: csv::ByteRecord,
+    /// Physical lines before the CSV text (a `sep=` line), added to the
+    /// parser's line numbers.
+    lines_before: u64,
 }
 
 /// One CSV record whose field count matches the header and whose fields are
@@ -324,18 +422,22 @@ impl CsvTable {
     /// Open `path` and read its header. `expected` describes the header for
     /// the message about an empty file (for example `"query_id,text"`).
     pub fn open(path: &Path, expected: &str) -> Result<CsvTable> {
+        let mut file = open(path)?;
+        let (separator, lines_before) = read_separator_line(path, &mut file)?;
         let reader = csv::ReaderBuilder::new()
             .has_headers(true)
+            .delimiter(separator)
             // Field counts are checked per record to report every bad line
             // with its number instead of stopping at the first.
             .flexible(true)
-            .from_reader(LineIndex::new(open(path)?));
+            .from_reader(LineIndex::new(file, lines_before, separator));
         let mut table = CsvTable {
             path: path.to_path_buf(),
             reader,
             header: Vec::new(),
             header_line: 1,
             record: csv::ByteRecord::new(),
+            lines_before,
         };
         let raw = table.reader.byte_headers().map_err(|e| wrap_csv(path, e))?.clone();
         if raw.is_empty() {
@@ -399,11 +501,15 @@ impl CsvTable {
             } else {
                 String::new()
             };
+            let hint = match self.header.as_slice() {
+                [only] => separator_hint(only).map(|h| format!("; {h}")).unwrap_or_default(),
+                _ => String::new(),
+            };
             problems.push(
                 self.header_line,
                 format!(
                     "missing column{plural} {}: expected a header with columns {}{optional_note}, \
-                     found {}",
+                     found {}{hint}",
                     missing.join(", "),
                     all.join(", "),
                     quoted(&self.header.join(","))
@@ -424,7 +530,8 @@ impl CsvTable {
         // after its start is inside its last field.
         let ended_with_newline =
             self.unclosed_quote().is_none() && self.reader.get_mut().newline_before(after.byte());
-        after.line().saturating_sub(u64::from(ended_with_newline) + inner_newlines).max(1)
+        let line = after.line().saturating_sub(u64::from(ended_with_newline) + inner_newlines);
+        line.max(1) + self.lines_before
     }
 
     /// The quoted field left open at end of file when the record just read
@@ -508,12 +615,31 @@ impl CsvTable {
     }
 }
 
+/// Read a spreadsheet's `sep=X` first line from `file` (positioned after
+/// the BOM), if it has one: the separator to read with and the number of
+/// lines consumed (1, or 0 and `,` without such a line).
+fn read_separator_line(path: &Path, file: &mut BufReader<File>) -> Result<(u8, u64)> {
+    let head = file.fill_buf().map_err(|e| Error::io(path, e))?;
+    let first = match head.iter().position(|&b| b == b'\n') {
+        Some(end) => &head[..end],
+        // A `sep=` line is short: without a line end in the buffer, the
+        // first line is no such line unless it is the whole file.
+        None => head,
+    };
+    match declared_separator(first) {
+        None => Ok((b',', 0)),
+        Some(Err(message)) => Err(Error::at_line(path, 1, message)),
+        Some(Ok(separator)) => {
+            let consumed = (first.len() + 1).min(head.len());
+            file.consume(consumed);
+            Ok((separator, 1))
+        }
+    }
+}
+
 /// The UTF-8 message for a CSV field (csv's error gives the byte offset).
 fn utf8_message_field(err: &csv::Utf8Error) -> String {
-    format!(
-        "expected UTF-8 text, found an invalid byte sequence at byte {} of the field",
-        err.valid_up_to() + 1
-    )
+    invalid_utf8_at(err.valid_up_to(), "the field")
 }
 
 /// Add the path (and line, when csv knows it) to a csv error.
@@ -552,7 +678,7 @@ pub(super) mod testutil {
         if dir.is_dir() {
             Some(dir)
         } else {
-            eprintln!("skipped: shared data {} is absent", dir.display());
+            crate::test_skips::skip(&format!("shared data {} is absent", dir.display()));
             None
         }
     }
@@ -697,7 +823,7 @@ mod tests {
     #[test]
     fn quote_state_follows_the_csv_parser() {
         use QuoteState::*;
-        let walk = |bytes: &[u8]| bytes.iter().fold(FieldStart, |s, &b| s.next(b));
+        let walk = |bytes: &[u8]| bytes.iter().fold(FieldStart, |s, &b| s.next(b, b','));
         // Hand-traced against csv-core's transition_nfa (default settings).
         assert_eq!(walk(b"a,\"x"), Quoted);
         assert_eq!(walk(b"a,\"x\ny,z"), Quoted, "a line end inside quotes is text");

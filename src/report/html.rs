@@ -25,13 +25,14 @@ use crate::diagnose::render::{
     conflation_table, routing_by_chain, routing_table, segmentation_table, unspaced_table, Table,
     UNSPACED_LEGEND,
 };
+use crate::plural::counted;
 use crate::report::model::Report;
 use crate::report::svg::{self, esc, Bar, Estimate, Panel, Point, Series};
 use crate::report::text::{
     breakdown_caveat, build_time, cost_table, coverage_lines, definitions_table, fixed, headline,
     improves, interval, lower_is_better, moved_tables, names_groups, p_equals, pvalue,
-    reindex_case, route_table, sentence, settings_sentence, signed, spans_html, CHAINS_INTRO,
-    ROUTING_NOTE,
+    reindex_case, route_table, sentence, settings_sentence, signed, spans_html, systems_compared,
+    CHAINS_INTRO, ROUTING_NOTE,
 };
 
 /// Marks the start of the Timing section, the only part of the page that
@@ -89,16 +90,15 @@ pub fn render(r: &Report) -> String {
 fn header(s: &mut String, r: &Report, headline: &str) {
     let _ = writeln!(
         s,
-        "<header>\n<h1>postassay report</h1>\n<p class=\"lede\">{} {} compared on {} evaluated \
-         queries ({} skipped for having no relevant post), {} judgments{}. Baseline: \
-         <code>{}</code>. Headline metric: <code>{}</code>. Significance: two-sided paired \
-         randomization test, Holm-adjusted across systems, α = {}.</p>",
-        r.systems.len(),
-        if r.command == "run" { "analysis chains" } else { "runs" },
-        r.counts.queries_evaluated,
+        "<header>\n<h1>postassay report</h1>\n<p class=\"lede\">{} compared on {} ({} skipped \
+         for having no relevant post), {}{}. Baseline: <code>{}</code>. Headline metric: \
+         <code>{}</code>. Significance: two-sided paired randomization test, Holm-adjusted \
+         across systems, α = {}.</p>",
+        systems_compared(r),
+        counted(r.counts.queries_evaluated, "evaluated query", "evaluated queries"),
         r.counts.queries_skipped,
-        r.counts.judgments,
-        r.counts.posts.map(|p| format!(", {p} posts")).unwrap_or_default(),
+        counted(r.counts.judgments, "judgment", "judgments"),
+        r.counts.posts.map(|p| format!(", {}", counted(p, "post", "posts"))).unwrap_or_default(),
         esc(r.settings.baseline.as_str()),
         esc(headline),
         r.settings.alpha
@@ -215,7 +215,7 @@ fn scores(s: &mut String, r: &Report) {
          <thead><tr><th scope=\"col\">system</th>",
     );
     for m in &r.settings.metrics {
-        let _ = write!(s, "<th scope=\"col\">{}</th>", esc(m));
+        let _ = write!(s, "<th scope=\"col\">{}</th>", breakable_metric(m));
     }
     s.push_str("</tr></thead>\n<tbody>\n");
     let best: Vec<Option<String>> = r
@@ -314,6 +314,15 @@ fn against_baseline(s: &mut String, r: &Report, headline: &str) {
         let _ = writeln!(s, "<p>{}</p>", esc(&caveat));
     }
     if let Some(mi) = r.metric_index(headline) {
+        // One value scale for every per-query chart of the page, so equal
+        // bars mean equal differences from chart to chart.
+        let extent = r
+            .comparisons
+            .iter()
+            .filter(|c| c.metric == headline)
+            .filter_map(|c| query_differences(r, c.system.as_str(), mi))
+            .map(|bars| svg::bar_extent(&bars))
+            .fold(0.0, f64::max);
         for (n, c) in r.comparisons.iter().filter(|c| c.metric == headline).enumerate() {
             let Some(bars) = query_differences(r, c.system.as_str(), mi) else { continue };
             if bars.is_empty() {
@@ -331,6 +340,7 @@ fn against_baseline(s: &mut String, r: &Report, headline: &str) {
                     c.wins, c.losses, c.ties
                 ),
                 &bars,
+                extent,
                 &format!("Δ {headline} ({name} − {base})"),
                 &format!("{} evaluated queries, sorted by difference", bars.len()),
             );
@@ -361,7 +371,8 @@ fn against_baseline(s: &mut String, r: &Report, headline: &str) {
                      minus that of <code>{}</code>. <span class=\"swatch\" style=\"--c:{}\"></span>▲ \
                      above zero, better: {} queries; <span class=\"swatch\" style=\"--c:{}\"></span>▼ \
                      below zero, worse: {}; grey, tied: {}. Largest gains: {}. Largest losses: {}. \
-                     Hover a bar for its query id.",
+                     Every per-query chart of this report has the same scale. Hover a bar for its \
+                     query id and difference.",
                     esc(headline),
                     esc(name),
                     esc(base),
@@ -379,7 +390,7 @@ fn against_baseline(s: &mut String, r: &Report, headline: &str) {
     s.push_str(
         "<h3>Every metric</h3>\n<div class=\"scroll\"><table>\n<thead><tr><th scope=\"col\">system</th>\
          <th scope=\"col\">metric</th><th scope=\"col\">Δ mean</th><th scope=\"col\">95% CI of Δ</th>\
-         <th scope=\"col\">p (t-test)</th><th scope=\"col\">p (randomization)</th>\
+         <th scope=\"col\">p (t-test)</th><th scope=\"col\">p (random&shy;ization)</th>\
          <th scope=\"col\">p (Holm)</th><th scope=\"col\">significant</th>\
          <th scope=\"col\">won / lost / tied</th><th scope=\"col\">detectable Δ</th></tr></thead>\n<tbody>\n",
     );
@@ -391,7 +402,7 @@ fn against_baseline(s: &mut String, r: &Report, headline: &str) {
              <td class=\"num\">{}</td><td>{}</td><td class=\"num\">{} / {} / {}</td><td class=\"num\">{}</td></tr>",
             if c.significant { " class=\"sig\"" } else { "" },
             esc(c.system.as_str()),
-            esc(&c.metric),
+            breakable_metric(&c.metric),
             signed(c.delta),
             interval(c.delta_ci_low, c.delta_ci_high),
             esc(&pvalue(c.p_ttest)),
@@ -405,6 +416,12 @@ fn against_baseline(s: &mut String, r: &Report, headline: &str) {
         );
     }
     s.push_str("</tbody>\n</table></div>\n</section>\n");
+}
+
+/// A metric key, escaped, that a narrow table may wrap after its `@`
+/// (`recall@` / `100`) rather than overflow.
+fn breakable_metric(key: &str) -> String {
+    esc(key).replace('@', "@<wbr>")
 }
 
 /// Mix `hex` (`#rrggbb`) with white: `share` 0 is white, 1 the colour.
@@ -584,7 +601,7 @@ fn cost(s: &mut String, r: &Report, headline: &str) {
             &format!("{headline} against index size"),
             &format!("Each chain's mean {headline} with its 95% interval, against the size of its index on disk in {unit}."),
             &size_points,
-            &format!("index size on disk ({unit})"),
+            (&format!("index size on disk ({unit})"), 1),
             &format!("mean {headline}"),
         );
         figure(
@@ -601,7 +618,7 @@ fn cost(s: &mut String, r: &Report, headline: &str) {
             &format!("{headline} against distinct terms"),
             &format!("Each chain's mean {headline} with its 95% interval, against the number of distinct terms in its index."),
             &term_points,
-            "distinct terms in the index (count)",
+            ("distinct terms in the index (count)", 0),
             &format!("mean {headline}"),
         );
         figure(
@@ -819,7 +836,7 @@ fn timing(s: &mut String, r: &Report, headline: &str) {
                 &format!("{headline} against index build time"),
                 &format!("Each chain's mean {headline} with its 95% interval, against the wall-clock seconds its index took to build."),
                 &points,
-                "index build time (s, wall-clock)",
+                ("index build time (s, wall-clock)", 3),
                 &format!("mean {headline}"),
             );
             figure(
@@ -875,7 +892,7 @@ nav a { color: #005a8c; }
 figure { margin: 16px 0 24px; }
 figcaption { font-size: 14px; color: #333333; max-width: 900px; }
 .scroll { overflow-x: auto; }
-svg.chart { display: block; }
+svg.chart { display: block; max-width: 100%; height: auto; }
 table { border-collapse: collapse; margin: 8px 0 16px; font-size: 14px; }
 th, td { border: 1px solid #cccccc; padding: 4px 8px; text-align: left; vertical-align: top; }
 thead th { background: #f2f2f2; }
@@ -898,14 +915,27 @@ td.base { background: #ffffff; }
 .timing { margin-top: 40px; border-top: 3px double #999999; }
 .timing h2 { border-top: none; }
 details { margin: 8px 0; }
-pre { font-size: 12px; background: #f7f7f7; padding: 8px; overflow-x: auto; }
+pre { font-size: 12px; background: #f7f7f7; padding: 8px; overflow-x: auto; white-space: pre-wrap;
+  overflow-wrap: anywhere; }
+@media (max-width: 760px) {
+  body { padding: 12px 12px 32px; font-size: 14px; }
+  h1 { font-size: 24px; }
+  table { font-size: 12px; }
+  th, td { padding: 3px; }
+  .ci { font-size: 12px; }
+  td.num { white-space: normal; }
+  table.heat td { min-width: 0; }
+  .case { padding: 4px 12px 8px; }
+}
 @media print {
   body { max-width: none; padding: 0; font-size: 10.5pt; }
   nav { display: none; }
   .scroll { overflow: visible; }
-  svg.chart { max-width: 100%; height: auto; }
   figure, table, .case, h2, h3 { break-inside: avoid; }
-  h2, h3 { break-after: avoid; }
+  h2, h3, h2 + p, h3 + p, p.legend { break-after: avoid; }
+  h2 + p, h3 + p, p.legend { break-inside: avoid; }
+  details::details-content { content-visibility: visible; display: block; }
+  details > summary { list-style: none; font-weight: 600; }
   .timing { break-before: page; }
   .dot, .box, .swatch, td, .untested { print-color-adjust: exact; -webkit-print-color-adjust: exact; }
 }

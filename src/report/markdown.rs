@@ -9,11 +9,12 @@ use crate::diagnose::render::{
     conflation_table, routing_by_chain, routing_table, segmentation_table, unspaced_table,
     UNSPACED_LEGEND,
 };
+use crate::plural::counted;
 use crate::report::model::Report;
 use crate::report::text::{
     breakdown_caveat, build_time, cost_table, coverage_lines, definitions_table, fixed, headline,
     interval, moved_tables, names_groups, pvalue, reindex_case, route_table, sentence,
-    settings_sentence, signed, spans_markdown, CHAINS_INTRO, ROUTING_NOTE,
+    settings_sentence, signed, spans_markdown, systems_compared, CHAINS_INTRO, ROUTING_NOTE,
 };
 
 /// Render the whole Markdown report.
@@ -23,15 +24,14 @@ pub fn render(r: &Report) -> String {
     let _ = writeln!(s, "# postassay report\n");
     let _ = writeln!(
         s,
-        "{} {} compared on {} evaluated queries ({} skipped for having no relevant post), \
-         {} judgments{}. Baseline: `{}`. Significance: two-sided paired randomization test, \
-         Holm-adjusted across systems, α = {}.\n",
-        r.systems.len(),
-        if r.command == "run" { "analysis chains" } else { "runs" },
-        r.counts.queries_evaluated,
+        "{} compared on {} ({} skipped for having no relevant post), {}{}. Baseline: `{}`. \
+         Significance: two-sided paired randomization test, Holm-adjusted across systems, \
+         α = {}.\n",
+        systems_compared(r),
+        counted(r.counts.queries_evaluated, "evaluated query", "evaluated queries"),
         r.counts.queries_skipped,
-        r.counts.judgments,
-        r.counts.posts.map(|p| format!(", {p} posts")).unwrap_or_default(),
+        counted(r.counts.judgments, "judgment", "judgments"),
+        r.counts.posts.map(|p| format!(", {}", counted(p, "post", "posts"))).unwrap_or_default(),
         r.settings.baseline,
         r.settings.alpha,
     );

@@ -18,9 +18,16 @@
 //! & Ito, "Color Universal Design", 2008), which stays distinguishable under
 //! the common colour-vision deficiencies; "better" and "worse" are blue and
 //! orange and also told apart by position (above or below zero) and by
-//! signs in the text, never by colour alone. No text is smaller than 12 px,
-//! and charts keep their pixel size (they scroll rather than shrink), so the
-//! text stays readable at 80% zoom.
+//! signs in the text, never by colour alone. No text is smaller than 12 px
+//! at the chart's own size. Charts are drawn about 700 px wide (the widest,
+//! the per-query bars, 720 px) and the page lets them shrink to a narrower
+//! window (`max-width: 100%`, the `viewBox` keeps the proportions), so a
+//! 700 px window shows each chart whole with its text above 11 px; a wider
+//! window shows them at their own size.
+//!
+//! Tooltips (`<title>`) print numbers as the tables do: three decimals, a
+//! true minus sign, no sign on a difference that rounds to zero (never
+//! `−0.000`), and counts without decimals.
 
 use std::fmt::Write;
 
@@ -356,7 +363,7 @@ pub fn dot_whisker(
     axis: &str,
 ) -> String {
     let label_w = rows.iter().map(|r| text_width(&r.label, 13.0)).fold(60.0, f64::max) + 16.0;
-    let panel_w = 300.0_f64.max((940.0 - label_w) / panels.len().max(1) as f64);
+    let panel_w = 190.0_f64.max((700.0 - label_w) / panels.len().max(1) as f64);
     let width = label_w + panel_w * panels.len() as f64 + 20.0;
     let (top, row_h) = (34.0, 30.0);
     let axis_y = top + row_h * rows.len() as f64 + 6.0;
@@ -380,15 +387,9 @@ pub fn dot_whisker(
             x1,
         );
         svg.heading((x0 + x1) / 2.0, 20.0, "middle", &panel.title);
-        x_axis(
-            &mut svg,
-            &scale,
-            &ticks,
-            decimals,
-            axis_y,
-            top,
-            &format!("{} ({axis})", panel.title),
-        );
+        // The panel's heading names the metric; the axis title says what
+        // the values are, short enough for the narrowest panel.
+        x_axis(&mut svg, &scale, &ticks, decimals, axis_y, top, axis);
         for (i, (row, e)) in rows.iter().zip(&panel.estimates).enumerate() {
             let y = top + row_h * (i as f64 + 0.5);
             if let (Some(l), Some(h)) = (e.low, e.high) {
@@ -422,21 +423,32 @@ pub struct Bar {
     pub value: f64,
 }
 
+/// The largest absolute value among `bars`: pass the largest over every
+/// chart of a page as [`difference_bars`]'s `extent`, so that equal bars
+/// mean equal differences across the charts.
+pub fn bar_extent(bars: &[Bar]) -> f64 {
+    bars.iter().map(|b| b.value.abs()).filter(|v| v.is_finite()).fold(0.0, f64::max)
+}
+
 /// Signed bars in the given order (the caller sorts them) around a zero
 /// line: above zero in blue, below in orange, zero-height bars as a grey
-/// tick. Above zero means "better than the baseline".
+/// tick. Above zero means "better than the baseline". The value axis runs
+/// from −`extent` to +`extent` (rounded out to ticks; at least ±0.05),
+/// whatever these bars span.
 pub fn difference_bars(
     id: &str,
     title: &str,
     desc: &str,
     bars: &[Bar],
+    extent: f64,
     y_title: &str,
     x_title: &str,
 ) -> String {
     let (left, right, top, plot_h) = (78.0, 20.0, 16.0, 220.0);
-    let width = 960.0;
+    let width = 720.0;
     let plot_w = width - left - right;
-    let max = bars.iter().map(|b| b.value.abs()).filter(|v| v.is_finite()).fold(0.0, f64::max);
+    let max =
+        if extent.is_finite() { extent.abs().max(bar_extent(bars)) } else { bar_extent(bars) };
     let (ticks, decimals) = nice_ticks(-max.max(0.05), max.max(0.05), 6);
     let scale = Scale::new(
         ticks.first().copied().unwrap_or(-1.0),
@@ -467,12 +479,16 @@ pub fn difference_bars(
     svg.finish()
 }
 
-/// `+0.123` / `−0.123` for tooltips.
+/// `+0.123` / `−0.123` for tooltips; `0.000` without a sign when the value
+/// rounds to zero.
 fn signed_label(v: f64) -> String {
-    if v < 0.0 {
-        format!("−{:.3}", -v)
+    let magnitude = format!("{:.3}", v.abs());
+    if magnitude.bytes().all(|b| b == b'0' || b == b'.') {
+        magnitude
+    } else if v < 0.0 {
+        format!("−{magnitude}")
     } else {
-        format!("+{v:.3}")
+        format!("+{magnitude}")
     }
 }
 
@@ -492,16 +508,17 @@ pub struct Point {
 }
 
 /// Labelled points with optional vertical whiskers. The x values arrive in
-/// the unit `x_title` names (the caller converts bytes to KiB, say).
+/// the unit `x_title` names (the caller converts bytes to KiB, say), and
+/// tooltips give them with `x_decimals` decimals (0 for counts).
 pub fn scatter(
     id: &str,
     title: &str,
     desc: &str,
     points: &[Point],
-    x_title: &str,
+    (x_title, x_decimals): (&str, usize),
     y_title: &str,
 ) -> String {
-    let (left, right, top, plot_w, plot_h) = (78.0, 150.0, 16.0, 732.0, 260.0);
+    let (left, right, top, plot_w, plot_h) = (78.0, 150.0, 16.0, 452.0, 260.0);
     let width = left + plot_w + right;
     let height = top + plot_h + 52.0;
     let (xlo, xhi) = points
@@ -547,7 +564,7 @@ pub fn scatter(
             "{}: {} {}, {} {}",
             p.series.label,
             x_title,
-            tick_label(p.x, 3),
+            tick_label(p.x, x_decimals),
             y_title,
             tick_label(p.y, 3)
         );
@@ -607,6 +624,28 @@ mod tests {
     }
 
     #[test]
+    fn bars_share_the_scale_they_are_given() {
+        // Two charts of one page: a small difference drawn on the scale of
+        // the larger one is as short as its value says.
+        let small = vec![Bar { label: "q1".into(), value: 0.1 }];
+        let alone = difference_bars("a", "t", "d", &small, 0.0, "Δ", "q");
+        let shared = difference_bars("b", "t", "d", &small, 1.0, "Δ", "q");
+        let height = |s: &str| -> f64 {
+            let rect = s.split("<rect").nth(1).unwrap_or_default();
+            rect.split("height=\"")
+                .nth(1)
+                .and_then(|h| h.split('"').next())
+                .and_then(|h| h.parse().ok())
+                .unwrap_or(0.0)
+        };
+        // 220 px of plot from −0.1 to 0.1 (ticks of 0.05): the bar is half
+        // of it; from −1 to 1 (ticks of 0.5): a twentieth.
+        assert_eq!(height(&alone), 110.0);
+        assert_eq!(height(&shared), 11.0);
+        assert!(shared.contains(">1.0</text>") && !alone.contains(">1.0</text>"));
+    }
+
+    #[test]
     fn scale_maps_ends_and_inverts() {
         let s = Scale::new(0.0, 1.0, 200.0, 0.0);
         assert_eq!(s.at(0.0), 200.0);
@@ -621,11 +660,17 @@ mod tests {
             Bar { label: "q2".into(), value: 0.0 },
             Bar { label: "q3".into(), value: -0.25 },
         ];
-        let s = difference_bars("c1", "a & b", "d", &bars, "Δ", "queries");
+        let s = difference_bars("c1", "a & b", "d", &bars, 0.0, "Δ", "queries");
         assert!(s.starts_with("<svg") && s.ends_with("</svg>"));
         assert_eq!(s.matches(&format!("fill=\"{BETTER}\"")).count(), 1);
         assert_eq!(s.matches(&format!("fill=\"{WORSE}\"")).count(), 1);
         assert!(s.contains("<title>q&lt;1&gt;: +0.500</title>"));
+        assert!(s.contains("<title>q2: 0.000</title>"), "a tie has no sign");
+        assert!(s.contains("<title>q3: −0.250</title>"));
+        // A difference that rounds to zero is shown as 0.000, never −0.000.
+        assert_eq!(signed_label(-0.0001), "0.000");
+        assert_eq!(signed_label(0.0004), "0.000");
+        assert_eq!(signed_label(-0.0005001), "−0.001");
         assert!(s.contains("<title id=\"c1-title\">a &amp; b</title>"));
         assert!(!s.contains("http"), "no namespace URL is needed inline in HTML");
     }
@@ -659,7 +704,9 @@ mod tests {
                 y_high: None,
             })
             .collect();
-        let s = scatter("c3", "t", "d", &pts, "size", "ndcg@10");
+        let s = scatter("c3", "t", "d", &pts, ("terms", 0), "ndcg@10");
+        // Counts without decimals in the tooltips.
+        assert!(s.contains("<title>c: terms 100, ndcg@10 0.500</title>"), "{s}");
         let label_y = |name: &str| -> Option<f64> {
             let part = s.split("<text x=\"").find(|p| p.contains(&format!(">{name}</text>")))?;
             part.split("y=\"").nth(1)?.split('"').next()?.parse().ok()

@@ -5,6 +5,7 @@
 //! formatted for display, never stored).
 
 use crate::bench::compare::{BreakdownCell, ComparisonRow, MIN_BREAKDOWN_QUERIES};
+use crate::plural::counted;
 use crate::report::model::{Cost, Report};
 use crate::report::svg::esc;
 
@@ -198,7 +199,17 @@ pub fn interval(lo: Option<f64>, hi: Option<f64>) -> String {
 
 /// `1 evaluated query`, `3 evaluated queries`.
 fn evaluated_queries(n: usize) -> String {
-    format!("{n} evaluated quer{}", if n == 1 { "y" } else { "ies" })
+    counted(n, "evaluated query", "evaluated queries")
+}
+
+/// What the report compares, counted: `4 analysis chains` for `run`,
+/// `2 runs` for `score`.
+pub fn systems_compared(r: &Report) -> String {
+    if r.command == "run" {
+        counted(r.systems.len(), "analysis chain", "analysis chains")
+    } else {
+        counted(r.systems.len(), "run", "runs")
+    }
 }
 
 /// Why a comparison carries no test, in the report's words (`not tested: 1
@@ -217,7 +228,7 @@ pub fn not_tested(c: &ComparisonRow) -> Option<String> {
 
 /// `1 compared system`, `3 compared systems`.
 fn compared(n: usize) -> String {
-    format!("{n} compared system{}", if n == 1 { "" } else { "s" })
+    counted(n, "compared system", "compared systems")
 }
 
 /// Bytes for reading (KiB below one MiB).
@@ -249,13 +260,40 @@ pub fn reindex_case(r: &Report, headline: &str) -> Vec<Vec<Span>> {
     let base = r.settings.baseline.as_str();
     let mut out: Vec<Vec<Span>> = Vec::new();
     let rows: Vec<&ComparisonRow> = r.comparisons.iter().filter(|c| c.metric == headline).collect();
+    // `run` weighs a reindex; `score` compares runs of systems already built.
+    let decision = if r.command == "run" { "reindexing" } else { "a switch" };
+    if headline.is_empty() {
+        // Every metric is an `unjudged@k`: fewer holes is not a better
+        // ranking, so nothing can be recommended, however many systems.
+        let listed: Vec<Span> = r
+            .settings
+            .metrics
+            .iter()
+            .enumerate()
+            .flat_map(|(i, m)| [t(if i == 0 { "" } else { ", " }), code(m.as_str())])
+            .collect();
+        let mut p = vec![Span::Strong(vec![t("No quality metric to compare on.")]), t(" ")];
+        p.push(code("--metrics"));
+        p.push(t(" lists only "));
+        p.extend(listed);
+        p.push(t(format!(
+            ", which counts the posts nobody judged (lower is better) and says nothing about \
+             which of the {} ranks better, so there is no case for or against {decision}. Put \
+             a quality metric first, for example ",
+            systems_compared(r)
+        )));
+        p.push(code("--metrics ndcg@10,unjudged@10"));
+        p.push(t("."));
+        out.push(p);
+        return out;
+    }
     if rows.is_empty() {
         out.push(vec![
             Span::Strong(vec![t("Nothing to compare.")]),
             t(format!(
-                " Only one system was scored on {} queries, so there is no case for or against \
-                 reindexing.",
-                r.counts.queries_evaluated
+                " Only one {} was scored, on {}, so there is no case for or against {decision}.",
+                if r.command == "run" { "chain" } else { "system" },
+                evaluated_queries(r.counts.queries_evaluated)
             )),
         ]);
         return out;
@@ -310,7 +348,7 @@ pub fn reindex_case(r: &Report, headline: &str) -> Vec<Vec<Span>> {
                 Span::Strong(vec![
                     t(format!(
                         "No {} is detectably better than the baseline ",
-                        if r.command == "run" { "chain" } else { "run" }
+                        if r.command == "run" { "chain" } else { "system" }
                     )),
                     code(base),
                     t(format!(" on {headline}.")),
@@ -337,7 +375,7 @@ pub fn reindex_case(r: &Report, headline: &str) -> Vec<Vec<Span>> {
                             }
                         )
                     },
-                    if r.command == "run" { "reindexing" } else { "a switch" }
+                    decision
                 )),
                 code(base),
                 t("."),
@@ -1224,7 +1262,7 @@ mod tests {
 
     #[test]
     fn sentence_gives_the_interval_and_each_group_size() {
-        // Numbers of the demo report's `stemmed` row (reports/report.md).
+        // Numbers of the demo report's `stemmed` row (docs/sample-report/report.md).
         let overall = row("stemmed", 70, 0.092, Some((0.033, 0.154)), Some(0.012));
         let r = report(
             vec![overall.clone()],

@@ -188,12 +188,13 @@ impl Ranker<'_> {
             };
             for (rank, doc) in ranking.into_iter().enumerate() {
                 *fused.entry(doc.doc).or_default() +=
-                    self.fused_part(fusion, rank, doc.score, ceiling);
+                    self.fused_part(fusion, rank, doc.score.unwrap_or(0.0), ceiling);
             }
         }
         let mut docs: Vec<RankedDoc> =
-            fused.into_iter().map(|(doc, score)| RankedDoc { doc, score }).collect();
-        docs.sort_by(|a, b| b.score.total_cmp(&a.score).then_with(|| a.doc.cmp(&b.doc)));
+            fused.into_iter().map(|(doc, score)| RankedDoc { doc, score: Some(score) }).collect();
+        let key = |d: &RankedDoc| d.score.unwrap_or(0.0);
+        docs.sort_by(|a, b| key(b).total_cmp(&key(a)).then_with(|| a.doc.cmp(&b.doc)));
         docs.truncate(depth);
         Ok(docs)
     }
@@ -275,7 +276,10 @@ fn top_hits(
     }
     docs.sort_by(|a, b| b.0.total_cmp(&a.0).then_with(|| a.1.cmp(b.1)));
     docs.truncate(depth);
-    Ok(docs.into_iter().map(|(s, id)| RankedDoc { doc: id.clone(), score: f64::from(s) }).collect())
+    Ok(docs
+        .into_iter()
+        .map(|(s, id)| RankedDoc { doc: id.clone(), score: Some(f64::from(s)) })
+        .collect())
 }
 
 /// BM25's term-frequency saturation `k1`, as tantivy scores (its documented
@@ -408,12 +412,12 @@ pub fn explain_post(
         fields.push(FieldStanding {
             field: fa.key.clone(),
             rank: rank.map(|r| r + 1),
-            bm25: rank.and_then(|r| ranking.get(r)).map(|d| d.score),
+            bm25: rank.and_then(|r| ranking.get(r)).and_then(|d| d.score),
             fused_share: match (slots.len() > 1, rank, ranking.get(rank.unwrap_or(usize::MAX))) {
                 (true, Some(r), Some(d)) => Some(ranker.fused_part(
                     ranker.fusion(),
                     r,
-                    d.score,
+                    d.score.unwrap_or(0.0),
                     ranker.field_ceiling(slot, terms)?,
                 )),
                 _ => None,
@@ -423,7 +427,7 @@ pub fn explain_post(
     }
     Ok(PostMatch {
         rank: pos.map(|p| p + 1),
-        score: pos.and_then(|p| all.get(p)).map(|d| d.score),
+        score: pos.and_then(|p| all.get(p)).and_then(|d| d.score),
         fields,
     })
 }

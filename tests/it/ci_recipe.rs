@@ -5,7 +5,7 @@
 //! The bench is the bundled demo (invented posts) with a chain file holding
 //! one chain, `posts`, that stems English. The "change under review" drops
 //! the stemming step. On the demo, stemming raises nDCG@10 by about 0.09 over
-//! plain words with p ≈ 0.01 (reports/report.md), so the CI step must fail
+//! plain words with p ≈ 0.01 (docs/sample-report/report.md), so the CI step must fail
 //! with exit 1 on `ndcg@10` for `posts`, and pass on the unchanged file.
 
 use std::path::{Path, PathBuf};

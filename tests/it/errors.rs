@@ -162,8 +162,14 @@ fn run_duplicate_document() {
 }
 
 #[test]
-fn run_missing_score_column() {
-    expect_score_error(GOOD_QRELS, "query_id,doc_id,rank\nq1,d1,1\n", &[], &["run.csv:1", "score"]);
+fn run_missing_rank_column() {
+    // The rank orders a run, so it is required; `score` is optional (issue 12).
+    expect_score_error(
+        GOOD_QRELS,
+        "query_id,doc_id,score\nq1,d1,1\n",
+        &[],
+        &["run.csv:1", "\"rank\""],
+    );
 }
 
 #[test]

@@ -93,3 +93,29 @@ fn explain_takes_the_bm25_score_apart() {
     assert!(text.contains(&line), "{line:?} in {text}");
     assert!(text.contains(&format!("shares add up to {:.4}", 2.0 * per_term)), "{text}");
 }
+
+/// Issue 12: texts print as written, not as Rust escapes (the demo post
+/// p00001 ends with the ZWJ sequence man biking, dark skin tone: U+1F6B4
+/// U+1F3FF U+200D U+2642 U+FE0F), and no internal term dump (`text:`
+/// prefixes, `Term(field=…)`) reaches the text output.
+#[test]
+fn explain_text_prints_texts_as_written_without_term_dumps() {
+    let res = postassay(
+        &root(),
+        &["explain", "--query", "q01", "--doc", "p00001", "--chains", "standard,routed"],
+    );
+    let (stdout, stderr) = texts(&res);
+    assert_eq!(res.status.code(), Some(0), "{stderr}");
+    let first = stdout.lines().next().unwrap_or_default();
+    assert_eq!(
+        first,
+        "query q01 (\"ferry delays\") · post p00001 (\"El barco de las 12:30 va con retraso. \
+         Deseadme suerte. #QuillFerries \u{1F6B4}\u{1F3FF}\u{200D}\u{2642}\u{FE0F}\") · grade \
+         unjudged"
+    );
+    assert!(!stdout.contains("\\u{"), "no escapes: {stdout}");
+    assert!(!stdout.contains("Term("), "no term dump: {stdout}");
+    // Query terms read like the post's terms: terms, then the field.
+    assert!(stdout.contains("  query terms:   delays ferry (text)\n"), "{stdout}");
+    assert!(stdout.contains("  query terms:   delay ferri (text_en)\n"), "{stdout}");
+}

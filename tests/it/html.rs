@@ -9,7 +9,8 @@
 //!   n, p, r everywhere; `better` ranks r first on q1–q7 (with an unjudged
 //!   `u1` second on q1) and ties on q8, so it wins 7 of 8 and the exact
 //!   sign-flip test gives 4/256, 0.031 after Holm over two systems;
-//!   `mixed` wins four queries and loses four.
+//!   `mixed` wins four queries and loses four; `small` ranks r second on
+//!   every query (n, r, p), a gain of 0.072 in nDCG@3 each.
 //! - `html/bench/`: 14 posts and 7 queries for a small `run` (cost and
 //!   timing charts); one query id, `q&<b>`, needs escaping.
 
@@ -47,24 +48,19 @@ fn score_no_gain(out: &Path) {
 
 /// A small `run` of two chains on the `html/bench` fixture.
 fn run_bench(out: &Path) {
+    run_bench_chains(out, "standard,stemmed");
+}
+
+/// A small `run` of `chains` on the `html/bench` fixture.
+fn run_bench_chains(out: &Path, chains: &str) {
     let dir = fixture("html/bench");
-    let res = postassay(
-        &dir,
-        &[
-            "run",
-            "--quiet",
-            "--corpus",
-            "posts.jsonl",
-            "--queries",
-            "queries.csv",
-            "--judgments",
-            "qrels.csv",
-            "--chains",
-            "standard,stemmed",
-            "--out",
-            out.to_str().expect("temp path is UTF-8"),
-        ],
-    );
+    let out = out.to_str().expect("temp path is UTF-8");
+    let inputs =
+        ["--corpus", "posts.jsonl", "--queries", "queries.csv", "--judgments", "qrels.csv"];
+    let mut args = vec!["run", "--quiet"];
+    args.extend(inputs);
+    args.extend(["--chains", chains, "--out", out]);
+    let res = postassay(&dir, &args);
     assert_eq!(res.status.code(), Some(0), "stderr: {}", texts(&res).1);
 }
 
@@ -151,7 +147,8 @@ fn html_report_of_a_detectable_gain() {
         .expect("chart");
     assert_eq!(diff1.matches("fill=\"#0072B2\"").count(), 7);
     assert_eq!(diff1.matches("fill=\"#E69F00\"").count(), 0);
-    assert!(diff1.contains("<title>q8: +0.000</title>"));
+    // A tie has no sign in the tooltip (issue 12: never −0.000).
+    assert!(diff1.contains("<title>q8: 0.000</title>"));
     // `mixed`: four wins and four losses.
     let diff2 = html
         .split("id=\"chart-diff-2\"")
@@ -185,6 +182,19 @@ fn html_report_of_a_run_has_cost_charts_and_escapes_ids() {
         &html[html.find(TIMING_BEGIN).expect("begin")..html.find(TIMING_END).expect("end")];
     assert!(timing.contains("id=\"chart-cost-build\""));
     assert!(!without_timing(&html).contains("chart-cost-build"));
+    // Tooltips give counts without decimals (issue 12): distinct terms.
+    let terms = html
+        .split("id=\"chart-cost-terms\"")
+        .nth(1)
+        .and_then(|p| p.split("</svg>").next())
+        .expect("chart");
+    let counts: Vec<&str> = terms
+        .split("distinct terms in the index (count) ")
+        .skip(1)
+        .filter_map(|p| p.split(',').next())
+        .collect();
+    assert_eq!(counts.len(), 2, "one tooltip per chain: {terms}");
+    assert!(counts.iter().all(|c| c.parse::<u64>().is_ok()), "{counts:?}");
     // Query id `q&<b>` only ever appears escaped.
     assert!(!html.contains("q&<b>"));
     assert!(html.contains("q&amp;&lt;b&gt;"));
@@ -266,17 +276,84 @@ fn markdown_golden_without_a_recommendation() {
     assert_golden(&md, &fixture("html/no_gain.golden.md"));
 }
 
-/// The first Chromium-like browser found, if any.
-fn chromium() -> Option<PathBuf> {
-    ["/usr/bin/chromium", "/usr/bin/chromium-browser"]
-        .iter()
-        .map(PathBuf::from)
-        .find(|p| p.is_file())
+/// The y-axis tick labels of the chart `id` of a page.
+fn y_ticks(html: &str, id: &str) -> Vec<String> {
+    let chart = html
+        .split(&format!("id=\"{id}\""))
+        .nth(1)
+        .and_then(|p| p.split("</svg>").next())
+        .unwrap_or_else(|| panic!("no chart {id}"));
+    chart
+        .split("text-anchor=\"end\" font-size=\"12\">")
+        .skip(1)
+        .filter_map(|p| p.split('<').next())
+        .map(str::to_string)
+        .collect()
 }
 
-/// Run `cmd`, killing it after `limit`; true when it exited successfully.
+/// Issue 12: the per-query charts of one report share one value scale, so
+/// `small`'s +0.072 bars are drawn on `better`'s axis (up to +0.413) and
+/// look as small as they are.
+#[test]
+fn per_query_charts_share_one_scale() {
+    let tmp = tempfile::tempdir().expect("temp dir");
+    let out = tmp.path().join("out");
+    score_fixture(
+        "html/gain",
+        &["base=base.csv", "better=better.csv", "small=small.csv"],
+        "ndcg@3",
+        &out,
+    );
+    let html = read(&out.join("report.html"));
+    let axis = ["−0.6", "−0.4", "−0.2", "0.0", "0.2", "0.4", "0.6"];
+    assert_eq!(y_ticks(&html, "chart-diff-1"), axis);
+    assert_eq!(y_ticks(&html, "chart-diff-2"), axis, "the same axis for the small gains");
+    assert!(html.contains("<title>q1: +0.072</title>"));
+    assert!(html.contains("Every per-query chart of this report has the same scale."));
+}
+
+/// Issue 12: the print style sheet keeps headings and the paragraph under
+/// them with what follows, and prints `<details>` (the chain definitions)
+/// open. Checked here as rules of the page; how Chromium paginates them was
+/// checked by hand (print to PDF of the demo report: no page ends with a
+/// heading or an intro paragraph, the definitions print in full).
+#[test]
+fn print_rules_keep_headings_with_their_content_and_open_details() {
+    let tmp = tempfile::tempdir().expect("temp dir");
+    let out = tmp.path().join("out");
+    run_bench(&out);
+    let html = read(&out.join("report.html"));
+    let print = html.split("@media print {").nth(1).and_then(|p| p.split("\n}\n").next());
+    let print = print.expect("a print style sheet");
+    for rule in [
+        "h2, h3, h2 + p, h3 + p, p.legend { break-after: avoid; }",
+        "h2 + p, h3 + p, p.legend { break-inside: avoid; }",
+        "details::details-content { content-visibility: visible; display: block; }",
+    ] {
+        assert!(print.contains(rule), "missing {rule:?} in {print}");
+    }
+    assert!(html.contains("<details><summary>Chain definitions</summary>"));
+}
+
+/// The first Chromium-like browser found; without one, the check of
+/// `test` is skipped, saying so.
+fn chromium(test: &str) -> Option<PathBuf> {
+    let found = ["/usr/bin/chromium", "/usr/bin/chromium-browser"]
+        .iter()
+        .map(PathBuf::from)
+        .find(|p| p.is_file());
+    if found.is_none() {
+        crate::util::skip(&format!(
+            "{test}: no chromium at /usr/bin/chromium (apt-get install -y chromium)"
+        ));
+    }
+    found
+}
+
+/// Run `cmd` (its stdout is the caller's to set), killing it after
+/// `limit`; true when it exited successfully.
 fn run_with_limit(cmd: &mut Command, limit: Duration) -> bool {
-    let Ok(mut child) = cmd.stdout(Stdio::null()).stderr(Stdio::null()).spawn() else {
+    let Ok(mut child) = cmd.stderr(Stdio::null()).spawn() else {
         return false;
     };
     let start = Instant::now();
@@ -293,14 +370,93 @@ fn run_with_limit(cmd: &mut Command, limit: Duration) -> bool {
     }
 }
 
+/// Chromium in headless mode with a throw-away profile and no network
+/// traffic of its own.
+fn headless(browser: &Path, profile: &Path) -> Command {
+    let mut cmd = Command::new(browser);
+    cmd.args([
+        "--headless",
+        "--no-sandbox",
+        "--disable-gpu",
+        "--disable-quic",
+        "--no-first-run",
+        "--disable-background-networking",
+        "--disable-component-update",
+        "--disable-sync",
+    ])
+    .arg(format!("--user-data-dir={}", profile.display()));
+    cmd
+}
+
+/// A script for a copy of the page (the report itself has none): once the
+/// page is laid out, it records on `<body data-probe>` the window's width,
+/// the page's, every scrolling box whose content is wider than the box, and
+/// each chart's place and scale (drawn width ÷ its own width).
+const PROBE: &str = "<script>window.addEventListener('load', () => {
+  const root = document.documentElement;
+  const out = { viewport: root.clientWidth, page: root.scrollWidth, clipped: [], charts: [] };
+  for (const el of document.querySelectorAll('.scroll, pre')) {
+    if (el.scrollWidth > el.clientWidth + 1) out.clipped.push(el.innerText.slice(0, 40));
+  }
+  for (const svg of document.querySelectorAll('svg.chart')) {
+    const r = svg.getBoundingClientRect();
+    out.charts.push([svg.id, r.left, r.right, r.width / svg.viewBox.baseVal.width]);
+  }
+  document.body.setAttribute('data-probe', JSON.stringify(out));
+});</script>";
+
+/// Issue 12: at 700 px (a window of that width, scroll bar included) the
+/// whole `run` report is readable: no horizontal scrolling of the page or
+/// of any table, every chart whole inside the window, and chart text (12 px
+/// and up at the chart's own size) no smaller than 11 px on screen.
+#[test]
+fn page_fits_a_700_px_window() {
+    let Some(browser) = chromium("page_fits_a_700_px_window") else { return };
+    let tmp = tempfile::tempdir().expect("temp dir");
+    let out = tmp.path().join("out");
+    run_bench_chains(&out, "standard,stemmed,hashtag,routed");
+    let html = read(&out.join("report.html"));
+    let probe_page = tmp.path().join("probe.html");
+    std::fs::write(&probe_page, html.replace("</body>", &format!("{PROBE}</body>")))
+        .expect("probe page written");
+    let dom_path = tmp.path().join("dom.html");
+    let ok = run_with_limit(
+        headless(&browser, &tmp.path().join("profile"))
+            .arg("--window-size=700,2000")
+            .arg("--dump-dom")
+            .arg(format!("file://{}", probe_page.display()))
+            .stdout(std::fs::File::create(&dom_path).expect("DOM file")),
+        Duration::from_secs(90),
+    );
+    assert!(ok, "{} did not lay out the page", browser.display());
+    let dom = read(&dom_path);
+    let probe = dom
+        .split("data-probe=\"")
+        .nth(1)
+        .and_then(|p| p.split('"').next())
+        .unwrap_or_else(|| panic!("no probe in the DOM: {dom}"))
+        .replace("&quot;", "\"")
+        .replace("&amp;", "&");
+    let probe: serde_json::Value = serde_json::from_str(&probe).expect("probe JSON");
+    let viewport = probe["viewport"].as_f64().expect("viewport");
+    assert!((680.0..=700.0).contains(&viewport), "a 700 px window: {probe}");
+    assert_eq!(probe["page"].as_f64(), Some(viewport), "the page scrolls sideways: {probe}");
+    assert_eq!(probe["clipped"], serde_json::json!([]), "tables wider than the page: {probe}");
+    let charts = probe["charts"].as_array().expect("charts");
+    assert_eq!(charts.len(), 7, "means, three per-query charts, three scatters: {probe}");
+    for chart in charts {
+        let (left, right, scale) = (chart[1].as_f64(), chart[2].as_f64(), chart[3].as_f64());
+        let (Some(left), Some(right), Some(scale)) = (left, right, scale) else {
+            panic!("{chart}")
+        };
+        assert!(left >= 0.0 && right <= viewport, "{chart} not whole in {viewport} px");
+        assert!(12.0 * scale >= 11.0, "{chart}: 12 px text drawn at {:.1} px", 12.0 * scale);
+    }
+}
+
 #[test]
 fn chromium_renders_the_page() {
-    let Some(browser) = chromium() else {
-        crate::util::report_line(
-            "skipped: no chromium at /usr/bin/chromium (apt-get install -y chromium)",
-        );
-        return;
-    };
+    let Some(browser) = chromium("chromium_renders_the_page") else { return };
     let tmp = tempfile::tempdir().expect("temp dir");
     let out = tmp.path().join("out");
     score_gain(&out);
@@ -308,19 +464,9 @@ fn chromium_renders_the_page() {
     let png_path = tmp.path().join("page.png");
     let profile = tmp.path().join("profile");
     let ok = run_with_limit(
-        Command::new(&browser)
-            .args([
-                "--headless",
-                "--no-sandbox",
-                "--disable-gpu",
-                "--disable-quic",
-                "--no-first-run",
-                "--disable-background-networking",
-                "--disable-component-update",
-                "--disable-sync",
-                "--hide-scrollbars",
-            ])
-            .arg(format!("--user-data-dir={}", profile.display()))
+        headless(&browser, &profile)
+            .stdout(Stdio::null())
+            .arg("--hide-scrollbars")
             .arg(format!("--screenshot={}", png_path.display()))
             .arg("--window-size=1280,2400")
             .arg(format!("file://{}", page.display())),

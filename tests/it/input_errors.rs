@@ -1,7 +1,9 @@
 //! Input gaps found by an audit, end to end: a CSV quote left open at end of
 //! file, JSON integer ids beyond 64 bits, a JSON Lines corpus whose first
 //! line is not UTF-8, warnings that reached the report but not stderr, and
-//! `score` without `--out` overwriting the committed sample in `reports/`.
+//! `score` without `--out` overwriting the demo run's `reports/`; and (issue
+//! 12) a directory given for a file, files separated by semicolons or tabs,
+//! a spreadsheet's `sep=` line, Latin-1 and UTF-16 files.
 //! Bad input: exit code 2, one message naming file and line, no `--out`.
 
 use std::path::{Path, PathBuf};
@@ -180,7 +182,8 @@ fn jsonl_first_line_in_latin1_is_reported_as_not_utf8() {
         QRELS,
     );
     bench.expect_error(&format!(
-        "{}:1: expected UTF-8 text, found an invalid byte sequence at byte 23 of the line",
+        "{}:1: expected UTF-8 text, found an invalid byte sequence at byte 23 of the line (a \
+         Latin-1 or Windows-1252 file? save it as UTF-8)",
         bench.corpus.display()
     ));
 }
@@ -206,9 +209,9 @@ fn run_warnings_are_printed_on_stderr_unless_quiet() {
             "{qrels}:3: query \"q1\" doc \"p1\" is judged again with the same grade 1 (first at \
              line 2); the repeat is ignored"
         ),
-        format!("{qrels}: 1 judged queries are not in the query file and were not evaluated: q3"),
+        format!("{qrels}: 1 judged query is not in the query file and was not evaluated: q3"),
         "standard: ignored 1 query of the run without judgments: q2".to_string(),
-        "only 1 evaluated queries: significance tests need at least 2, p-values are left empty"
+        "only 1 evaluated query: significance tests need at least 2, p-values are left empty"
             .to_string(),
     ];
     assert_eq!(stderr_warnings(&stderr), expected, "{stderr}");
@@ -253,21 +256,146 @@ fn score_warnings_are_printed_on_stderr_unless_quiet() {
 }
 
 #[test]
-fn score_without_out_leaves_the_committed_sample_in_reports() {
-    // `reports/` holds the committed sample of the demo `run` (README);
-    // before, `score` without --out overwrote it.
+fn score_without_out_leaves_the_demo_run_in_reports() {
+    // `reports/` holds the output of the demo `run` (README); before,
+    // `score` without --out overwrote it.
     let tmp = tempfile::tempdir().unwrap();
     write(tmp.path(), "qrels.csv", "query_id,doc_id,grade\nq1,d1,2\nq2,d2,1\n");
     write(tmp.path(), "run.csv", SCORE_RUN);
     let reports = tmp.path().join("reports");
     std::fs::create_dir(&reports).unwrap();
-    let sample = write(&reports, "report.md", "# the committed sample\n");
+    let sample = write(&reports, "report.md", "# the demo run's report\n");
     let res = score_in(tmp.path(), &[]);
     let (_, stderr) = texts(&res);
     assert_eq!(res.status.code(), Some(0), "{stderr}");
-    assert_eq!(std::fs::read_to_string(&sample).unwrap(), "# the committed sample\n");
+    assert_eq!(std::fs::read_to_string(&sample).unwrap(), "# the demo run's report\n");
     assert_eq!(std::fs::read_dir(&reports).unwrap().count(), 2, "report.md and score/ only");
     let summary = read_csv(&reports.join("score/summary.csv"));
     assert_eq!(summary[0].join(","), "system,metric,mean,ci_low,ci_high,queries");
-    assert!(stderr.contains("postassay: wrote reports/score/report.md"), "{stderr}");
+    assert!(
+        stderr.ends_with(
+            "postassay: wrote reports/score: open reports/score/report.html first (report.md, \
+             report.json and the CSV tables are beside it)\n"
+        ),
+        "{stderr}"
+    );
+}
+
+/// Issue 12: a directory given where a file is expected names the flag it
+/// came from (before, only the operating system's "Is a directory").
+#[test]
+fn a_directory_for_a_file_names_its_flag() {
+    let bench = Bench::new("posts.jsonl", CORPUS.as_bytes(), QUERIES, QRELS);
+    let dir = bench.tmp.path().join("a_dir");
+    std::fs::create_dir(&dir).unwrap();
+    let d = dir.to_str().unwrap();
+    let run_dir = format!("a={d}");
+    let cases: [(String, Vec<&str>); 4] = [
+        (
+            format!("--queries {d}"),
+            vec!["run", "--corpus", bench.corpus.to_str().unwrap(), "--queries", d],
+        ),
+        (format!("--judgments {d}"), vec!["score", "--judgments", d, "--run", "a=x.csv"]),
+        (format!("--run a={d}"), vec!["score", "--judgments", "q.csv", "--run", &run_dir]),
+        (
+            format!("--chain-file {d}"),
+            vec!["tokens", "--chain", "standard", "--chain-file", d, "x"],
+        ),
+    ];
+    for (argument, mut args) in cases {
+        if args[0] == "run" {
+            args.extend(["--judgments", bench.qrels.to_str().unwrap(), "--out"]);
+            args.push(bench.out.to_str().unwrap());
+        }
+        let res = postassay(bench.tmp.path(), &args);
+        let (_, stderr) = texts(&res);
+        assert_eq!(res.status.code(), Some(2), "{stderr}");
+        assert_eq!(stderr, format!("postassay: {argument}: expected a file, found a directory\n"));
+    }
+    assert!(!bench.out.exists());
+}
+
+/// Issue 12: files saved by spreadsheets and editors in another layout or
+/// encoding get a message that says what to do, and a first line `sep=;`
+/// (a spreadsheet's separator declaration) is read.
+#[test]
+fn separators_and_encodings_get_a_hint() {
+    // Semicolons without a declaration.
+    let bench = Bench::new("posts.jsonl", CORPUS.as_bytes(), "query_id;text\nq1;ferry\n", QRELS);
+    bench.expect_error(&format!(
+        "{}:1: missing columns \"query_id\", \"text\": expected a header with columns \
+         \"query_id\", \"text\" (optional: \"lang\", \"tags\"), found \"query_id;text\"; the \
+         header has no comma but 1 semicolon: save the file as comma-separated CSV, or make its \
+         first line \"sep=;\" to declare the separator",
+        bench.queries.display()
+    ));
+    // Tabs in judgments.
+    let bench = Bench::new(
+        "posts.jsonl",
+        CORPUS.as_bytes(),
+        QUERIES,
+        "query_id\tdoc_id\tgrade\nq1\tp1\t1\n",
+    );
+    bench.expect_error(&format!(
+        "{}:1: expected a CSV header \"query_id,doc_id,grade\" or four whitespace-separated \
+         fields (query_id iteration doc_id grade), found \"query_id\\tdoc_id\\tgrade\"; the \
+         header has no comma but 2 tabs: save the file as comma-separated CSV, or make its \
+         first line \"sep=\" and a tab to declare the separator",
+        bench.qrels.display()
+    ));
+    // Latin-1 in a CSV corpus: `é` is the byte 0xE9, byte 4 of `café`.
+    let bench = Bench::new("posts.csv", b"id,text\np1,caf\xE9\n", QUERIES, QRELS);
+    bench.expect_error(&format!(
+        "{}:2: column \"text\": expected UTF-8 text, found an invalid byte sequence at byte 4 of \
+         the field (a Latin-1 or Windows-1252 file? save it as UTF-8)",
+        bench.corpus.display()
+    ));
+    // UTF-16, with and without its byte order mark (UTF-16LE of `{"id"…`).
+    let utf16: Vec<u8> = CORPUS.encode_utf16().flat_map(u16::to_le_bytes).collect();
+    for (bytes, found) in [
+        ([&[0xFF, 0xFE][..], &utf16].concat(), "the byte order mark FF FE"),
+        (utf16.clone(), "a zero byte beside every character"),
+    ] {
+        let bench = Bench::new("posts.jsonl", &bytes, QUERIES, QRELS);
+        bench.expect_error(&format!(
+            "{}: expected UTF-8 text, found UTF-16 ({found}): save the file as UTF-8 (in a \
+             spreadsheet: \"CSV UTF-8\"; in an editor: the encoding UTF-8)",
+            bench.corpus.display()
+        ));
+    }
+}
+
+#[test]
+fn a_sep_line_declares_the_separator() {
+    // Queries, judgments and corpus as a spreadsheet saves them with
+    // semicolons (CRLF, a `sep=;` first line), with a comma inside a text.
+    let bench = Bench::new(
+        "posts.csv",
+        b"sep=;\r\nid;text\r\np1;ferry delayed, again\r\np2;bike stolen\r\n",
+        "sep=;\r\nquery_id;text\r\nq1;ferry, delayed\r\n",
+        "SEP=;\r\nquery_id;doc_id;grade\r\nq1;p1;1\r\n",
+    );
+    let res = bench.run(&["--quiet"]);
+    assert_eq!(res.status.code(), Some(0), "{}", texts(&res).1);
+    let per_query = read_csv(&bench.out.join("per-query.csv"));
+    assert!(
+        per_query.iter().any(|r| r[1] == "q1" && r[2] == "ndcg@10" && r[3] == "1"),
+        "{per_query:?}"
+    );
+    // Line numbers stay physical: the `sep=` line is line 1.
+    let bench = Bench::new("posts.jsonl", CORPUS.as_bytes(), "sep=;\nquery_id;text\nq1; \n", QRELS);
+    let res = bench.run(&[]);
+    let (_, stderr) = texts(&res);
+    assert_eq!(res.status.code(), Some(2), "{stderr}");
+    assert!(
+        stderr.contains(&format!("{}:3: column \"text\"", bench.queries.display())),
+        "{stderr}"
+    );
+    // A separator that cannot be one.
+    let bench = Bench::new("posts.jsonl", CORPUS.as_bytes(), "sep=x\nquery_id,text\nq1,a\n", QRELS);
+    bench.expect_error(&format!(
+        "{}:1: expected a separator declaration \"sep=,\", \"sep=;\", \"sep=|\" or \"sep=\" and a \
+         tab, found \"sep=x\"",
+        bench.queries.display()
+    ));
 }

@@ -113,11 +113,37 @@ fn a_torn_tail_is_refused_and_left_alone() {
     let res = judge(tmp.path(), &pool, &judgments, "1\n");
     let (_, err) = texts(&res);
     assert_eq!(res.status.code(), Some(2), "{err}");
-    assert!(err.contains("torn.csv:3: the file does not end with a line end"), "{err}");
+    assert!(
+        err.contains(
+            "torn.csv:3: the last line has no line end and does not read as a judgment \
+             (expected 3 fields as in the header, found 2): it may be a torn write"
+        ),
+        "{err}"
+    );
     assert_eq!(
         std::fs::read_to_string(&judgments).unwrap(),
         "query_id,doc_id,grade\nq1,p3,2\nq1,p4"
     );
+}
+
+/// Issue 12: a file whose last, complete line has no line end (as many
+/// editors save it) is judged into, as `run` reads it; the line end is added
+/// before the first new grade.
+#[test]
+fn a_complete_last_line_without_line_end_is_accepted() {
+    let tmp = tempfile::tempdir().unwrap();
+    let pool = make_pool(tmp.path());
+    let judgments = tmp.path().join("saved.csv");
+    std::fs::write(&judgments, "query_id,doc_id,grade\nq1,p3,2").unwrap();
+    let res = judge(tmp.path(), &pool, &judgments, "1\nq\n");
+    let (out, err) = texts(&res);
+    assert_eq!(res.status.code(), Some(0), "{err}");
+    assert!(out.contains(": 7 pairs in the pool, 1 already judged, 6 to go\n"), "{out}");
+    assert_eq!(
+        std::fs::read_to_string(&judgments).unwrap(),
+        "query_id,doc_id,grade\nq1,p3,2\nq1,p4,1\n"
+    );
+    assert!(out.contains("saved 1 grade to "), "one grade, singular: {out}");
 }
 
 /// A pool of `n` pairs, ten posts per query, written as `postassay pool`

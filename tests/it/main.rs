@@ -14,6 +14,8 @@ mod routing;
 mod run;
 mod run_vet;
 mod score;
+#[path = "../../src/test_skips.rs"]
+mod test_skips;
 mod tokens;
 mod util;
 mod vet;

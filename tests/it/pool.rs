@@ -59,7 +59,7 @@ fn pool_of_run_files_is_ordered_deduplicated_and_counted() {
     assert!(err.contains("pool: 7 unjudged pairs over 3 queries from the top 3 of 2 systems"));
     assert!(err.contains("pool: a contributes 4 pairs (2 only from it)"), "{err}");
     assert!(err.contains("pool: b contributes 5 pairs (3 only from it)"), "{err}");
-    assert!(err.contains("1 pooled queries are not in the query file"), "{err}");
+    assert!(err.contains("1 pooled query is not in the query file"), "{err}");
 }
 
 #[test]

@@ -451,3 +451,52 @@ fn walk(dir: &std::path::Path) -> Vec<String> {
     }
     out
 }
+
+/// Issue 12: the README's first command, `cargo run --release -- run`, run
+/// in a clean checkout (here: a git repository holding the demo bench and
+/// the project's `.gitignore`), leaves `git status` clean, and its last line
+/// names the page to open first. Skips, saying so, without `git`.
+#[test]
+fn readme_first_command_leaves_git_status_clean() {
+    let readme = std::fs::read_to_string(root().join("README.md")).unwrap();
+    assert!(readme.contains("cargo run --release -- run      #"), "the README's first command");
+    let git = |dir: &std::path::Path, args: &[&str]| {
+        std::process::Command::new("git")
+            .current_dir(dir)
+            .args(["-c", "user.name=postassay tests", "-c", "user.email=tests@invalid"])
+            .args(args)
+            .output()
+    };
+    let tmp = tempfile::tempdir().unwrap();
+    let repo = tmp.path();
+    if !git(repo, &["init", "-q"]).is_ok_and(|o| o.status.success()) {
+        crate::util::skip("readme_first_command_leaves_git_status_clean: no working `git`");
+        return;
+    }
+    for file in [
+        ".gitignore",
+        "corpora/demo/posts.jsonl",
+        "judgments/demo/queries.csv",
+        "judgments/demo/qrels.csv",
+    ] {
+        let to = repo.join(file);
+        std::fs::create_dir_all(to.parent().unwrap()).unwrap();
+        std::fs::copy(root().join(file), &to).unwrap();
+    }
+    let committed = git(repo, &["add", "-A"]).and_then(|_| git(repo, &["commit", "-qm", "demo"]));
+    assert!(committed.is_ok_and(|o| o.status.success()), "git commit");
+    let res = postassay(repo, &["run"]);
+    let (stdout, stderr) = texts(&res);
+    assert_eq!(res.status.code(), Some(0), "{stderr}");
+    assert!(stdout.is_empty());
+    assert_eq!(
+        stderr.lines().last(),
+        Some(
+            "postassay: wrote reports: open reports/report.html first (report.md, report.json \
+             and the CSV tables are beside it)"
+        )
+    );
+    assert!(repo.join("reports/report.html").is_file());
+    let status = git(repo, &["status", "--porcelain"]).unwrap();
+    assert_eq!(String::from_utf8_lossy(&status.stdout), "", "git status after the demo run");
+}

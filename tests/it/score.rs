@@ -335,3 +335,95 @@ fn runs_that_miss_evaluated_queries_are_named_with_their_coverage() {
         serde_json::from_str(&std::fs::read_to_string(quiet.join("report.json")).unwrap()).unwrap();
     assert!(report["warnings"].as_array().unwrap().iter().any(|w| w == line), "{report}");
 }
+
+/// Issue 12: a run file without a `score` column is read (only the rank
+/// orders a run) and scores exactly as the same run with scores.
+#[test]
+fn runs_without_a_score_column_score_the_same() {
+    let tmp = tempfile::tempdir().unwrap();
+    let with = std::fs::read_to_string(fixture("score/run_a.csv")).unwrap();
+    // Drop the last column of every line (the fixture's `score`), and put
+    // `rank` first to show that columns are found by name.
+    let without: String = with
+        .lines()
+        .map(|l| {
+            let fields: Vec<&str> = l.split(',').collect();
+            format!("{},{},{}\n", fields[2], fields[0], fields[1])
+        })
+        .collect();
+    assert!(without.starts_with("rank,query_id,doc_id\n"), "{without}");
+    let ranks_only = crate::util::write(tmp.path(), "ranks_only.csv", &without);
+    let qrels = fixture("score/qrels.csv");
+    let run = |name: &str, file: &std::path::Path| {
+        let out = tmp.path().join(name);
+        let spec = format!("a={}", file.display());
+        let res = postassay(
+            tmp.path(),
+            &["score", "--quiet", "--judgments", qrels.to_str().unwrap(), "--run", &spec]
+                .into_iter()
+                .chain(["--metrics", ALL_METRICS, "--out", out.to_str().unwrap()])
+                .collect::<Vec<_>>(),
+        );
+        assert_eq!(res.status.code(), Some(0), "{}", texts(&res).1);
+        per_query(&out)
+    };
+    let scored = run("with", &fixture("score/run_a.csv"));
+    assert!(!scored.is_empty());
+    assert_eq!(run("without", &ranks_only), scored);
+}
+
+/// `report.md` of a `score` of the fixture's runs with `--metrics`.
+fn recommendation(runs: &[&str], metrics: &str) -> String {
+    let tmp = tempfile::tempdir().unwrap();
+    let out = tmp.path().join("out");
+    let qrels = fixture("score/qrels.csv");
+    let mut args = vec!["score", "--quiet", "--judgments", qrels.to_str().unwrap()];
+    let specs: Vec<String> = runs
+        .iter()
+        .map(|r| format!("{r}={}", fixture(&format!("score/run_{r}.csv")).display()))
+        .collect();
+    for s in &specs {
+        args.extend(["--run", s.as_str()]);
+    }
+    args.extend(["--metrics", metrics, "--out", out.to_str().unwrap()]);
+    let res = postassay(tmp.path(), &args);
+    assert_eq!(res.status.code(), Some(0), "{}", texts(&res).1);
+    let md = std::fs::read_to_string(out.join("report.md")).unwrap();
+    md.split("## Recommendation\n\n")
+        .nth(1)
+        .and_then(|r| r.split("\n## ").next())
+        .unwrap()
+        .to_string()
+}
+
+/// Issue 12: `--metrics unjudged@10` alone gives no headline metric; the
+/// recommendation says that, not that only one system was scored.
+#[test]
+fn only_unjudged_metrics_say_there_is_no_quality_metric() {
+    let case = recommendation(&["a", "b"], "unjudged@10");
+    assert_eq!(
+        case.trim_end(),
+        "**No quality metric to compare on.** `--metrics` lists only `unjudged@10`, which \
+         counts the posts nobody judged (lower is better) and says nothing about which of the 2 \
+         runs ranks better, so there is no case for or against a switch. Put a quality metric \
+         first, for example `--metrics ndcg@10,unjudged@10`."
+    );
+}
+
+/// Issue 12: `score` compares systems already built: its recommendation
+/// speaks of systems and of a switch, never of reindexing.
+#[test]
+fn score_speaks_of_systems_not_of_reindexing() {
+    let one = recommendation(&["a"], "ndcg@3");
+    assert_eq!(
+        one.trim_end(),
+        "**Nothing to compare.** Only one system was scored, on 2 evaluated queries, so there \
+         is no case for or against a switch."
+    );
+    let two = recommendation(&["a", "b"], "ndcg@3");
+    assert!(
+        two.starts_with("**No system is detectably better than the baseline `a` on ndcg@3.**"),
+        "{two}"
+    );
+    assert!(!one.contains("reindex") && !two.contains("reindex"), "{one}\n{two}");
+}

@@ -216,3 +216,92 @@ fn trace_shows_unspaced_words_and_pairs() {
     // Pairs overlap: 年提 starts where 年 does, 提出 one character later.
     assert_eq!((pairs[2].1, pairs[3].1), (10, 13));
 }
+
+/// Issue 12: `--chain a,b` shows every chain, side by side in text and one
+/// object per text and chain in JSON (before, only `a`).
+#[test]
+fn several_chains_side_by_side() {
+    let res = postassay(&root(), &["tokens", "--chain", "standard,stemmed", "Running ponies"]);
+    let (stdout, stderr) = texts(&res);
+    assert_eq!(res.status.code(), Some(0), "{stderr}");
+    // Snowball English as in tokens_with_positions_and_byte_offsets.
+    let expected = [
+        "\"Running ponies\"",
+        "standard → field text       │ stemmed → field text",
+        " pos  bytes         token   │  pos  bytes         token",
+        "   0      0..7      running │    0      0..7      run",
+        "   1      8..14     ponies  │    1      8..14     poni",
+    ];
+    assert_eq!(stdout, expected.map(|l| format!("{l}\n")).concat());
+    let v = json(&["tokens", "--chain", "standard,stemmed", "--format", "json", "Running ponies"]);
+    let shown: Vec<(&str, &str)> = v
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|o| (o["chain"].as_str().unwrap(), o["tokens"][0]["token"].as_str().unwrap()))
+        .collect();
+    assert_eq!(shown, [("standard", "running"), ("stemmed", "run")]);
+    // Traces follow one another under the text.
+    let res = postassay(&root(), &["tokens", "--chain", "standard,stemmed", "--trace", "Running"]);
+    let (stdout, _) = texts(&res);
+    assert!(stdout.starts_with("\"Running\"\nstandard → field text\n  [text] words"), "{stdout}");
+    assert!(stdout.contains("stemmed → field text\n"), "{stdout}");
+}
+
+/// Issue 12: invalid UTF-8 on standard input names its line.
+#[test]
+fn invalid_utf8_on_stdin_names_the_line() {
+    let mut child = Command::new(env!("CARGO_BIN_EXE_postassay"))
+        .args(["tokens", "--chain", "standard", "-"])
+        .stdin(Stdio::piped())
+        .stdout(Stdio::piped())
+        .stderr(Stdio::piped())
+        .spawn()
+        .unwrap();
+    // `é` in Latin-1 (0xE9) on line 3, after a blank line 2.
+    child.stdin.take().unwrap().write_all(b"ferry\n\ncaf\xE9\n").unwrap();
+    let out = child.wait_with_output().unwrap();
+    assert_eq!(out.status.code(), Some(2));
+    assert!(out.stdout.is_empty());
+    assert_eq!(
+        String::from_utf8_lossy(&out.stderr),
+        "postassay: <stdin>:3: expected UTF-8 text, found an invalid byte sequence at byte 4 of \
+         the line (a Latin-1 or Windows-1252 file? save it as UTF-8)\n"
+    );
+}
+
+/// Issue 12: `fold` with `form = "compatibility"` folds fullwidth letters
+/// (U+FF26 …) and ligatures (U+FB01) as NFKC does (UAX #15), and case; the
+/// default canonical form leaves them (values as Python's unicodedata gives
+/// them, see tests/fixtures/analysis/fold_compat.json).
+#[test]
+fn compatibility_fold_in_a_chain_file() {
+    let tmp = tempfile::tempdir().unwrap();
+    let chains = crate::util::write(
+        tmp.path(),
+        "fold.toml",
+        "[[chain]]\nname = \"canonical\"\nsteps = [{ step = \"lowercase\" }, { step = \"fold\" }]\n\n\
+         [[chain]]\nname = \"compatible\"\n\
+         steps = [{ step = \"lowercase\" }, { step = \"fold\", form = \"compatibility\" }]\n",
+    );
+    let v = json(&[
+        "tokens",
+        "--chain-file",
+        chains.to_str().unwrap(),
+        "--chain",
+        "canonical,compatible",
+        "--format",
+        "json",
+        "ＦＵＬＬ ﬁle Café",
+    ]);
+    let words = |i: usize| -> Vec<String> {
+        v[i]["tokens"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|t| t["token"].as_str().unwrap().into())
+            .collect()
+    };
+    assert_eq!(words(0), ["ｆｕｌｌ", "ﬁle", "cafe"]);
+    assert_eq!(words(1), ["full", "file", "cafe"]);
+}

@@ -61,12 +61,8 @@ pub fn read_csv(path: &Path) -> Vec<Vec<String>> {
     text.lines().map(|l| l.split(',').map(str::to_string).collect()).collect()
 }
 
-/// Write `msg` as one line straight to the process's stderr. The test
-/// harness captures only the `print!`/`eprint!` macros (and shows them only
-/// for failing tests), so unlike `eprintln!` this line appears in a plain
-/// `cargo test --release` run: use it for the reason a data-dependent test
-/// skipped and for the figures a full pass measured.
-pub fn report_line(msg: &str) {
-    use std::io::Write;
-    let _ = writeln!(std::io::stderr().lock(), "{msg}");
-}
+/// Print a line that must show in a plain `cargo test --release` run (the
+/// figures a full pass measured), and [`skip`] a check with its reason
+/// (also counted in the summary at the end of the test binary); see
+/// `src/test_skips.rs`, shared with the library's unit tests.
+pub use crate::test_skips::{report_line, skip};

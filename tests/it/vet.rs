@@ -9,7 +9,7 @@ use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
 use std::time::Instant;
 
-use crate::util::{fixture, postassay, report_line, root, texts, write};
+use crate::util::{fixture, postassay, report_line, root, skip, texts, write};
 
 /// The English frequency list `vet` measures by default (src/cli/vet.rs).
 const DEFAULT_FREQ_LIST: &str = "tests/fixtures/analysis/hashtag/wordfreq_en.tsv";
@@ -439,11 +439,11 @@ const README_VET: [&str; 5] = [
 #[test]
 fn full_pass_over_the_shared_data() {
     let Some(data) = shared_data() else {
-        report_line("skipped: ../shared/data (the shared open data) is not present");
+        skip("../shared/data (the shared open data) is not present");
         return;
     };
     if !root().join(DEFAULT_FREQ_LIST).is_file() {
-        report_line(&format!("skipped: {DEFAULT_FREQ_LIST} is not present"));
+        skip(&format!("{DEFAULT_FREQ_LIST} is not present"));
         return;
     }
     let tmp = tempfile::tempdir().expect("temp dir");
