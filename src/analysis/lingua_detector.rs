@@ -127,6 +127,9 @@ mod tests {
         assert!(d.confidences("").is_empty());
         // A script only one compiled language uses decides by rule.
         assert_eq!(d.confidences("สวัสดีครับ"), [(code("th"), 1.0)]);
+        // A script no compiled language uses: nothing (Hebrew, Hindi).
+        assert!(d.confidences("שלום לכולם, מה שלומכם היום?").is_empty());
+        assert!(d.confidences("आज मौसम बहुत अच्छा है").is_empty());
     }
 
     #[test]
