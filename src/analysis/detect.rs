@@ -8,13 +8,13 @@
 //!
 //! # The two detectors ([`DetectorKind`])
 //!
-//! - `whatlang`: trigram profiles of 69 languages; fast (about 80 µs of
+//! - `whatlang`: trigram profiles of 69 languages; fast (80–90 µs of
 //!   CPU time per sentence with the rule below, `postassay vet` on the UD
 //!   and PUD sentences) but weak on short texts: of the UD English sentences
 //!   of 20 characters or fewer, 1.9% reach the English field.
 //! - `lingua`: n-gram models of 1 to 5 characters, built for short texts, in
 //!   its high-accuracy mode ([`lingua_detector`](super::lingua_detector));
-//!   about 1.4 ms per sentence (some 18 times whatlang's), 36.9% of those
+//!   1.1–1.8 ms per sentence (13 to 23 times whatlang's), 36.9% of those
 //!   short English sentences routed right. Only the 30 languages compiled
 //!   into postassay can be answered (`Cargo.toml` lists them).
 //!
