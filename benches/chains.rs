@@ -28,7 +28,9 @@
 //! `POSTASSAY_BENCH_POSTS=N` (posts; the reference figures use 1 000 000),
 //! `POSTASSAY_BENCH_REPEATS=N` (build rounds, default 3),
 //! `POSTASSAY_BENCH_PROFILE=NAME` (only analyse with one chain, `default`
-//! for tantivy's, or only detect with `detect`, for a profiler). DEVELOPERS.md
+//! for tantivy's, or only detect with `detect`, for a profiler),
+//! `POSTASSAY_BENCH_DETECTOR=whatlang|lingua` (the routed chain's detector;
+//! default the built-in's). DEVELOPERS.md
 //! ("Benchmarks") explains how to read the output.
 
 mod common;
@@ -39,9 +41,11 @@ use std::hint::black_box;
 use std::sync::Arc;
 use std::time::Instant;
 
-use postassay::analysis::detect::{Detection, LangDetector};
+use postassay::analysis::detect::{Detection, DetectorKind, LangDetector};
 use postassay::analysis::hashtag::WordFreqs;
-use postassay::analysis::{builtin_chains, AnalysisContext, Analyzer, Unspaced, WordTokenizer};
+use postassay::analysis::{
+    builtin_chains, AnalysisContext, Analyzer, ChainBody, Unspaced, WordTokenizer,
+};
 use postassay::bench::detect_cache::DetectCache;
 use postassay::ids::PostId;
 use postassay::index::{deterministic_writer, ChainIndex};
@@ -92,7 +96,19 @@ fn main() {
     }
 
     let en = LangCode::parse("en").expect("en is a valid code");
-    let chains = builtin_chains(en).expect("the built-in chains parse");
+    let mut chains = builtin_chains(en).expect("the built-in chains parse");
+    // The routed chain's detector: the built-in's, or the one named.
+    if let Ok(name) = std::env::var("POSTASSAY_BENCH_DETECTOR") {
+        let kind = DetectorKind::ALL
+            .into_iter()
+            .find(|k| k.as_str() == name)
+            .expect("POSTASSAY_BENCH_DETECTOR is whatlang or lingua");
+        for chain in &mut chains {
+            if let ChainBody::Routed { route } = &mut chain.body {
+                route.detector = kind;
+            }
+        }
+    }
     let learn_started = Instant::now();
     let freqs = WordFreqs::learn(posts.iter().map(|p| p.text.as_str()));
     let learn_seconds = learn_started.elapsed().as_secs_f64();
@@ -145,9 +161,9 @@ fn main() {
     println!();
     build_table(&posts, &analyzers, &texts, repeats, &detector, learn_seconds);
     println!(
-        "(routed: {:.1}% of posts detected confidently in one of {} languages)",
+        "(routed: {:.1}% of posts detected confidently, in one of {} languages or another)",
         100.0 * routed_share as f64 / posts.len().max(1) as f64,
-        detector.allowlist().map_or(0, <[LangCode]>::len)
+        detector.languages().map_or(0, <[LangCode]>::len)
     );
 }
 
@@ -434,12 +450,13 @@ fn build_table(
     }
     println!("index build (median of {repeats})       seconds  ÷ default  ÷ default range  target");
     default.print("tantivy default tokenizer", None);
-    let langs = detector.allowlist().map_or(0, <[LangCode]>::len);
+    let langs = detector.languages().map_or(0, <[LangCode]>::len);
     for ((a, samples), table) in analyzers.iter().zip(&chains).zip(&with_table) {
         let name = a.name().as_str();
         if a.detector().is_some() {
             samples.print(&format!("{name} (index only)"), None);
-            cold.print(&format!("detection cold ({langs} languages)"), None);
+            let kind = detector.kind();
+            cold.print(&format!("detection cold ({kind}, {langs} languages)"), None);
             warm.print("detection warm (cache)", None);
             routed_cold.print(&format!("{name} cold"), Some(4.0));
             routed_warm.print(&format!("{name} warm"), Some(2.0));

@@ -3,8 +3,8 @@
 //!
 //! Not part of the data flow: a stand-alone program that runs the built
 //! `postassay` binary with the README's Diagnostics command (the built-in
-//! chains plus `routed_all` of `chains/all_languages.toml`, the default
-//! frequency sources, output into a temporary directory), from the
+//! chains, `routed` with both language detectors, the default frequency
+//! sources, output into a temporary directory), from the
 //! repository root, in several rounds. Each round first measures a
 //! baseline: reading and SHA-256 hashing every file the pass read (the list
 //! is `inputs` of the pass's own `diagnostics.json`), the I/O no pass can
@@ -40,13 +40,7 @@ const BASELINE_REPEATS: usize = 5;
 const TARGET_SECONDS: f64 = 60.0;
 
 /// The README's Diagnostics command, without `--data` and `--out`.
-const README_VET: [&str; 5] = [
-    "vet",
-    "--chain-file",
-    "chains/all_languages.toml",
-    "--chains",
-    "standard,stemmed,hashtag,routed_all",
-];
+const README_VET: [&str; 3] = ["vet", "--chains", "standard,stemmed,hashtag,routed"];
 
 fn main() {
     let root = PathBuf::from(env!("CARGO_MANIFEST_DIR"));

@@ -129,11 +129,12 @@ impl Analyzer {
                     language: None,
                     analyzer: build_pipeline(&route.fallback, ctx)?,
                 });
-                let detector =
-                    LangDetector::new(Some(route.languages.clone()), route.min_confidence)
-                        .map_err(|e| {
-                            Error::chain(format!("chain {:?}: {e}", spec.name.as_str()))
-                        })?;
+                let detector = LangDetector::new(
+                    route.detector,
+                    Some(route.languages.clone()),
+                    route.min_confidence,
+                )
+                .map_err(|e| Error::chain(format!("chain {:?}: {e}", spec.name.as_str())))?;
                 (fields, Some(detector))
             }
         };

@@ -1,9 +1,62 @@
-//! Language detection of posts and queries with whatlang 0.18, restricted to
-//! an allowlist, with a confidence floor.
+//! Language detection of posts and queries with two detectors, whatlang
+//! 0.18 and lingua 1.8, a confidence floor, and the routing rule that sends
+//! a text in a language outside a route to the route's fallback.
 //!
 //! Place in the data flow: `analysis` stage; language-routing chains call
 //! [`LangDetector::detect`] for a post or query whose language is not given in
 //! the input, and diagnostics group results with [`length_bucket`].
+//!
+//! # The two detectors ([`DetectorKind`])
+//!
+//! - `whatlang`: trigram profiles of 69 languages; fast (80–90 µs of
+//!   CPU time per sentence with the rule below, `postassay vet` on the UD
+//!   and PUD sentences) but weak on short texts: of the UD English sentences
+//!   of 20 characters or fewer, 1.9% reach the English field.
+//! - `lingua`: n-gram models of 1 to 5 characters, built for short texts, in
+//!   its high-accuracy mode ([`lingua_detector`](super::lingua_detector));
+//!   1.1–1.8 ms per sentence (13 to 23 times whatlang's), 36.9% of those
+//!   short English sentences routed right. Only the 30 languages compiled
+//!   into postassay can be answered (`Cargo.toml` lists them).
+//!
+//! # Confidence
+//!
+//! Each detection carries a confidence in [0, 1], and a detection below the
+//! floor (`min_confidence` of a route) counts as none. The two detectors
+//! mean different things by it:
+//! - whatlang: how far the best language's trigram score leads the
+//!   runner-up's, relative to a lead that whatlang calls certain for a text
+//!   of that many trigrams: min(1, ((s₁ − s₂) / s₂) / (3 / n + 0.015)) (from
+//!   whatlang 0.18's source, `core/confidence.rs`); 1 when the script has
+//!   one language. A floor of 0.5 asks for half that lead.
+//! - lingua: the language's share of the probability over the candidate
+//!   languages (the shares add up to 1); 1 when a script or letter rule
+//!   decides. A floor of 0.5 asks for a language more likely than all others
+//!   together.
+//!
+//! # Routing rule for a route's languages
+//!
+//! A detector built for a route ([`LangDetector::new`] with the route's
+//! languages) first looks at every language it knows. When the best of them
+//! is not one of the route's languages and its confidence reaches the floor,
+//! that language is the answer, and routing sends the text to the fallback
+//! field: a Swedish post is not forced into the German field. Otherwise the
+//! route's languages are compared among themselves (whatlang: detection
+//! restricted to them; lingua: their shares renormalised to add up to 1), and
+//! the best one is the answer when its confidence reaches the floor. Measured
+//! on the shared UD and PUD sentences against the seven languages of the
+//! built-in `routed` chain, at the floor 0.5: Swedish, Russian, Turkish and
+//! Thai sentences of more than 60 characters reach the fallback at least
+//! 96% of the time with either detector, while the seven languages lose at
+//! most 0.4 points of routing accuracy against detection restricted to them
+//! (see the tests below and the README's Diagnostics section). Restricting
+//! detection to the route alone (what postassay did before) sent two thirds
+//! of the Swedish sentences of UD to a routed field, most to German. The
+//! rule's price is the wider comparison: whatlang runs a second pass over
+//! most texts, lingua compares its 30 languages instead of the route's; for
+//! each, about four times the CPU time of detection restricted to the
+//! route's seven languages (measured once over all those sentences, user
+//! time of a scratch program: whatlang 17 → 97 µs, lingua 0.44 → 1.8 ms per
+//! sentence).
 //!
 //! whatlang names languages with ISO 639-3 codes ([`whatlang::Lang::code`]);
 //! the bench uses ISO 639-1 ([`LangCode`]). The mapping is the table
@@ -15,8 +68,12 @@
 //! `cmn` (Mandarin, in `zho`) → `zh` and `pes` (Iranian Persian, in `fas`)
 //! → `fa` (ISO 639-3 macrolanguage mappings, from memory).
 
+use std::sync::Arc;
+
+use serde::{Deserialize, Serialize};
 use whatlang::{Detector, Lang};
 
+use super::lingua_detector::{self, round_confidence, LinguaDetector};
 use crate::error::{Error, Result};
 use crate::input::LangCode;
 
@@ -110,12 +167,52 @@ pub fn whatlang_lang(code: LangCode) -> Option<Lang> {
         .and_then(|(c3, _)| Lang::from_code(*c3))
 }
 
-/// Every ISO 639-1 code the detector can answer, sorted.
-pub fn supported_codes() -> Vec<LangCode> {
-    let mut codes: Vec<LangCode> = Lang::all().iter().filter_map(|l| lang_code_of(*l)).collect();
-    codes.sort();
-    codes.dedup();
-    codes
+/// Which detector a routed chain uses (`detector = "whatlang" | "lingua"` in
+/// a route; see the module docs for what each costs and means by
+/// confidence).
+#[derive(
+    Clone, Copy, Debug, Default, PartialEq, Eq, PartialOrd, Ord, Hash, Serialize, Deserialize,
+)]
+#[serde(rename_all = "snake_case")]
+pub enum DetectorKind {
+    /// whatlang 0.18: trigram profiles, fast, weak on short texts.
+    Whatlang,
+    /// lingua 1.8 in high-accuracy mode: built for short texts, slower.
+    #[default]
+    Lingua,
+}
+
+impl DetectorKind {
+    /// Every detector, in the order the diagnostics list them.
+    pub const ALL: [DetectorKind; 2] = [DetectorKind::Whatlang, DetectorKind::Lingua];
+
+    /// The name used in chain files and reports.
+    pub fn as_str(self) -> &'static str {
+        match self {
+            DetectorKind::Whatlang => "whatlang",
+            DetectorKind::Lingua => "lingua",
+        }
+    }
+
+    /// Every ISO 639-1 code the detector can answer, sorted.
+    pub fn supported_codes(self) -> Vec<LangCode> {
+        match self {
+            DetectorKind::Whatlang => {
+                let mut codes: Vec<LangCode> =
+                    Lang::all().iter().filter_map(|l| lang_code_of(*l)).collect();
+                codes.sort();
+                codes.dedup();
+                codes
+            }
+            DetectorKind::Lingua => lingua_detector::supported_codes(),
+        }
+    }
+}
+
+impl std::fmt::Display for DetectorKind {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(self.as_str())
+    }
 }
 
 /// Length bucket of a text of `chars` chars, for accuracy by length:
@@ -134,27 +231,46 @@ pub fn length_bucket(chars: usize) -> &'static str {
 pub struct Detection {
     /// Detected language.
     pub lang: LangCode,
-    /// whatlang's confidence in [0, 1].
+    /// The detector's confidence in [0, 1] (see the module docs): among
+    /// every language it knows for a language outside the route, among the
+    /// route's languages for one of them.
     pub confidence: f64,
 }
 
-/// A configured detector: whatlang restricted to an allowlist, answering
-/// only when its confidence reaches a floor. Its `Debug` form shows only the
-/// settings (sorted allowlist, floor), so equal settings print equally.
+/// The detector behind a [`LangDetector`].
+#[derive(Clone)]
+enum Backend {
+    Whatlang {
+        /// Over every language whatlang knows.
+        every: Detector,
+        /// Over the route's languages only.
+        listed: Option<Detector>,
+    },
+    /// Shared: lingua's detector is not `Clone`.
+    Lingua(Arc<LinguaDetector>),
+}
+
+/// A configured detector: which one, the languages of the route it serves
+/// (if any) and a confidence floor. Its `Debug` form shows only these
+/// settings (the detector's name, the sorted languages, the floor), so equal
+/// settings print equally and different detectors never do; the detection
+/// cache and the orchestrator key detections by it.
 #[derive(Clone)]
 pub struct LangDetector {
-    allowlist: Option<Vec<LangCode>>,
+    kind: DetectorKind,
+    languages: Option<Vec<LangCode>>,
     min_confidence: f64,
-    detector: Detector,
+    backend: Backend,
 }
 
 impl std::fmt::Debug for LangDetector {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
         f.debug_struct("LangDetector")
+            .field("detector", &self.kind.as_str())
             .field(
-                "allowlist",
+                "languages",
                 &self
-                    .allowlist
+                    .languages
                     .as_ref()
                     .map(|v| v.iter().map(LangCode::as_str).collect::<Vec<_>>()),
             )
@@ -164,52 +280,67 @@ impl std::fmt::Debug for LangDetector {
 }
 
 impl LangDetector {
-    /// A detector answering only languages of `allowlist` (`None` = every
-    /// language whatlang knows; all have an ISO 639-1 code) and only when
-    /// whatlang's confidence is at least `min_confidence` (0 accepts every
-    /// answer). Fails when a code of the allowlist is unknown to whatlang
-    /// (the message names it and lists the supported codes), when the
-    /// allowlist is empty, or when `min_confidence` is not in [0, 1].
-    pub fn new(allowlist: Option<Vec<LangCode>>, min_confidence: f64) -> Result<LangDetector> {
+    /// A `kind` detector for a route over `languages` (`None`: no route,
+    /// every language the detector knows is an answer), answering only when
+    /// its confidence is at least `min_confidence` (0 accepts every answer);
+    /// see the module docs for the routing rule. Fails when a language is
+    /// unknown to the detector (the message names it and lists the supported
+    /// codes), when the list is empty, or when `min_confidence` is not in
+    /// [0, 1].
+    pub fn new(
+        kind: DetectorKind,
+        languages: Option<Vec<LangCode>>,
+        min_confidence: f64,
+    ) -> Result<LangDetector> {
         if !(0.0..=1.0).contains(&min_confidence) {
             return Err(Error::usage(format!(
                 "language detection: minimum confidence must be in [0, 1], found {min_confidence}"
             )));
         }
-        let allowlist = allowlist.map(|mut codes| {
+        let languages = languages.map(|mut codes| {
             codes.sort();
             codes.dedup();
             codes
         });
-        let detector = match &allowlist {
-            None => Detector::new(),
-            Some(codes) => {
-                if codes.is_empty() {
-                    return Err(Error::usage("language detection: the allowlist is empty"));
-                }
-                let unknown: Vec<&str> = codes
-                    .iter()
-                    .filter(|c| whatlang_lang(**c).is_none())
-                    .map(|c| c.as_str())
-                    .collect();
-                if !unknown.is_empty() {
-                    let supported: Vec<String> =
-                        supported_codes().iter().map(|c| c.to_string()).collect();
-                    return Err(Error::usage(format!(
-                        "language detection: no detector for {}; supported codes: {}",
-                        unknown.join(", "),
-                        supported.join(" ")
-                    )));
-                }
-                Detector::with_allowlist(codes.iter().filter_map(|c| whatlang_lang(*c)).collect())
+        if let Some(codes) = &languages {
+            if codes.is_empty() {
+                return Err(Error::usage("language detection: the language list is empty"));
             }
+            let supported = kind.supported_codes();
+            let unknown: Vec<&str> =
+                codes.iter().filter(|c| !supported.contains(c)).map(|c| c.as_str()).collect();
+            if !unknown.is_empty() {
+                let supported: Vec<&str> = supported.iter().map(LangCode::as_str).collect();
+                return Err(Error::usage(format!(
+                    "language detection: {kind} cannot recognise {}; supported codes: {}",
+                    unknown.join(", "),
+                    supported.join(" ")
+                )));
+            }
+        }
+        let backend = match kind {
+            DetectorKind::Whatlang => Backend::Whatlang {
+                every: Detector::new(),
+                listed: languages.as_ref().map(|codes| {
+                    Detector::with_allowlist(
+                        codes.iter().filter_map(|c| whatlang_lang(*c)).collect(),
+                    )
+                }),
+            },
+            DetectorKind::Lingua => Backend::Lingua(Arc::new(LinguaDetector::new())),
         };
-        Ok(LangDetector { allowlist, min_confidence, detector })
+        Ok(LangDetector { kind, languages, min_confidence, backend })
     }
 
-    /// The allowlist, sorted and without duplicates (`None` = every language).
-    pub fn allowlist(&self) -> Option<&[LangCode]> {
-        self.allowlist.as_deref()
+    /// Which detector this is.
+    pub fn kind(&self) -> DetectorKind {
+        self.kind
+    }
+
+    /// The route's languages, sorted and without duplicates (`None`: no
+    /// route).
+    pub fn languages(&self) -> Option<&[LangCode]> {
+        self.languages.as_deref()
     }
 
     /// The confidence floor.
@@ -217,49 +348,128 @@ impl LangDetector {
         self.min_confidence
     }
 
-    /// Detect the language of `text`; `None` when nothing could be detected
-    /// (no letters, or a script none of the allowed languages uses) or the
-    /// confidence is below the floor.
+    /// Whether `lang` is one of the route's languages (always, without a
+    /// route).
+    fn listed(&self, lang: LangCode) -> bool {
+        self.languages.as_ref().is_none_or(|l| l.binary_search(&lang).is_ok())
+    }
+
+    /// `detection` if its confidence reaches the floor.
+    fn floored(&self, detection: Option<Detection>) -> Option<Detection> {
+        detection.filter(|d| d.confidence >= self.min_confidence)
+    }
+
+    /// Detect the language of `text` (the module docs give the rule for a
+    /// route's languages); `None` when nothing could be detected (no
+    /// letters, or a script no candidate language uses) or the confidence is
+    /// below the floor. A language outside the route comes back only when
+    /// its confidence reaches the floor.
     pub fn detect(&self, text: &str) -> Option<Detection> {
-        let info = self.detector.detect(text)?;
-        let lang = lang_code_of(info.lang())?;
-        let confidence = info.confidence();
-        if confidence < self.min_confidence {
-            return None;
-        }
-        if let Some(allow) = &self.allowlist {
-            // whatlang answers from the allowlist; this guards the mapping.
-            if allow.binary_search(&lang).is_err() {
-                return None;
+        match &self.backend {
+            Backend::Whatlang { every, listed } => {
+                let of = |info: whatlang::Info| {
+                    lang_code_of(info.lang())
+                        .map(|lang| Detection { lang, confidence: info.confidence() })
+                };
+                let best = every.detect(text).and_then(of);
+                match (listed, best) {
+                    (None, best) => self.floored(best),
+                    (Some(_), None) => None,
+                    (Some(_), Some(b))
+                        if !self.listed(b.lang) && b.confidence >= self.min_confidence =>
+                    {
+                        Some(b)
+                    }
+                    (Some(listed), Some(_)) => self.floored(listed.detect(text).and_then(of)),
+                }
+            }
+            Backend::Lingua(lingua) => {
+                let values = lingua.confidences(text);
+                let (lang, confidence) = *values.first()?;
+                let best = Detection { lang, confidence };
+                if self.languages.is_none()
+                    || (!self.listed(lang) && confidence >= self.min_confidence)
+                {
+                    return self.floored(Some(best));
+                }
+                // The route's languages among themselves: renormalise.
+                let total: f64 = values.iter().filter(|(l, _)| self.listed(*l)).map(|v| v.1).sum();
+                let (lang, share) = *values.iter().find(|(l, _)| self.listed(*l))?;
+                let confidence = if total > 0.0 { round_confidence(share / total) } else { 0.0 };
+                self.floored(Some(Detection { lang, confidence }))
             }
         }
-        Some(Detection { lang, confidence })
     }
 
     /// Detect every text, on 2 threads; the result order is the input order
     /// (deterministic: each text's answer depends only on the text).
     pub fn detect_all(&self, texts: &[&str]) -> Vec<Option<Detection>> {
+        self.detect_all_timed(texts).0
+    }
+
+    /// [`detect_all`](Self::detect_all), with the CPU time the detecting
+    /// threads spent, in seconds (the threads' own clocks where the system
+    /// has them, else their wall-clock time), for the cost per text.
+    pub fn detect_all_timed(&self, texts: &[&str]) -> (Vec<Option<Detection>>, f64) {
         const THREADS: usize = 2;
+        let timed = |part: &[&str]| {
+            let clock = ThreadClock::start();
+            let found: Vec<Option<Detection>> = part.iter().map(|t| self.detect(t)).collect();
+            (found, clock.seconds())
+        };
         if texts.len() < 64 {
-            return texts.iter().map(|t| self.detect(t)).collect();
+            return timed(texts);
         }
         let chunk = texts.len().div_ceil(THREADS);
         std::thread::scope(|scope| {
-            let handles: Vec<_> = texts
-                .chunks(chunk)
-                .map(|part| {
-                    scope.spawn(move || part.iter().map(|t| self.detect(t)).collect::<Vec<_>>())
-                })
-                .collect();
+            let handles: Vec<_> =
+                texts.chunks(chunk).map(|part| scope.spawn(move || timed(part))).collect();
             let mut out = Vec::with_capacity(texts.len());
+            let mut seconds = 0.0;
             for h in handles {
                 match h.join() {
-                    Ok(part) => out.extend(part),
+                    Ok((part, s)) => {
+                        out.extend(part);
+                        seconds += s;
+                    }
                     Err(e) => std::panic::resume_unwind(e),
                 }
             }
-            out
+            (out, seconds)
         })
+    }
+}
+
+/// The CPU time of the calling thread since [`start`](Self::start) (on
+/// Unix, `CLOCK_THREAD_CPUTIME_ID`; elsewhere wall-clock time), so that a
+/// busy machine does not inflate the cost per text.
+struct ThreadClock {
+    #[cfg(unix)]
+    started: rustix::time::Timespec,
+    #[cfg(not(unix))]
+    started: std::time::Instant,
+}
+
+impl ThreadClock {
+    fn start() -> ThreadClock {
+        #[cfg(unix)]
+        let started = rustix::time::clock_gettime(rustix::time::ClockId::ThreadCPUTime);
+        #[cfg(not(unix))]
+        let started = std::time::Instant::now();
+        ThreadClock { started }
+    }
+
+    fn seconds(&self) -> f64 {
+        #[cfg(unix)]
+        {
+            let now = rustix::time::clock_gettime(rustix::time::ClockId::ThreadCPUTime);
+            let s = (now.tv_sec - self.started.tv_sec) as f64;
+            s + (now.tv_nsec - self.started.tv_nsec) as f64 * 1e-9
+        }
+        #[cfg(not(unix))]
+        {
+            self.started.elapsed().as_secs_f64()
+        }
     }
 }
 
@@ -270,10 +480,6 @@ mod tests {
 
     fn code(s: &str) -> LangCode {
         LangCode::parse(s).expect("valid code in test")
-    }
-
-    fn seven() -> Vec<LangCode> {
-        ["en", "de", "fr", "es", "it", "pt", "nl"].map(code).to_vec()
     }
 
     #[test]
@@ -293,7 +499,7 @@ mod tests {
         assert_eq!(c3, sorted);
         c3.dedup();
         assert_eq!(c3.len(), ISO_639_3_TO_1.len());
-        assert_eq!(supported_codes().len(), ISO_639_3_TO_1.len());
+        assert_eq!(DetectorKind::Whatlang.supported_codes().len(), ISO_639_3_TO_1.len());
         // Spot checks (the full check is against the pycountry fixture).
         assert_eq!(lang_code_of(Lang::Deu), Some(code("de")));
         assert_eq!(lang_code_of(Lang::Ell), Some(code("el")));
@@ -325,32 +531,68 @@ mod tests {
         assert_eq!(got, ["<=20", "<=20", "21-60", "21-60", "61-140", "61-140", ">140"]);
     }
 
+    fn detector(kind: DetectorKind, route: Option<&[&str]>, floor: f64) -> LangDetector {
+        let langs = route.map(|r| r.iter().map(|c| code(c)).collect());
+        LangDetector::new(kind, langs, floor).expect("valid settings")
+    }
+
+    const SEVEN: [&str; 7] = ["en", "de", "fr", "es", "it", "pt", "nl"];
+
     #[test]
-    fn unsupported_allowlist_codes_are_named() {
-        let err = LangDetector::new(Some(vec![code("en"), code("gd"), code("eu")]), 0.0)
+    fn unsupported_languages_are_named() {
+        let langs = Some(vec![code("en"), code("gd"), code("eu")]);
+        let err = LangDetector::new(DetectorKind::Whatlang, langs.clone(), 0.0)
             .expect_err("gd and eu are unknown to whatlang");
         let text = err.to_string();
-        assert!(text.contains("no detector for eu, gd"), "{text}");
+        assert!(text.contains("whatlang cannot recognise eu, gd"), "{text}");
         assert!(text.contains("supported codes: af ak am ar"), "{text}");
-        assert!(LangDetector::new(Some(vec![]), 0.0).is_err());
-        assert!(LangDetector::new(None, 1.5).is_err());
-        assert!(LangDetector::new(None, f64::NAN).is_err());
-        let d = LangDetector::new(Some(vec![code("fr"), code("en"), code("fr")]), 0.25)
-            .expect("valid settings");
-        assert_eq!(d.allowlist(), Some(&[code("en"), code("fr")][..]));
-        assert_eq!(d.min_confidence(), 0.25);
-        let same = LangDetector::new(Some(vec![code("en"), code("fr")]), 0.25).expect("valid");
+        let err = LangDetector::new(DetectorKind::Lingua, langs, 0.0).expect_err("not compiled");
+        let text = err.to_string();
+        assert!(text.contains("lingua cannot recognise eu, gd"), "{text}");
+        assert!(text.contains("supported codes: ar bg ca cs da de"), "{text}");
+        for kind in DetectorKind::ALL {
+            assert!(LangDetector::new(kind, Some(vec![]), 0.0).is_err());
+            assert!(LangDetector::new(kind, None, 1.5).is_err());
+            assert!(LangDetector::new(kind, None, f64::NAN).is_err());
+        }
+    }
+
+    #[test]
+    fn debug_form_names_the_detector_and_its_settings() {
+        let d = LangDetector::new(
+            DetectorKind::Whatlang,
+            Some(vec![code("fr"), code("en"), code("fr")]),
+            0.25,
+        )
+        .expect("valid settings");
+        assert_eq!(d.languages(), Some(&[code("en"), code("fr")][..]));
+        assert_eq!((d.kind(), d.min_confidence()), (DetectorKind::Whatlang, 0.25));
+        let same = detector(DetectorKind::Whatlang, Some(&["en", "fr"]), 0.25);
         assert_eq!(format!("{d:?}"), format!("{same:?}"));
         assert_eq!(
             format!("{same:?}"),
-            "LangDetector { allowlist: Some([\"en\", \"fr\"]), min_confidence: 0.25 }"
+            "LangDetector { detector: \"whatlang\", languages: Some([\"en\", \"fr\"]), \
+             min_confidence: 0.25 }"
         );
+        // The orchestrator and the cache key detections by this form: the
+        // detector's name keeps the two apart.
+        let lingua = detector(DetectorKind::Lingua, Some(&["en", "fr"]), 0.25);
+        assert_ne!(format!("{lingua:?}"), format!("{same:?}"));
+        assert!(format!("{lingua:?}").starts_with("LangDetector { detector: \"lingua\""));
+    }
+
+    #[test]
+    fn chain_file_names_of_the_detectors() {
+        for kind in DetectorKind::ALL {
+            let value = toml::Value::String(kind.as_str().to_string());
+            assert_eq!(value.try_into::<DetectorKind>().ok(), Some(kind));
+            assert_eq!(kind.to_string(), kind.as_str());
+        }
+        assert_eq!(DetectorKind::default(), DetectorKind::Lingua);
     }
 
     #[test]
     fn hand_cases() {
-        let all = LangDetector::new(None, 0.0).expect("all languages");
-        let seven = LangDetector::new(Some(seven()), 0.0).expect("seven languages");
         let cases = [
             ("Der Fährhafen in Kiel ist heute wegen des Sturms geschlossen.", "de"),
             ("The ferry harbour is closed today because of the storm.", "en"),
@@ -358,30 +600,89 @@ mod tests {
             ("El puerto de ferris está cerrado hoy por la tormenta.", "es"),
             ("De veerhaven is vandaag gesloten vanwege de storm.", "nl"),
         ];
-        for (text, want) in cases {
-            assert_eq!(all.detect(text).map(|d| d.lang), Some(code(want)), "{text}");
-            assert_eq!(seven.detect(text).map(|d| d.lang), Some(code(want)), "{text}");
+        for kind in DetectorKind::ALL {
+            let all = detector(kind, None, 0.0);
+            let seven = detector(kind, Some(&SEVEN), 0.0);
+            for (text, want) in cases {
+                assert_eq!(all.detect(text).map(|d| d.lang), Some(code(want)), "{kind} {text}");
+                assert_eq!(seven.detect(text).map(|d| d.lang), Some(code(want)), "{kind} {text}");
+            }
+            // No letters: nothing to detect.
+            assert_eq!(all.detect("12:30 !!! 🎉"), None, "{kind}");
+            assert_eq!(all.detect(""), None, "{kind}");
+            // A floor of 1.0 keeps only certain answers (a one-language script).
+            let strict = detector(kind, None, 1.0);
+            assert_eq!(strict.detect("สวัสดีครับ").map(|d| d.lang), Some(code("th")), "{kind}");
+            let en = all.detect("The ferry harbour is closed today.").expect("english");
+            assert!(en.confidence < 1.0, "{kind}");
+            let floor = detector(kind, None, en.confidence + 1e-9);
+            assert_eq!(floor.detect("The ferry harbour is closed today."), None, "{kind}");
         }
-        // Cyrillic: whatlang answers Russian among all languages, and nothing
-        // when no allowed language is written in Cyrillic.
-        let ru = "Вчера вечером мы долго гуляли по городу и разговаривали о жизни.";
-        assert_eq!(all.detect(ru).map(|d| d.lang), Some(code("ru")));
-        assert_eq!(seven.detect(ru), None);
-        // No letters: nothing to detect.
-        assert_eq!(all.detect("12:30 !!! 🎉"), None);
-        assert_eq!(all.detect(""), None);
-        // A floor of 1.0 keeps only certain answers (a one-language script).
-        let strict = LangDetector::new(None, 1.0).expect("strict");
-        assert_eq!(strict.detect("こんにちは、世界").map(|d| d.lang), Some(code("ja")));
-        let en = all.detect("The ferry harbour is closed today.").expect("english");
-        assert!(en.confidence < 1.0);
-        let floor = LangDetector::new(None, en.confidence + 1e-9).expect("floor");
-        assert_eq!(floor.detect("The ferry harbour is closed today."), None);
+    }
+
+    /// The routing rule: a language outside the route is answered (so the
+    /// chain sends the text to its fallback), a routed one is answered with
+    /// its confidence among the route's languages.
+    #[test]
+    fn a_language_outside_the_route_is_answered_not_forced_into_the_route() {
+        let texts = [
+            ("Igår kväll promenerade vi länge genom staden och pratade om livet.", "sv"),
+            ("Вчера вечером мы долго гуляли по городу и разговаривали о жизни.", "ru"),
+            ("Dün akşam şehirde uzun uzun yürüdük ve hayat hakkında konuştuk.", "tr"),
+            ("เมื่อวานตอนเย็นเราเดินเล่นในเมืองเป็นเวลานานและคุยกันเรื่องชีวิต", "th"),
+        ];
+        for kind in DetectorKind::ALL {
+            let seven = detector(kind, Some(&SEVEN), 0.5);
+            for (text, want) in texts {
+                let got = seven.detect(text).expect("confident");
+                assert_eq!(got.lang, code(want), "{kind} {text}");
+                assert!(!seven.listed(got.lang));
+            }
+            // Swedish listed: it is answered as a routed language.
+            let with_sv = detector(kind, Some(&["de", "sv"]), 0.5);
+            assert_eq!(with_sv.detect(texts[0].0).map(|d| d.lang), Some(code("sv")), "{kind}");
+            // A routed language's confidence is among the route's languages:
+            // with German and English only, a German sentence is certain
+            // with whatlang's measure and nearly so with lingua's.
+            let two = detector(kind, Some(&["de", "en"]), 0.0);
+            let de = two.detect("Der Hafen ist heute wegen des Sturms geschlossen.");
+            let de = de.expect("German");
+            assert_eq!(de.lang, code("de"));
+            assert!(de.confidence > 0.99, "{kind} {}", de.confidence);
+        }
+        // whatlang without the rule: restricted to the seven, Swedish used
+        // to go to German (the behaviour the rule replaces).
+        let forced =
+            Detector::with_allowlist(SEVEN.iter().filter_map(|c| whatlang_lang(code(c))).collect());
+        let info = forced.detect(texts[0].0).expect("a Latin-script language");
+        assert_eq!(lang_code_of(info.lang()), Some(code("de")));
+    }
+
+    /// Texts lingua and whatlang must survive without panicking.
+    #[test]
+    fn odd_inputs_give_an_answer_or_none() {
+        let long = "Der Hafen ist heute geschlossen. ".repeat(400);
+        let odd = [
+            "\u{301}\u{301}\u{301}",
+            "\0\u{1}\u{7f}",
+            "🇸🇪🇩🇪🎉👨\u{200d}👩\u{200d}👧",
+            "ab",
+            "x",
+            "東京 Москва Berlin القاهرة",
+            "#HarbourMarket @ana https://x.example/a?b=1",
+            &long,
+        ];
+        for kind in DetectorKind::ALL {
+            let d = detector(kind, Some(&SEVEN), 0.0);
+            let got: Vec<Option<Detection>> = odd.iter().map(|t| d.detect(t)).collect();
+            assert_eq!(got.len(), odd.len());
+            assert_eq!(got[7].map(|d| d.lang), Some(code("de")), "{kind}");
+            assert!(got.iter().flatten().all(|d| (0.0..=1.0).contains(&d.confidence)));
+        }
     }
 
     #[test]
     fn detect_all_keeps_input_order() {
-        let d = LangDetector::new(Some(seven()), 0.0).expect("seven");
         let base = [
             "Der Hafen ist heute geschlossen.",
             "The harbour is closed today.",
@@ -389,126 +690,212 @@ mod tests {
             "",
         ];
         let texts: Vec<&str> = (0..101).map(|i| base[i % base.len()]).collect();
-        let one_by_one: Vec<Option<Detection>> = texts.iter().map(|t| d.detect(t)).collect();
-        assert_eq!(d.detect_all(&texts), one_by_one);
-        assert_eq!(d.detect_all(&texts[..3]), one_by_one[..3].to_vec());
-        assert!(d.detect_all(&[]).is_empty());
+        for kind in DetectorKind::ALL {
+            let d = detector(kind, Some(&SEVEN), 0.0);
+            let one_by_one: Vec<Option<Detection>> = texts.iter().map(|t| d.detect(t)).collect();
+            assert_eq!(d.detect_all(&texts), one_by_one);
+            assert_eq!(d.detect_all(&texts[..3]), one_by_one[..3].to_vec());
+            assert!(d.detect_all(&[]).is_empty());
+            let (timed, seconds) = d.detect_all_timed(&texts);
+            assert_eq!(timed, one_by_one);
+            assert!(seconds >= 0.0);
+        }
     }
 
-    // ---- accuracy on Universal Dependencies sentences of known language ----
+    // ---- routing on Universal Dependencies sentences of known language ----
 
-    /// `(expected code, file)` of the UD test splits in shared/data/ud
-    /// (Nivre et al., Universal Dependencies v2, LREC 2020; treebanks in
-    /// shared/data/ud/SOURCES.tsv).
-    const UD_FILES: [(&str, &str); 10] = [
-        ("de", "de.sentences.tsv"),
-        ("en", "en.sentences.tsv"),
-        ("es", "es.sentences.tsv"),
-        ("fr", "fr.sentences.tsv"),
-        ("it", "it-pud.sentences.tsv"),
-        ("nl", "nl.sentences.tsv"),
-        ("pt", "pt.sentences.tsv"),
-        ("ru", "ru.sentences.tsv"),
-        ("sv", "sv.sentences.tsv"),
-        ("tr", "tr.sentences.tsv"),
+    /// `(language, file)` of the sentence sets read in place from
+    /// ../shared/data: the UD test splits of ud/ (Nivre et al., Universal
+    /// Dependencies v2, LREC 2020; treebanks in ud/SOURCES.tsv), Parallel UD
+    /// of ud_pud/ (Zeman et al., CoNLL 2017 shared task) and the Thai PUD
+    /// sentences of ud_nospace/th.words.tsv. Column 2 is the sentence.
+    const SETS: [(&str, &str); 19] = [
+        ("de", "ud/de.sentences.tsv"),
+        ("en", "ud/en.sentences.tsv"),
+        ("es", "ud/es.sentences.tsv"),
+        ("fr", "ud/fr.sentences.tsv"),
+        ("it", "ud/it-pud.sentences.tsv"),
+        ("nl", "ud/nl.sentences.tsv"),
+        ("pt", "ud/pt.sentences.tsv"),
+        ("ru", "ud/ru.sentences.tsv"),
+        ("sv", "ud/sv.sentences.tsv"),
+        ("tr", "ud/tr.sentences.tsv"),
+        ("de", "ud_pud/de.sentences.tsv"),
+        ("en", "ud_pud/en.sentences.tsv"),
+        ("es", "ud_pud/es.sentences.tsv"),
+        ("fr", "ud_pud/fr.sentences.tsv"),
+        ("pt", "ud_pud/pt.sentences.tsv"),
+        ("ru", "ud_pud/ru.sentences.tsv"),
+        ("sv", "ud_pud/sv.sentences.tsv"),
+        ("tr", "ud_pud/tr.sentences.tsv"),
+        ("th", "ud_nospace/th.words.tsv"),
     ];
 
-    /// Accuracy per language and per length bucket; prints a table.
-    fn measure(d: &LangDetector, langs: &[&str], label: &str) -> BTreeMap<String, f64> {
-        let dir = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("../shared/data/ud");
-        let mut per_lang = BTreeMap::new();
-        let mut buckets: BTreeMap<&str, (usize, usize)> = BTreeMap::new();
-        for (want, file) in UD_FILES.iter().filter(|(l, _)| langs.contains(l)) {
-            let text = std::fs::read_to_string(dir.join(file)).expect("UD sentences readable");
-            // Column 2 is the sentence text (column 1 its id).
-            let sents: Vec<&str> =
-                text.lines().filter_map(|l| l.split_once('\t')).map(|p| p.1).collect();
-            let got = d.detect_all(&sents);
-            let mut hits = 0;
-            for (s, g) in sents.iter().zip(&got) {
-                let ok = g.is_some_and(|g| g.lang.as_str() == *want);
-                hits += usize::from(ok);
-                let b = buckets.entry(length_bucket(s.chars().count())).or_default();
-                b.0 += usize::from(ok);
-                b.1 += 1;
+    /// The sentences of a set (column 2), or `None` with a printed reason
+    /// when the shared data is absent.
+    fn sentences(file: &str) -> Option<Vec<String>> {
+        let path =
+            std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("../shared/data").join(file);
+        match std::fs::read_to_string(&path) {
+            Ok(text) => Some(
+                text.lines().filter_map(|l| l.split('\t').nth(1)).map(str::to_string).collect(),
+            ),
+            Err(e) => {
+                crate::analysis::testutil::skip(&format!("{} unreadable ({e})", path.display()));
+                None
             }
-            let acc = hits as f64 / sents.len().max(1) as f64;
-            println!("{label} {want}: {acc:.4} ({hits}/{})", sents.len());
-            per_lang.insert(want.to_string(), acc);
-        }
-        for (b, (h, n)) in &buckets {
-            println!("{label} length {b}: {:.4} ({h}/{n})", *h as f64 / (*n).max(1) as f64);
-            per_lang.insert(format!("len {b}"), *h as f64 / (*n).max(1) as f64);
-        }
-        per_lang
-    }
-
-    fn ud_present() -> bool {
-        let dir = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("../shared/data/ud");
-        if dir.is_dir() {
-            true
-        } else {
-            crate::analysis::testutil::skip(&format!("{} is absent", dir.display()));
-            false
         }
     }
 
+    /// Routed right per length bucket, as `(right, sentences)`: a listed
+    /// language's sentence to its own field, an unlisted one's to the
+    /// fallback (no detection, or a language outside the route).
+    fn routed_right(
+        d: &LangDetector,
+        want: LangCode,
+        texts: &[&str],
+    ) -> BTreeMap<&'static str, (usize, usize)> {
+        let listed = d.listed(want);
+        let mut out: BTreeMap<&'static str, (usize, usize)> = BTreeMap::new();
+        for (text, got) in texts.iter().zip(d.detect_all(texts)) {
+            let right = match got {
+                Some(g) if listed => g.lang == want,
+                Some(g) => !d.listed(g.lang),
+                None => !listed,
+            };
+            let cell = out.entry(length_bucket(text.chars().count())).or_default();
+            cell.0 += usize::from(right);
+            cell.1 += 1;
+        }
+        out
+    }
+
+    fn share((right, n): (usize, usize)) -> f64 {
+        right as f64 / n.max(1) as f64
+    }
+
+    /// Issue 11's acceptance floor: sentences of Swedish, Russian, Turkish
+    /// and Thai, none of them routed by the built-in `routed` chain, reach
+    /// the fallback at least 95% of the time above 60 characters, with
+    /// either detector, in each set (every sentence of the set). Measured:
+    /// whatlang 96.9% (PUD Swedish) to 100%, lingua 99.4% (PUD Swedish) to
+    /// 100%.
     #[test]
-    fn accuracy_on_ud_sentences() {
-        if !ud_present() {
-            return;
-        }
-        let seven_langs = ["de", "en", "es", "fr", "it", "nl", "pt"];
-        let d7 = LangDetector::new(Some(seven()), 0.0).expect("seven");
-        let acc7 = measure(&d7, &seven_langs, "allow7");
-        let all = LangDetector::new(None, 0.0).expect("all");
-        let all_langs: Vec<&str> = UD_FILES.iter().map(|p| p.0).collect();
-        let acc_all = measure(&all, &all_langs, "all");
-        // Floors about one point under the accuracy measured with whatlang
-        // 0.18 on these files (deterministic; measured values in comments),
-        // so a regression of the mapping or the allowlist handling fails.
-        // Short sentences are hard: UD English (EWT) holds many web-forum
-        // one-liners ("Thanks!"), hence its low score.
-        let floors7 = [
-            ("de", 0.94),          // 0.9519
-            ("en", 0.75),          // 0.7603
-            ("es", 0.95),          // 0.9625
-            ("fr", 0.965),         // 0.9760
-            ("it", 0.975),         // 0.9880
-            ("nl", 0.965),         // 0.9765
-            ("pt", 0.945),         // 0.9568
-            ("len <=20", 0.42),    // 0.4295
-            ("len 21-60", 0.86),   // 0.8731
-            ("len 61-140", 0.975), // 0.9840
-            ("len >140", 0.99),    // 0.9954
-        ];
-        let floors_all = [
-            ("de", 0.925),        // 0.9355
-            ("en", 0.65),         // 0.6610
-            ("es", 0.935),        // 0.9461
-            ("fr", 0.95),         // 0.9639
-            ("it", 0.97),         // 0.9790
-            ("nl", 0.87),         // 0.8809
-            ("pt", 0.935),        // 0.9453
-            ("ru", 0.89),         // 0.8993
-            ("sv", 0.945),        // 0.9541
-            ("tr", 0.90),         // 0.9132
-            ("len <=20", 0.28),   // 0.2887
-            ("len 21-60", 0.81),  // 0.8232
-            ("len 61-140", 0.96), // 0.9693
-            ("len >140", 0.99),   // 0.9946
-        ];
-        for (acc, floors, label) in
-            [(&acc7, &floors7[..], "allow7"), (&acc_all, &floors_all[..], "all")]
-        {
-            for (key, floor) in floors {
-                let got = acc.get(*key).copied().unwrap_or(0.0);
-                assert!(got >= *floor, "{label} {key}: accuracy {got:.4} under floor {floor}");
+    fn unlisted_languages_reach_the_fallback_above_60_characters() {
+        for kind in DetectorKind::ALL {
+            let d = detector(kind, Some(&SEVEN), crate::analysis::DEFAULT_MIN_CONFIDENCE);
+            for (lang, file) in SETS.iter().filter(|(l, _)| ["sv", "ru", "tr", "th"].contains(l)) {
+                let Some(all) = sentences(file) else { return };
+                let long: Vec<&str> =
+                    all.iter().map(String::as_str).filter(|s| s.chars().count() > 60).collect();
+                let by_bucket = routed_right(&d, code(lang), &long);
+                let total = by_bucket.values().fold((0, 0), |a, b| (a.0 + b.0, a.1 + b.1));
+                crate::analysis::testutil::report_line(&format!(
+                    "{kind} {file} > 60 chars: {:.4} to the fallback ({}/{})",
+                    share(total),
+                    total.0,
+                    total.1
+                ));
+                assert!(total.1 > 400, "{file}: {} long sentences", total.1);
+                assert!(share(total) >= 0.95, "{kind} {file}: {:.4}", share(total));
             }
         }
-        // Restricting to the seven languages never hurts them here.
-        for l in seven_langs {
-            assert!(acc7[l] >= acc_all[l], "{l}");
+    }
+
+    /// What the rule costs whatlang's routed languages, against detection
+    /// restricted to the route (postassay's behaviour before the rule), on
+    /// every sentence of the sets of the seven languages: at most half a
+    /// point per set (measured: at most 0.3, UD Dutch 91.4% → 91.1%). And
+    /// what the rule gains: restricted to the seven, most Swedish sentences
+    /// of UD went to a routed field (measured: 34% reached the fallback; the
+    /// rest went to German, Dutch, English …).
+    #[test]
+    fn the_rule_costs_whatlang_little_on_routed_languages() {
+        let floor = crate::analysis::DEFAULT_MIN_CONFIDENCE;
+        let rule = detector(DetectorKind::Whatlang, Some(&SEVEN), floor);
+        let restricted =
+            Detector::with_allowlist(SEVEN.iter().filter_map(|c| whatlang_lang(code(c))).collect());
+        let before = |text: &str| {
+            restricted
+                .detect(text)
+                .filter(|i| i.confidence() >= floor)
+                .and_then(|i| lang_code_of(i.lang()))
+        };
+        for (lang, file) in SETS.iter().filter(|(l, _)| SEVEN.contains(l) || *l == "sv") {
+            let Some(all) = sentences(file) else { return };
+            let texts: Vec<&str> = all.iter().map(String::as_str).collect();
+            let want = code(lang);
+            let now = share(
+                routed_right(&rule, want, &texts)
+                    .values()
+                    .fold((0, 0), |a, b| (a.0 + b.0, a.1 + b.1)),
+            );
+            let right = |got: Option<LangCode>| match got {
+                Some(g) => g == want,
+                None => !rule.listed(want),
+            };
+            let then = texts.iter().filter(|t| right(before(t))).count() as f64
+                / texts.len().max(1) as f64;
+            crate::analysis::testutil::report_line(&format!(
+                "whatlang {file}: routed right {then:.4} restricted to the route, {now:.4} with the rule"
+            ));
+            if *lang == "sv" {
+                if file.starts_with("ud/") {
+                    assert!(then < 0.40 && now > 0.95, "{file}: {then:.4} → {now:.4}");
+                }
+            } else {
+                assert!(now >= then - 0.005, "{file}: {then:.4} → {now:.4}");
+            }
+        }
+    }
+
+    /// Each detector on the first 150 sentences of every set, at the
+    /// built-in floor 0.5: share routed right (listed languages: their own
+    /// field; sv, ru, tr, th: the fallback). Floors sit about one point under
+    /// the values measured on ../shared/data (see [`SETS`]) with whatlang
+    /// 0.18 and lingua 1.8 (deterministic; measured values in comments), so
+    /// a change of either detector or of the rule fails here.
+    #[test]
+    fn routing_on_a_few_sentences_per_set() {
+        const FIRST: usize = 150;
+        // In the order of SETS: ud de en es fr it nl pt ru sv tr, ud_pud de
+        // en es fr pt ru sv tr, th.
+        let floors: [(DetectorKind, [f64; 19]); 2] = [
+            (
+                DetectorKind::Whatlang,
+                // 0.9000 0.7333 0.8467 0.8800 0.9400 0.9600 0.8000 1 0.9400 0.9200,
+                // 0.9400 0.9267 0.8800 0.9800 0.9067 1 0.9733 0.9867, 1
+                [
+                    0.89, 0.72, 0.835, 0.87, 0.93, 0.95, 0.79, 0.99, 0.93, 0.91, 0.93, 0.915, 0.87,
+                    0.97, 0.895, 0.99, 0.96, 0.975, 0.99,
+                ],
+            ),
+            (
+                DetectorKind::Lingua,
+                // 0.9733 0.7933 0.9600 0.9667 1 1 0.9467 1 1 0.9933,
+                // 0.9933 0.9933 1 1 0.9867 1 0.9800 1, 1
+                [
+                    0.96, 0.78, 0.95, 0.955, 0.99, 0.99, 0.935, 0.99, 0.99, 0.98, 0.98, 0.98, 0.99,
+                    0.99, 0.975, 0.99, 0.97, 0.99, 0.99,
+                ],
+            ),
+        ];
+        for (kind, floor) in floors {
+            let d = detector(kind, Some(&SEVEN), crate::analysis::DEFAULT_MIN_CONFIDENCE);
+            for ((lang, file), floor) in SETS.iter().zip(floor) {
+                let Some(all) = sentences(file) else { return };
+                let texts: Vec<&str> = all.iter().take(FIRST).map(String::as_str).collect();
+                let total = routed_right(&d, code(lang), &texts)
+                    .values()
+                    .fold((0, 0), |a, b| (a.0 + b.0, a.1 + b.1));
+                crate::analysis::testutil::report_line(&format!(
+                    "{kind} {file}: {:.4} routed right ({}/{})",
+                    share(total),
+                    total.0,
+                    total.1
+                ));
+                assert!(share(total) >= floor, "{kind} {file}: {:.4} < {floor}", share(total));
+            }
         }
     }
 }

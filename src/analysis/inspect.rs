@@ -277,8 +277,10 @@ mod tests {
         .expect("traces");
         assert_eq!(stages[0].field, "text_fr");
         assert_eq!(stages.len(), 3);
+        // Nothing to detect (lingua, the built-in detector, even answers
+        // "ok": Dutch, measured).
         let undetectable =
-            trace(&spec("routed"), &AnalysisContext::default(), "ok", None).expect("traces");
+            trace(&spec("routed"), &AnalysisContext::default(), "12:30 🎉", None).expect("traces");
         assert_eq!(undetectable[0].field, "text_other");
     }
 }

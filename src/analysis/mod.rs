@@ -55,6 +55,7 @@ mod fold;
 pub mod hashtag;
 pub mod inspect;
 mod length_limit;
+mod lingua_detector;
 mod lowercase;
 mod post_tokenizer;
 mod spec;

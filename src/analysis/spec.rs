@@ -24,6 +24,7 @@
 //! [chain.route]                       # a routed chain: one field per language
 //! languages = ["en", "de"]
 //! min_confidence = 0.5                # default 0.5
+//! detector = "lingua"                 # lingua (default) | whatlang
 //! posts = "declared"                  # declared (default) | detected
 //! queries = "declared"                # declared (default) | detected
 //! search = "own_and_fallback"         # own | own_and_fallback (default) | all
@@ -109,7 +110,7 @@ use std::path::Path;
 use serde::{Deserialize, Serialize};
 use toml::Spanned;
 
-use super::detect;
+use super::detect::DetectorKind;
 use super::drop_tokens::DropKind;
 use super::elision::ELISION_LANGUAGES;
 use super::fold::FoldForm;
@@ -498,10 +499,14 @@ pub struct Branch {
 /// The routing of a language-routed chain.
 #[derive(Clone, Debug, PartialEq, Serialize)]
 pub struct RouteSpec {
-    /// The routed languages (detection is restricted to them), in file order.
+    /// The routed languages, in file order (a text detected in another
+    /// language goes to the fallback: see [`detect`](super::detect)).
     pub languages: Vec<LangCode>,
     /// Detections below this confidence go to the fallback.
     pub min_confidence: f64,
+    /// The language detector (what its confidence means differs: see
+    /// [`detect`](super::detect)).
+    pub detector: DetectorKind,
     /// How posts are routed.
     pub posts: PostRouting,
     /// How a query's language is found.
@@ -815,6 +820,8 @@ struct RawChain {
 struct RawRoute {
     languages: Spanned<Vec<Spanned<LangCode>>>,
     min_confidence: Option<Spanned<f64>>,
+    #[serde(default)]
+    detector: DetectorKind,
     #[serde(default)]
     posts: PostRouting,
     queries: Option<Spanned<String>>,
@@ -1263,7 +1270,7 @@ fn check_route(
     let route_span = route.span();
 
     // Languages: non-empty, distinct, known to the detector.
-    let detectable = detect::supported_codes();
+    let detectable = r.detector.supported_codes();
     let mut languages: Vec<LangCode> = Vec::new();
     if r.languages.get_ref().is_empty() {
         issues.push(r.languages.span(), format!("{label}: route languages must not be empty"));
@@ -1278,7 +1285,8 @@ fn check_route(
             issues.push(
                 l.span(),
                 format!(
-                    "{label}: language detection cannot recognise {:?}; accepted: {}",
+                    "{label}: the {} detector cannot recognise {:?}; accepted: {}",
+                    r.detector,
                     code.as_str(),
                     join_codes(&detectable)
                 ),
@@ -1438,6 +1446,7 @@ fn check_route(
     RouteSpec {
         languages,
         min_confidence,
+        detector: r.detector,
         posts: r.posts,
         queries,
         search: r.search,
@@ -1868,6 +1877,47 @@ mod tests {
         let e = err("[[chain]]\nname = \"r\"\n[chain.route]\nlanguages = [\"en\"]\n\
                      [chain.route.language.en]\nunspaced = \"pairs\"\n");
         assert!(e.starts_with("my.toml:6: unknown variant `pairs`"), "{e}");
+    }
+
+    #[test]
+    fn detector_key() {
+        let route = |extra: &str| {
+            format!("[[chain]]\nname = \"r\"\n[chain.route]\nlanguages = [\"en\", \"sv\"]\n{extra}")
+        };
+        for (line, want) in [
+            ("", DetectorKind::Lingua),
+            ("detector = \"lingua\"\n", DetectorKind::Lingua),
+            ("detector = \"whatlang\"\n", DetectorKind::Whatlang),
+        ] {
+            let chains = parse_chains(&route(line), "r.toml", &[]).expect("valid");
+            assert_eq!(chains[0].route().expect("routed").detector, want, "{line:?}");
+        }
+        // The built-in `routed` names its detector (chains/builtin.toml).
+        let builtins = builtin_chains(en()).expect("built-ins parse");
+        let routed = builtins.iter().find_map(ChainSpec::route).expect("a routed built-in");
+        assert_eq!(routed.detector, DetectorKind::Lingua);
+        // Reports record it with the route.
+        let json = serde_json::to_value(&builtins[3]).expect("serialize");
+        assert_eq!(json["route"]["detector"], "lingua");
+        // A bad value names the line and the accepted values.
+        let e = err(&route("min_confidence = 0.5\ndetector = \"cld\"\n"));
+        assert!(e.starts_with("my.toml:6: "), "{e}");
+        assert!(e.contains("unknown variant `cld`, expected `whatlang` or `lingua`"), "{e}");
+        // A language the chosen detector cannot recognise: named with the
+        // detector and the accepted codes (whatlang knows Welsh, lingua as
+        // compiled here does not).
+        let welsh = "[[chain]]\nname = \"r\"\n[chain.route]\nlanguages = [\"cy\"]\n\
+                     steps = [{ step = \"lowercase\" }]\n";
+        let e = err(welsh);
+        assert!(
+            e.starts_with(
+                "my.toml:4: chain \"r\": the lingua detector cannot recognise \"cy\"; \
+                 accepted: ar, bg, ca"
+            ),
+            "{e}"
+        );
+        let whatlang = welsh.replace("languages", "detector = \"whatlang\"\nlanguages");
+        assert!(parse_chains(&whatlang, "r.toml", &[]).is_ok());
     }
 
     #[test]

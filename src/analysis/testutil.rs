@@ -4,7 +4,7 @@
 //! test that needs the shared open data skipped ([`skip`], shared by every
 //! test of the library).
 
-pub use crate::test_skips::skip;
+pub use crate::test_skips::{report_line, skip};
 
 use tantivy::tokenizer::{TextAnalyzer, Token};
 

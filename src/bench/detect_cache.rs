@@ -6,9 +6,10 @@
 //! for each detector configuration's detections of the posts and queries.
 //!
 //! Key: SHA-256 of a format tag, postassay's version, the detector's
-//! settings (allowlist and confidence floor, its `Debug` form), a fingerprint
-//! of the detector's answers on a few fixed probe texts (so a change of the
-//! detection code or of whatlang changes the key even within one version),
+//! settings (which detector, the route's languages and the confidence floor:
+//! its `Debug` form), a fingerprint of the detector's answers on a few fixed
+//! probe texts (so a change of the detection code, of whatlang or of lingua
+//! changes the key even within one version),
 //! and the texts handed to the detector, each preceded by its length. One
 //! file per key, `<key>.det`, holds one line per text (`lang confidence`, or
 //! an empty line for no detection); confidences are written in Rust's
@@ -251,6 +252,7 @@ mod tests {
     use std::cell::Cell;
 
     use super::*;
+    use crate::analysis::detect::DetectorKind;
 
     fn code(s: &str) -> LangCode {
         LangCode::parse(s).expect("valid code in test")
@@ -258,7 +260,7 @@ mod tests {
 
     fn detector() -> LangDetector {
         let langs = ["en", "de", "fr"].map(code).to_vec();
-        LangDetector::new(Some(langs), 0.0).expect("valid settings")
+        LangDetector::new(DetectorKind::Whatlang, Some(langs), 0.0).expect("valid settings")
     }
 
     fn texts() -> Vec<&'static str> {
@@ -307,10 +309,16 @@ mod tests {
         assert_ne!(k, DetectCache::key(&d, &["c", "a b"]));
         // Length prefixes keep the boundaries between texts apart.
         assert_ne!(k, DetectCache::key(&d, &["a", "b c"]));
-        let floor = LangDetector::new(Some(["en", "de", "fr"].map(code).to_vec()), 0.5)
+        let langs = ["en", "de", "fr"].map(code).to_vec();
+        let floor = LangDetector::new(DetectorKind::Whatlang, Some(langs.clone()), 0.5)
             .expect("valid settings");
         assert_ne!(k, DetectCache::key(&floor, &["a b", "c"]));
         assert_eq!(k, DetectCache::key(&detector(), &["a b", "c"]));
+        // The other detector with the same languages and floor: another key.
+        let lingua =
+            LangDetector::new(DetectorKind::Lingua, Some(langs), 0.0).expect("valid settings");
+        assert_ne!(k, DetectCache::key(&lingua, &["a b", "c"]));
+        assert!(format!("{lingua:?}").contains("detector: \"lingua\""), "{lingua:?}");
     }
 
     #[test]

@@ -403,8 +403,9 @@ fn routing_info(
         .count();
     let detector = match analyzer.detector() {
         Some(d) => format!(
-            "whatlang over {} languages, confidence ≥ {}",
-            d.allowlist().map_or(0, <[_]>::len),
+            "{}, {} languages routed (others to the fallback), confidence ≥ {}",
+            d.kind(),
+            d.languages().map_or(0, <[_]>::len),
             d.min_confidence()
         ),
         None => "none".to_string(),

@@ -10,8 +10,9 @@
 //! Sections (each can be turned off):
 //! - `conflation`: Paice's understemming/overstemming indices against lemma
 //!   classes ([`conflation`]), per lemma list and chain;
-//! - `routing`: routing accuracy by length ([`routing`]), per sentence set
-//!   and routed chain;
+//! - `routing`: routing accuracy by length ([`routing`]) and the cost of
+//!   detection per sentence, per sentence set, routed chain and detector
+//!   (each routed chain also runs with the other detector);
 //! - `segmentation`: hashtag segmentation accuracy ([`segmentation`]), per
 //!   gold set, chain with a `hashtags` step, and word-frequency source;
 //! - `unspaced`: word segmentation of Thai, Chinese and Japanese
@@ -49,6 +50,7 @@ use std::sync::Arc;
 
 use serde::{Deserialize, Serialize};
 
+use crate::analysis::detect::DetectorKind;
 use crate::analysis::hashtag::WordFreqs;
 use crate::analysis::{
     build_pipeline, builtin_chains, tag_table, word_lists, AnalysisContext, Analyzer, ChainBody,
@@ -244,6 +246,9 @@ pub struct ConflationResult {
 pub struct RoutingResult {
     /// The chain.
     pub chain: ChainName,
+    /// The detector it ran with: its own, or the other one on the same route
+    /// (so that both detectors' accuracy and cost are shown).
+    pub detector: DetectorKind,
     /// `ud` or `ud_pud`.
     pub collection: String,
     /// The set's name.
@@ -305,7 +310,8 @@ pub struct Diagnostics {
     pub sections: Sections,
     /// Conflation results: by set, then chain order.
     pub conflation: Vec<ConflationResult>,
-    /// Routing results: by chain, then collection, then set.
+    /// Routing results: by chain, then detector (the chain's own first),
+    /// then collection, then set.
     pub routing: Vec<RoutingResult>,
     /// Segmentation results: by chain, then gold set, then source.
     pub segmentation: Vec<SegmentationResult>,
@@ -373,7 +379,7 @@ pub fn run(plan: &DiagnosePlan, progress: &mut dyn FnMut(&str)) -> Result<Diagno
             notes.push("routing: none of the chains is language-routed".to_string());
         } else {
             wanted += 1;
-            out.routing = routing_section(&routed, &sets, &mut inputs, progress)?;
+            out.routing = routing_section(&routed, &sets, &mut inputs, &mut notes, progress)?;
         }
     }
     if plan.sections.segmentation {
@@ -579,10 +585,14 @@ fn describe(spec: &ChainSpec, field: &str) -> String {
     }
 }
 
+/// Each routed chain with its own detector, then with each other detector
+/// on the same route (a variant the chain's languages rule out is skipped
+/// with a note).
 fn routing_section(
     routed: &[&ChainUnderTest],
     sets: &DataSets,
     inputs: &mut Vec<InputFile>,
+    notes: &mut Vec<String>,
     progress: &mut dyn FnMut(&str),
 ) -> Result<Vec<RoutingResult>> {
     let mut texts = Vec::with_capacity(sets.sentence_sets.len());
@@ -594,27 +604,43 @@ fn routing_section(
     }
     let mut out = Vec::new();
     for chain in routed {
-        let analyzer = Analyzer::build(chain.spec(), &AnalysisContext::default())?;
-        for (file, sentences) in &texts {
-            let Some(language) = file.language else { continue };
-            progress(&format!(
-                "routing: {} on {}/{} ({} sentences)",
-                chain.name(),
-                file.collection,
-                file.name,
-                sentences.len()
-            ));
-            let refs: Vec<&str> = sentences.iter().map(|s| s.text.as_str()).collect();
-            let Some(figures) = routing::route_sentences(&analyzer, language, &refs) else {
-                continue;
+        let Some(own) = chain.spec().route().map(|r| r.detector) else { continue };
+        let kinds = std::iter::once(own).chain(DetectorKind::ALL.into_iter().filter(|k| *k != own));
+        for kind in kinds {
+            let mut spec = chain.spec().clone();
+            if let ChainBody::Routed { route } = &mut spec.body {
+                route.detector = kind;
+            }
+            let analyzer = match Analyzer::build(&spec, &AnalysisContext::default()) {
+                Ok(a) => a,
+                Err(e) if kind != own => {
+                    notes.push(format!("routing: {} with the {kind} detector: {e}", chain.name()));
+                    continue;
+                }
+                Err(e) => return Err(e),
             };
-            out.push(RoutingResult {
-                chain: chain.name().clone(),
-                collection: file.collection.clone(),
-                set: file.name.clone(),
-                language,
-                figures,
-            });
+            for (file, sentences) in &texts {
+                let Some(language) = file.language else { continue };
+                progress(&format!(
+                    "routing: {} ({kind}) on {}/{} ({} sentences)",
+                    chain.name(),
+                    file.collection,
+                    file.name,
+                    sentences.len()
+                ));
+                let refs: Vec<&str> = sentences.iter().map(|s| s.text.as_str()).collect();
+                let Some(figures) = routing::route_sentences(&analyzer, language, &refs) else {
+                    continue;
+                };
+                out.push(RoutingResult {
+                    chain: chain.name().clone(),
+                    detector: kind,
+                    collection: file.collection.clone(),
+                    set: file.name.clone(),
+                    language,
+                    figures,
+                });
+            }
         }
     }
     Ok(out)

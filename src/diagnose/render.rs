@@ -22,6 +22,7 @@ use std::path::{Path, PathBuf};
 use super::conflation::ConflationFigures;
 use super::routing::{buckets, FALLBACK_LABEL};
 use super::{ConflationResult, Diagnostics, RoutingResult, SegmentationResult, UnspacedResult};
+use crate::analysis::detect::DetectorKind;
 use crate::error::{Error, Result};
 use crate::ids::ChainName;
 use crate::input::format_shortest;
@@ -145,30 +146,54 @@ pub fn conflation_csv(d: &Diagnostics) -> Result<String> {
     })
 }
 
-/// `diagnostics-routing.csv`: per chain and set, a row `all` then one per
-/// length bucket.
+/// The columns that name a routing result in the routing CSVs.
+const ROUTING_KEYS: [&str; 5] = ["chain", "detector", "collection", "set", "language"];
+
+/// The values of [`ROUTING_KEYS`] for one result.
+fn routing_keys(r: &RoutingResult) -> [&str; 5] {
+    [r.chain.as_str(), r.detector.as_str(), &r.collection, &r.set, r.language.as_str()]
+}
+
+/// `diagnostics-routing.csv`: per chain, detector and set, a row `all` (with
+/// the detector's CPU microseconds per sentence) then one per length
+/// bucket.
 pub fn routing_csv(d: &Diagnostics) -> Result<String> {
     csv_text(|w| {
-        w.write_record([
-            "chain",
-            "collection",
-            "set",
-            "language",
+        let figures = [
             "routable",
             "bucket",
             "sentences",
             "correct",
             "accuracy",
-        ])?;
+            "to_fallback",
+            "micros_per_sentence",
+        ];
+        w.write_record(ROUTING_KEYS.iter().chain(&figures))?;
         for r in &d.routing {
             let f = &r.figures;
-            let head = [r.chain.as_str(), &r.collection, &r.set, r.language.as_str()];
+            let head = routing_keys(r);
             let routable = if f.routable { "yes" } else { "no" };
-            let all = [routable, "all", &f.sentences.to_string(), &f.correct.to_string()];
-            w.write_record(head.iter().chain(&all).copied().chain([num(f.accuracy).as_str()]))?;
+            let all = [
+                routable.to_string(),
+                "all".to_string(),
+                f.sentences.to_string(),
+                f.correct.to_string(),
+                num(f.accuracy),
+                f.to_fallback.to_string(),
+                num(f.micros_per_sentence),
+            ];
+            w.write_record(head.iter().copied().chain(all.iter().map(String::as_str)))?;
             for b in &f.by_length {
-                let row = [routable, &b.bucket, &b.sentences.to_string(), &b.correct.to_string()];
-                w.write_record(head.iter().chain(&row).copied().chain([num(b.accuracy).as_str()]))?;
+                let row = [
+                    routable.to_string(),
+                    b.bucket.clone(),
+                    b.sentences.to_string(),
+                    b.correct.to_string(),
+                    num(b.accuracy),
+                    b.to_fallback.to_string(),
+                    String::new(),
+                ];
+                w.write_record(head.iter().copied().chain(row.iter().map(String::as_str)))?;
             }
         }
         Ok(())
@@ -178,17 +203,11 @@ pub fn routing_csv(d: &Diagnostics) -> Result<String> {
 /// `diagnostics-confusion.csv`: where each set's sentences were routed.
 pub fn confusion_csv(d: &Diagnostics) -> Result<String> {
     csv_text(|w| {
-        w.write_record(["chain", "collection", "set", "language", "routed_to", "sentences"])?;
+        w.write_record(ROUTING_KEYS.iter().chain(&["routed_to", "sentences"]))?;
         for r in &d.routing {
             for (label, n) in &r.figures.confusion {
-                w.write_record([
-                    r.chain.as_str(),
-                    &r.collection,
-                    &r.set,
-                    r.language.as_str(),
-                    label,
-                    &n.to_string(),
-                ])?;
+                let count = n.to_string();
+                w.write_record(routing_keys(r).iter().chain(&[label.as_str(), &count]))?;
             }
         }
         Ok(())
@@ -393,31 +412,69 @@ pub fn conflation_table(results: &[ConflationResult]) -> Table {
     }
 }
 
-/// Routing results grouped by chain, chains in report order.
-pub fn routing_by_chain(results: &[RoutingResult]) -> Vec<(&ChainName, Vec<&RoutingResult>)> {
-    let mut out: Vec<(&ChainName, Vec<&RoutingResult>)> = Vec::new();
+/// Routing results of one chain with one detector.
+#[derive(Debug, Clone, PartialEq)]
+pub struct RoutingGroup<'a> {
+    /// The chain.
+    pub chain: &'a ChainName,
+    /// The detector it ran with.
+    pub detector: DetectorKind,
+    /// Its results, in report order.
+    pub rows: Vec<&'a RoutingResult>,
+}
+
+impl RoutingGroup<'_> {
+    /// A heading for the group: the chain and its detector, Markdown code
+    /// spans around the names.
+    pub fn title(&self) -> String {
+        format!("`{}`, detector `{}`", cell(self.chain.as_str()), self.detector)
+    }
+
+    /// Mean CPU microseconds of detection per sentence over the group's
+    /// sets, weighted by their sentences (`None` when nothing was timed).
+    pub fn micros_per_sentence(&self) -> Option<f64> {
+        let timed: Vec<(f64, usize)> = self
+            .rows
+            .iter()
+            .filter_map(|r| r.figures.micros_per_sentence.map(|m| (m, r.figures.sentences)))
+            .collect();
+        let n: usize = timed.iter().map(|t| t.1).sum();
+        // Display arithmetic: the model's per-set means, pooled.
+        (n > 0).then(|| timed.iter().map(|(m, k)| m * *k as f64).sum::<f64>() / n as f64)
+    }
+}
+
+/// Routing results grouped by chain and detector, in report order.
+pub fn routing_by_chain(results: &[RoutingResult]) -> Vec<RoutingGroup<'_>> {
+    let mut out: Vec<RoutingGroup<'_>> = Vec::new();
     for r in results {
-        match out.iter_mut().find(|(chain, _)| **chain == r.chain) {
-            Some((_, rows)) => rows.push(r),
-            None => out.push((&r.chain, vec![r])),
+        match out.iter_mut().find(|g| *g.chain == r.chain && g.detector == r.detector) {
+            Some(group) => group.rows.push(r),
+            None => out.push(RoutingGroup { chain: &r.chain, detector: r.detector, rows: vec![r] }),
         }
     }
     out
 }
 
-/// One routed chain's table: per sentence set, overall accuracy, accuracy
-/// (sentences) per length bucket and the share sent to the fallback field.
+/// One routed chain's table with one detector: per sentence set, overall
+/// accuracy, accuracy (sentences) per length bucket, the share sent to the
+/// fallback field and the detector's CPU time per sentence. For a language
+/// the route does not list, whose right place is the fallback, the cells
+/// show the share sent there, marked `↪`.
 pub fn routing_table(rows: &[&RoutingResult]) -> Table {
     let labels = buckets();
     let mut header: Vec<String> =
         ["data", "set", "sentences", "accuracy"].map(String::from).to_vec();
     header.extend(labels.iter().map(|b| b.replace("<=", "≤ ")));
     header.push("to fallback".to_string());
+    header.push("µs / sentence".to_string());
     let numeric = header.iter().enumerate().map(|(i, _)| i >= 2).collect();
     let rows = rows
         .iter()
         .map(|r| {
             let f = &r.figures;
+            // Display arithmetic only: shares of two model counts.
+            let fallback = |n: usize, of: usize| (of > 0).then(|| n as f64 / of as f64);
             let mut row = vec![
                 Cell::text(r.collection.clone()),
                 Cell::text(r.set.clone()),
@@ -437,12 +494,14 @@ pub fn routing_table(rows: &[&RoutingResult]) -> Table {
                         share: b.accuracy,
                     }
                 } else {
-                    Cell::text(format!("– ({})", b.sentences))
+                    let share = fallback(b.to_fallback, b.sentences);
+                    Cell { text: format!("↪ {} ({})", percent(share), b.sentences), share }
                 });
             }
-            // Display arithmetic only: a share of two model counts.
-            let share = (f.sentences > 0).then(|| f.to_fallback as f64 / f.sentences as f64);
-            row.push(Cell::text(percent(share)));
+            row.push(Cell::text(percent(fallback(f.to_fallback, f.sentences))));
+            row.push(Cell::text(
+                f.micros_per_sentence.map_or("–".to_string(), |m| format!("{m:.0}")),
+            ));
             row
         })
         .collect();
@@ -655,16 +714,22 @@ fn routing_md(s: &mut String, d: &Diagnostics) {
     let _ = writeln!(
         s,
         "Each sentence is routed like a post without a declared language (the chain's \
-         detector, then its field). Correct = the field of the sentence's own language; \
+         detector, then its field); each routed chain runs with its own detector and with \
+         the other one. Correct = the field of the sentence's own language; \
          `{FALLBACK_LABEL}` (the fallback field) is wrong. A language the route does not \
-         list cannot be routed correctly and is marked *not routed*. Length buckets in \
-         characters; cells show accuracy (sentences).\n"
+         list cannot be routed correctly and is marked *not routed*; its right place is \
+         the fallback, and its cells (↪) show the share sent there. Length buckets in \
+         characters; cells show accuracy (sentences). µs / sentence: CPU time of detection \
+         per sentence, measured in this pass (it varies from run to run).\n"
     );
-    for (chain, rows) in routing_by_chain(&d.routing) {
-        let _ = writeln!(s, "### `{chain}`\n");
-        s.push_str(&routing_table(&rows).markdown());
+    for group in routing_by_chain(&d.routing) {
+        let _ = writeln!(s, "### {}\n", group.title());
+        if let Some(m) = group.micros_per_sentence() {
+            let _ = writeln!(s, "Detection: {m:.0} µs of CPU time per sentence.\n");
+        }
+        s.push_str(&routing_table(&group.rows).markdown());
         s.push('\n');
-        confusion_md(s, &rows);
+        confusion_md(s, &group.rows);
     }
 }
 
@@ -784,7 +849,7 @@ mod tests {
     use super::*;
     use crate::diagnose::conflation::{figures, WordGroups};
     use crate::diagnose::data::LemmaList;
-    use crate::diagnose::routing::tally;
+    use crate::diagnose::routing::{tally, RoutingFigures};
     use crate::diagnose::{ConflationResult, Sections, SCHEMA_VERSION};
     use crate::ids::ChainName;
     use crate::input::LangCode;
@@ -827,10 +892,14 @@ mod tests {
             }],
             routing: vec![RoutingResult {
                 chain: ChainName::from("routed"),
+                detector: DetectorKind::Lingua,
                 collection: "ud".into(),
                 set: "en".into(),
                 language: en,
-                figures: tally(en, true, &[(10, Some(en)), (80, None)]),
+                figures: RoutingFigures {
+                    micros_per_sentence: Some(250.0),
+                    ..tally(en, true, &[(10, Some(en)), (80, None)])
+                },
             }],
             segmentation: Vec::new(),
             unspaced: Vec::new(),
@@ -850,13 +919,14 @@ mod tests {
         );
         let routing = routing_csv(&d).expect("renders");
         let lines: Vec<&str> = routing.lines().collect();
-        assert_eq!(lines[1], "routed,ud,en,en,yes,all,2,1,0.5");
-        assert_eq!(lines[2], "routed,ud,en,en,yes,<=20,1,1,1");
-        assert_eq!(lines[3], "routed,ud,en,en,yes,21-60,0,0,");
+        assert_eq!(lines[1], "routed,lingua,ud,en,en,yes,all,2,1,0.5,1,250");
+        assert_eq!(lines[2], "routed,lingua,ud,en,en,yes,<=20,1,1,1,0,");
+        assert_eq!(lines[3], "routed,lingua,ud,en,en,yes,21-60,0,0,,0,");
+        assert_eq!(lines[4], "routed,lingua,ud,en,en,yes,61-140,1,0,0,1,");
         let confusion = confusion_csv(&d).expect("renders");
         assert_eq!(
             confusion.lines().skip(1).collect::<Vec<_>>(),
-            ["routed,ud,en,en,en,1", "routed,ud,en,en,other,1"]
+            ["routed,lingua,ud,en,en,en,1", "routed,lingua,ud,en,en,other,1"]
         );
     }
 
@@ -877,18 +947,44 @@ mod tests {
         other.chain = ChainName::from("other");
         let mut second = d.routing[0].clone();
         second.set = "de".into();
-        d.routing.extend([other, second]);
+        second.figures.micros_per_sentence = Some(1000.0);
+        let mut whatlang = d.routing[0].clone();
+        whatlang.detector = DetectorKind::Whatlang;
+        // Swedish, not routed: one sentence of 80 chars sent to the fallback.
+        let sv = LangCode::parse("sv").expect("valid");
+        let mut unlisted = d.routing[0].clone();
+        unlisted.set = "sv".into();
+        unlisted.figures = tally(sv, false, &[(80, None)]);
+        d.routing.extend([other, second, whatlang, unlisted]);
         let grouped = routing_by_chain(&d.routing);
-        let names: Vec<(&str, usize)> =
-            grouped.iter().map(|(c, rows)| (c.as_str(), rows.len())).collect();
-        assert_eq!(names, [("routed", 2), ("other", 1)], "report order, sets gathered");
-        let table = routing_table(&grouped[0].1);
-        assert_eq!(table.header.len(), 9);
-        assert_eq!(table.numeric, [false, false, true, true, true, true, true, true, true]);
+        let names: Vec<(&str, &str, usize)> =
+            grouped.iter().map(|g| (g.chain.as_str(), g.detector.as_str(), g.rows.len())).collect();
+        assert_eq!(
+            names,
+            [("routed", "lingua", 3), ("other", "lingua", 1), ("routed", "whatlang", 1)],
+            "report order, sets gathered per chain and detector"
+        );
+        assert_eq!(grouped[2].title(), "`routed`, detector `whatlang`");
+        // Pooled over the timed sets: (250 · 2 + 1000 · 2) / 4 sentences.
+        assert_eq!(grouped[0].micros_per_sentence(), Some(625.0));
+        let table = routing_table(&grouped[0].rows);
+        assert_eq!(table.header.len(), 10);
+        assert_eq!(table.numeric, [false, false, true, true, true, true, true, true, true, true]);
         // Two sentences: 10 chars → en (right), 80 chars → fallback (wrong).
         let shares: Vec<Option<f64>> = table.rows[0].iter().map(|c| c.share).collect();
-        assert_eq!(shares, [None, None, None, Some(0.5), Some(1.0), None, Some(0.0), None, None]);
+        assert_eq!(
+            shares,
+            [None, None, None, Some(0.5), Some(1.0), None, Some(0.0), None, None, None]
+        );
         assert_eq!(table.rows[0][4].text, "100.0% (1)");
+        assert_eq!(table.rows[0][9].text, "250");
+        // The unlisted language: the cells show the share sent to the fallback.
+        let texts: Vec<&str> = table.rows[2].iter().map(|c| c.text.as_str()).collect();
+        assert_eq!(
+            texts,
+            ["ud", "sv", "1", "not routed", "–", "–", "↪ 100.0% (1)", "–", "100.0%", "–"]
+        );
+        assert_eq!(table.rows[2][6].share, Some(1.0));
     }
 
     #[test]
@@ -899,8 +995,10 @@ mod tests {
         assert!(md.contains(row), "{md}");
         assert!(md.contains("- split `run` (2 words, 2 terms): `ran` ran; `run` runs"), "{md}");
         // Two sentences: 10 chars → en (right), 80 chars → fallback (wrong).
-        let row = "| ud | en | 2 | 50.0% | 100.0% (1) | – | 0.0% (1) | – | 50.0% |";
+        let row = "| ud | en | 2 | 50.0% | 100.0% (1) | – | 0.0% (1) | – | 50.0% | 250 |";
         assert!(md.contains(row), "{md}");
+        assert!(md.contains("### `routed`, detector `lingua`\n"), "{md}");
+        assert!(md.contains("Detection: 250 µs of CPU time per sentence."), "{md}");
         assert!(md.contains("| en | **1** | 1 |"), "{md}");
         assert!(md.contains("| lemmas:en | `en.tsv` | `ab` |"), "{md}");
         assert!(md.contains("## Notes"));

@@ -5,14 +5,20 @@
 //! Place in the data flow: `diagnose`, fed by sentence files
 //! ([`read_sentences`](super::data::read_sentences)) and a routed chain's
 //! [`Analyzer`]. A sentence is routed as a post without a declared language
-//! would be: the chain's detector (restricted to the route's languages, with
-//! its confidence floor) and then [`Analyzer::field_for_post`].
+//! would be: the chain's detector (with the route's languages, its
+//! confidence floor and the rule for other languages, see
+//! [`detect`](crate::analysis::detect)) and then
+//! [`Analyzer::field_for_post`].
 //!
 //! A sentence is routed correctly when it lands in the field of its own
 //! language; the fallback field counts as wrong. A language outside the
 //! route's list can never be routed correctly: it is reported as not
 //! routable (its accuracy is 0 by construction and its confusion row shows
-//! where its sentences go), not left out.
+//! where its sentences go), not left out. Its right place is the fallback
+//! field, so the share sent there is counted overall and per length bucket.
+//!
+//! The cost of detection is measured in the same pass: the CPU time the
+//! detecting threads spent per sentence ([`LangDetector::detect_all_timed`]).
 //!
 //! Lengths are counted in Unicode scalar values and bucketed by
 //! [`length_bucket`] (≤ 20, 21–60, 61–140, > 140).
@@ -21,7 +27,7 @@ use std::collections::BTreeMap;
 
 use serde::{Deserialize, Serialize};
 
-use crate::analysis::detect::length_bucket;
+use crate::analysis::detect::{length_bucket, LangDetector};
 use crate::analysis::Analyzer;
 use crate::input::LangCode;
 
@@ -44,6 +50,8 @@ pub struct BucketFigures {
     pub correct: usize,
     /// `correct / sentences` (`None` for an empty bucket).
     pub accuracy: Option<f64>,
+    /// Sent to the fallback field.
+    pub to_fallback: usize,
 }
 
 /// Routing of one set of sentences of one language.
@@ -63,6 +71,10 @@ pub struct RoutingFigures {
     pub by_length: Vec<BucketFigures>,
     /// Field label (a language code or [`FALLBACK_LABEL`]) → sentences.
     pub confusion: BTreeMap<String, usize>,
+    /// Mean CPU time of language detection per sentence, in microseconds
+    /// (a measurement, so it varies from run to run; `None` when not
+    /// measured).
+    pub micros_per_sentence: Option<f64>,
 }
 
 fn share(num: usize, den: usize) -> Option<f64> {
@@ -78,7 +90,7 @@ pub fn tally(
     routed: &[(usize, Option<LangCode>)],
 ) -> RoutingFigures {
     let labels = buckets();
-    let mut per_bucket = [(0usize, 0usize); 4];
+    let mut per_bucket = [(0usize, 0usize, 0usize); 4];
     let mut confusion: BTreeMap<String, usize> = BTreeMap::new();
     let (mut correct, mut to_fallback) = (0, 0);
     for &(chars, field) in routed {
@@ -92,17 +104,19 @@ pub fn tally(
             if let Some(cell) = per_bucket.get_mut(i) {
                 cell.0 += 1;
                 cell.1 += usize::from(ok);
+                cell.2 += usize::from(field.is_none());
             }
         }
     }
     let by_length = labels
         .iter()
         .zip(per_bucket)
-        .map(|(bucket, (n, ok))| BucketFigures {
+        .map(|(bucket, (n, ok, fallback))| BucketFigures {
             bucket: bucket.to_string(),
             sentences: n,
             correct: ok,
             accuracy: share(ok, n),
+            to_fallback: fallback,
         })
         .collect();
     RoutingFigures {
@@ -113,20 +127,22 @@ pub fn tally(
         to_fallback,
         by_length,
         confusion,
+        micros_per_sentence: None,
     }
 }
 
-/// Route `texts` of `language` with a routed chain and tally the result;
-/// `None` for a plain chain (it has no route).
+/// Route `texts` of `language` with a routed chain and tally the result,
+/// with the detector's CPU time per sentence; `None` for a plain chain (it
+/// has no route).
 pub fn route_sentences(
     analyzer: &Analyzer,
     language: LangCode,
     texts: &[&str],
 ) -> Option<RoutingFigures> {
-    let detector = analyzer.detector()?;
+    let detector: &LangDetector = analyzer.detector()?;
     let route = analyzer.spec().route()?;
     let routable = route.languages.contains(&language);
-    let detections = detector.detect_all(texts);
+    let (detections, seconds) = detector.detect_all_timed(texts);
     let routed: Vec<(usize, Option<LangCode>)> = texts
         .iter()
         .zip(&detections)
@@ -135,7 +151,9 @@ pub fn route_sentences(
             (text.chars().count(), analyzer.fields().get(field).and_then(|f| f.language))
         })
         .collect();
-    Some(tally(language, routable, &routed))
+    let mut figures = tally(language, routable, &routed);
+    figures.micros_per_sentence = (!texts.is_empty()).then(|| 1e6 * seconds / texts.len() as f64);
+    Some(figures)
 }
 
 #[cfg(test)]
@@ -168,9 +186,16 @@ mod tests {
         let f = tally(de, true, &routed);
         assert_eq!((f.sentences, f.correct, f.to_fallback), (6, 4, 1));
         assert_relative_eq!(f.accuracy.expect("sentences"), 4.0 / 6.0);
-        let buckets: Vec<(&str, usize, usize)> =
-            f.by_length.iter().map(|b| (b.bucket.as_str(), b.sentences, b.correct)).collect();
-        assert_eq!(buckets, [("<=20", 2, 1), ("21-60", 2, 1), ("61-140", 1, 1), (">140", 1, 1)]);
+        let buckets: Vec<(&str, usize, usize, usize)> = f
+            .by_length
+            .iter()
+            .map(|b| (b.bucket.as_str(), b.sentences, b.correct, b.to_fallback))
+            .collect();
+        assert_eq!(
+            buckets,
+            [("<=20", 2, 1, 1), ("21-60", 2, 1, 0), ("61-140", 1, 1, 0), (">140", 1, 1, 0)]
+        );
+        assert_eq!(f.micros_per_sentence, None, "tally measures no time");
         let confusion: Vec<(&str, usize)> =
             f.confusion.iter().map(|(k, v)| (k.as_str(), *v)).collect();
         assert_eq!(confusion, [("de", 4), ("nl", 1), ("other", 1)]);
@@ -182,6 +207,8 @@ mod tests {
         let f = tally(sv, false, &[(30, Some(code("nl"))), (30, None)]);
         assert!(!f.routable);
         assert_eq!((f.correct, f.accuracy), (0, Some(0.0)));
+        // Its right place, the fallback, is counted per bucket.
+        assert_eq!((f.to_fallback, f.by_length[1].to_fallback), (1, 1));
         assert_eq!(f.by_length[0].accuracy, None);
         assert_eq!(tally(sv, false, &[]).accuracy, None);
     }
@@ -198,11 +225,16 @@ mod tests {
         ];
         let f = route_sentences(&analyzer, code("de"), &de).expect("a routed chain");
         assert_eq!((f.sentences, f.correct), (2, 2));
-        // Russian is not among the routed languages: not routable.
+        assert!(f.micros_per_sentence.is_some_and(|m| m > 0.0));
+        // Russian and Swedish are not among the routed languages: not
+        // routable, and sent to the fallback.
         let ru = ["Мы поехали на вокзал рано утром, чтобы успеть на первый поезд в Москву."];
         let f = route_sentences(&analyzer, code("ru"), &ru).expect("a routed chain");
         assert!(!f.routable);
-        assert_eq!(f.correct, 0);
+        assert_eq!((f.correct, f.to_fallback), (0, 1));
+        let sv = ["Igår kväll promenerade vi länge genom staden och pratade om livet."];
+        let f = route_sentences(&analyzer, code("sv"), &sv).expect("a routed chain");
+        assert_eq!((f.correct, f.to_fallback), (0, 1));
         let plain = chains.iter().find(|c| c.route().is_none()).expect("a plain built-in");
         let plain = Analyzer::build(plain, &AnalysisContext::default()).expect("builds");
         assert!(route_sentences(&plain, code("de"), &de).is_none());

@@ -662,18 +662,21 @@ fn diagnostics(s: &mut String, r: &Report) {
         );
         diagnostics_table(s, &conflation_table(&d.conflation));
     }
-    for (chain, rows) in routing_by_chain(&d.routing) {
+    for group in routing_by_chain(&d.routing) {
         let _ = writeln!(
             s,
-            "<h3>Routing by length: <code>{}</code></h3>\n<p>Sentences of known language routed \
-             like posts without a declared language; correct = the field of their own language. \
-             Accuracy (sentences) per length in characters, with a <span class=\"box\" \
-             style=\"background:{}\"></span>bar across the cell from 0 to 100%; \
-             <em>not routed</em>: a language the route does not list.</p>",
-            esc(chain.as_str()),
+            "<h3>Routing by length: <code>{}</code>, detector <code>{}</code></h3>\n<p>Sentences \
+             of known language routed like posts without a declared language; correct = the \
+             field of their own language. Accuracy (sentences) per length in characters, with \
+             a <span class=\"box\" style=\"background:{}\"></span>bar across the cell from 0 \
+             to 100%; <em>not routed</em>: a language the route does not list, whose cells (↪) \
+             show the share sent to the fallback, its right place. µs / sentence: CPU time of \
+             detection, measured in this run.</p>",
+            esc(group.chain.as_str()),
+            esc(group.detector.as_str()),
             tint(svg::BETTER, BAR_TINT)
         );
-        diagnostics_table(s, &routing_table(&rows));
+        diagnostics_table(s, &routing_table(&group.rows));
     }
     if !d.segmentation.is_empty() {
         s.push_str(

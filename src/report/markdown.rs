@@ -287,15 +287,17 @@ fn diagnostics(s: &mut String, r: &Report) {
         s.push_str(&conflation_table(&d.conflation).markdown());
         s.push('\n');
     }
-    for (chain, rows) in routing_by_chain(&d.routing) {
-        let _ = writeln!(s, "### Routing by length: `{chain}`\n");
+    for group in routing_by_chain(&d.routing) {
+        let _ = writeln!(s, "### Routing by length: {}\n", group.title());
         let _ = writeln!(
             s,
             "Sentences of known language routed like posts without a declared language; \
              correct = the field of their own language. Accuracy (sentences) per length in \
-             characters; *not routed*: a language the route does not list.\n"
+             characters; *not routed*: a language the route does not list, whose cells (↪) \
+             show the share sent to the fallback, its right place. µs / sentence: CPU time \
+             of detection, measured in this run.\n"
         );
-        s.push_str(&routing_table(&rows).markdown());
+        s.push_str(&routing_table(&group.rows).markdown());
         s.push('\n');
     }
     if !d.segmentation.is_empty() {

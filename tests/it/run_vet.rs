@@ -88,8 +88,16 @@ fn vet_adds_a_diagnostics_section_to_every_report() {
     );
     // data/ud_pud/ru.sentences.tsv: two Russian sentences of 71 and 72
     // characters; Russian is not among `routed`'s languages, so both go to
-    // the fallback field.
-    assert!(section.contains("| ud_pud | ru | 2 | not routed | – | – | – (2) | – | 100.0% |"));
+    // the fallback field (↪: the share sent there); the last cell is the
+    // measured CPU time per sentence.
+    assert!(
+        section.contains("| ud_pud | ru | 2 | not routed | – | – | ↪ 100.0% (2) | – | 100.0% | "),
+        "{section}"
+    );
+    // Both detectors are shown, the chain's own first.
+    let lingua = section.find("detector `lingua`").expect("lingua's table");
+    let whatlang = section.find("detector `whatlang`").expect("whatlang's table");
+    assert!(lingua < whatlang, "{section}");
     // The three longer English sentences reach text_en (measured in vet.rs).
     let en_row = section.lines().find(|l| l.starts_with("| ud | en | 4 |")).expect("en row");
     assert!(en_row.contains("| 100.0% (1) | 100.0% (1) | 100.0% (1) |"), "{en_row}");
@@ -146,7 +154,11 @@ fn vet_adds_a_diagnostics_section_to_every_report() {
     let html = read(&out.join("report.html"));
     assert!(html.contains("<a href=\"#diagnostics\">Diagnostics</a>"));
     assert!(html.contains("<section id=\"diagnostics\">\n<h2>Diagnostics</h2>"));
-    assert!(html.contains("<h3>Routing by length: <code>routed</code></h3>"));
+    for detector in ["lingua", "whatlang"] {
+        assert!(html.contains(&format!(
+            "<h3>Routing by length: <code>routed</code>, detector <code>{detector}</code></h3>"
+        )));
+    }
     assert!(html.contains("<td class=\"num\">0.4286</td>"), "stemmed UI in an HTML table");
     // 100% accuracy: a bar across the whole cell, tinted Okabe–Ito blue
     // (#0072B2 mixed 30% with white: 255 − 255·0.3 = 178.5 → b3, and so on).

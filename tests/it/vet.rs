@@ -118,33 +118,45 @@ fn conflation_figures_on_a_tiny_lemma_list() {
 fn routing_and_segmentation_on_tiny_sets() {
     let (_tmp, out) = tiny_run(&[]);
     let routing = rows(&out.join("diagnostics-routing.csv"));
-    // data/ud/en.sentences.tsv: 7, 40, 99 and 173 chars, one per bucket.
-    for (bucket, n) in [("all", "4"), ("<=20", "1"), ("21-60", "1"), ("61-140", "1"), (">140", "1")]
-    {
-        let row = find(&routing, &[("set", "en"), ("bucket", bucket)]);
-        assert_eq!(row["sentences"], n, "{bucket}");
-    }
-    // The three longer sentences are plain English and reach text_en (measured;
-    // whatlang decides). "Thanks!" is too short to matter here either way.
-    let long = ["21-60", "61-140", ">140"];
-    for bucket in long {
+    // The built-in `routed` runs with its own detector, lingua, and with
+    // whatlang: the same rows for each.
+    for detector in ["lingua", "whatlang"] {
+        // data/ud/en.sentences.tsv: 7, 40, 99 and 173 chars, one per bucket.
+        for (bucket, n) in
+            [("all", "4"), ("<=20", "1"), ("21-60", "1"), ("61-140", "1"), (">140", "1")]
+        {
+            let row = find(&routing, &[("detector", detector), ("set", "en"), ("bucket", bucket)]);
+            assert_eq!(row["sentences"], n, "{detector} {bucket}");
+        }
+        // The three longer sentences are plain English and reach text_en
+        // (measured with both detectors). "Thanks!" is too short to matter
+        // here either way.
+        for bucket in ["21-60", "61-140", ">140"] {
+            let keys = [("detector", detector), ("set", "en"), ("bucket", bucket)];
+            assert_eq!(find(&routing, &keys)["correct"], "1", "{detector} {bucket}");
+        }
+        // The detector's cost is measured once per set, on the `all` row.
+        let all = find(&routing, &[("detector", detector), ("set", "en"), ("bucket", "all")]);
+        assert!(num(all, "micros_per_sentence") > 0.0, "{detector}");
+        let short = find(&routing, &[("detector", detector), ("set", "en"), ("bucket", "<=20")]);
+        assert_eq!(short["micros_per_sentence"], "", "{detector}");
+        // Russian is not among the routed chain's languages: not routable,
+        // never correct, and (the rule for other languages) sent to the
+        // fallback field.
+        let ru = find(&routing, &[("detector", detector), ("set", "ru"), ("bucket", "all")]);
+        assert_eq!((ru["collection"].as_str(), ru["routable"].as_str()), ("ud_pud", "no"));
         assert_eq!(
-            find(&routing, &[("set", "en"), ("bucket", bucket)])["correct"],
-            "1",
-            "{bucket}"
+            (ru["sentences"].as_str(), ru["correct"].as_str(), ru["to_fallback"].as_str()),
+            ("2", "0", "2")
         );
+        let confusion = rows(&out.join("diagnostics-confusion.csv"));
+        let ru_rows: Vec<(&str, &str)> = confusion
+            .iter()
+            .filter(|r| r["set"] == "ru" && r["detector"] == detector)
+            .map(|r| (r["routed_to"].as_str(), r["sentences"].as_str()))
+            .collect();
+        assert_eq!(ru_rows, [("other", "2")], "{detector}");
     }
-    // Russian is not among the routed chain's languages: not routable, never correct.
-    let ru = find(&routing, &[("set", "ru"), ("bucket", "all")]);
-    assert_eq!((ru["collection"].as_str(), ru["routable"].as_str()), ("ud_pud", "no"));
-    assert_eq!((ru["sentences"].as_str(), ru["correct"].as_str()), ("2", "0"));
-    let confusion = rows(&out.join("diagnostics-confusion.csv"));
-    let ru_rows: u32 = confusion
-        .iter()
-        .filter(|r| r["set"] == "ru")
-        .map(|r| r["sentences"].parse::<u32>().expect("count"))
-        .sum();
-    assert_eq!(ru_rows, 2);
 
     let seg = rows(&out.join("diagnostics-segmentation.csv"));
     assert_eq!(seg.len(), 1, "one chain with a hashtags step, one gold set, one source");
@@ -426,15 +438,9 @@ fn shared_data() -> Option<PathBuf> {
 }
 
 /// The README's Diagnostics command (run from the repository root): the
-/// built-in chains plus `routed_all` of `chains/all_languages.toml`, which
-/// routes all ten UD languages; the default English frequency list.
-const README_VET: [&str; 5] = [
-    "vet",
-    "--chain-file",
-    "chains/all_languages.toml",
-    "--chains",
-    "standard,stemmed,hashtag,routed_all",
-];
+/// built-in chains (`routed` also runs with whatlang, the other detector);
+/// the default English frequency list.
+const README_VET: [&str; 3] = ["vet", "--chains", "standard,stemmed,hashtag,routed"];
 
 #[test]
 fn full_pass_over_the_shared_data() {
@@ -461,39 +467,64 @@ fn full_pass_over_the_shared_data() {
 
     let conflation = rows(&out.join("diagnostics-conflation.csv"));
     let routing = rows(&out.join("diagnostics-routing.csv"));
+    let routed = ["en", "de", "fr", "es", "it-pud", "pt", "nl"];
     for set in ["en", "de", "fr", "es", "it-pud", "pt", "nl", "sv", "ru", "tr"] {
         let standard = find(&conflation, &[("set", set), ("chain", "standard")]);
         let stemmed = find(&conflation, &[("set", set), ("chain", "stemmed")]);
-        let keys = [("chain", "routed_all"), ("collection", "ud"), ("set", set)];
-        let bucket = |b: &str| {
-            let mut k = keys.to_vec();
-            k.push(("bucket", b));
-            let row = find(&routing, &k);
-            match row["accuracy"].parse::<f64>() {
-                Ok(a) => format!("{:.1}% ({})", 100.0 * a, row["sentences"]),
-                Err(_) => format!("– ({})", row["sentences"]),
-            }
-        };
         report_line(&format!(
-            "{set:>6}: UI {:.4} → {:.4}, OI {:.2e} → {:.2e}; routed_all {} | {} | {} | {} | {}",
+            "{set:>6}: UI {:.4} → {:.4}, OI {:.2e} → {:.2e}",
             num(standard, "ui"),
             num(stemmed, "ui"),
             num(standard, "oi"),
             num(stemmed, "oi"),
-            bucket("all"),
-            bucket("<=20"),
-            bucket("21-60"),
-            bucket("61-140"),
-            bucket(">140"),
         ));
         // Measured properties: each language's own stemmer conflates more
         // (lower UI) at the price of more wrong merges (higher OI).
         assert!(num(stemmed, "ui") < num(standard, "ui"), "{set}");
         assert!(num(stemmed, "oi") > num(standard, "oi"), "{set}");
-        // routed_all lists all ten languages (chains/all_languages.toml).
-        let mut all = keys.to_vec();
-        all.push(("bucket", "all"));
-        assert_eq!(find(&routing, &all)["routable"], "yes", "{set}");
+        for detector in ["whatlang", "lingua"] {
+            let keys = [("chain", "routed"), ("detector", detector), ("collection", "ud")];
+            let row = |b: &str| {
+                let mut k = keys.to_vec();
+                k.extend([("set", set), ("bucket", b)]);
+                find(&routing, &k)
+            };
+            let listed = routed.contains(&set);
+            // Routed right: the own field for a routed language, the
+            // fallback for the others.
+            let right = |r: &BTreeMap<String, String>| {
+                let n: f64 = num(r, "sentences");
+                let k: f64 = num(r, if listed { "correct" } else { "to_fallback" });
+                (k, n)
+            };
+            let cell = |b: &str| {
+                let (k, n) = right(row(b));
+                if n > 0.0 {
+                    format!("{:.1}% ({n})", 100.0 * k / n)
+                } else {
+                    "– (0)".to_string()
+                }
+            };
+            report_line(&format!(
+                "        {detector:>8} {}: {} | {} | {} | {} | {} | {:.0} µs/sentence",
+                if listed { "routed" } else { "to fallback" },
+                cell("all"),
+                cell("<=20"),
+                cell("21-60"),
+                cell("61-140"),
+                cell(">140"),
+                num(row("all"), "micros_per_sentence"),
+            ));
+            assert_eq!(row("all")["routable"], if listed { "yes" } else { "no" }, "{set}");
+            if !listed {
+                // Issue 11's floor: unrouted languages reach the fallback
+                // ≥ 95% of the time above 60 characters.
+                let (k1, n1) = right(row("61-140"));
+                let (k2, n2) = right(row(">140"));
+                let share = (k1 + k2) / (n1 + n2);
+                assert!(share >= 0.95, "{detector} {set}: {share:.4}");
+            }
+        }
     }
     let seg = rows(&out.join("diagnostics-segmentation.csv"));
     for row in &seg {
