@@ -396,6 +396,16 @@ pub enum PostRouting {
     Detected,
 }
 
+impl PostRouting {
+    /// The name used in chain files.
+    pub fn as_str(self) -> &'static str {
+        match self {
+            PostRouting::Declared => "declared",
+            PostRouting::Detected => "detected",
+        }
+    }
+}
+
 /// How a routed chain finds a query's language (its field).
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Hash, Serialize, Deserialize)]
 #[serde(rename_all = "snake_case")]
@@ -406,6 +416,16 @@ pub enum QueryRouting {
     Declared,
     /// The detected language, else the fallback field.
     Detected,
+}
+
+impl QueryRouting {
+    /// The name used in chain files.
+    pub fn as_str(self) -> &'static str {
+        match self {
+            QueryRouting::Declared => "declared",
+            QueryRouting::Detected => "detected",
+        }
+    }
 }
 
 /// Which fields a routed chain's query searches, once its language is known.

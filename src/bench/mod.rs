@@ -412,8 +412,8 @@ fn routing_info(
     };
     Some(RoutingInfo {
         detector,
-        posts: serde_plain(&route.posts),
-        queries: serde_plain(&route.queries),
+        posts: route.posts.as_str().to_string(),
+        queries: route.queries.as_str().to_string(),
         search: route.search.as_str().to_string(),
         fusion: route.fusion.as_str().to_string(),
         fallback_posts: route.fallback_posts.as_str().to_string(),
@@ -421,14 +421,6 @@ fn routing_info(
         queries_run: queries.len(),
         queries_without_branch,
     })
-}
-
-/// A unit enum's serde name (`declared`).
-fn serde_plain<T: serde::Serialize>(value: &T) -> String {
-    serde_json::to_value(value)
-        .ok()
-        .and_then(|v| v.as_str().map(str::to_string))
-        .unwrap_or_default()
 }
 
 /// Build every chain, learning the hashtag word frequencies from the posts
