@@ -48,6 +48,9 @@ pub struct EvalOptions {
     pub stats: StatSettings,
     /// The system others are compared with (default: the first).
     pub baseline: Option<ChainName>,
+    /// Worker threads (≥ 1) for building, searching and the statistics.
+    /// Outputs never depend on it.
+    pub threads: usize,
 }
 
 /// What `postassay run` does.

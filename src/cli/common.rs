@@ -54,6 +54,10 @@ pub struct EvalFlags {
     /// Significance level for the "significant" marks.
     #[arg(long, value_name = "A", default_value_t = StatSettings::default().alpha)]
     pub alpha: f64,
+    /// Worker threads for building, searching and the statistics (default:
+    /// every core). Outputs do not depend on it.
+    #[arg(long, value_name = "N")]
+    pub threads: Option<usize>,
     /// Directory for the reports (created when missing).
     #[arg(long, value_name = "DIR", default_value = DEFAULT_OUT)]
     pub out: PathBuf,
@@ -77,8 +81,15 @@ impl EvalFlags {
         if self.permutations == 0 {
             return Err(Error::usage("--permutations: expected an integer ≥ 1, found 0"));
         }
+        if self.threads == Some(0) {
+            return Err(Error::usage("--threads: expected an integer ≥ 1, found 0"));
+        }
+        let threads = self.threads.unwrap_or_else(|| {
+            std::thread::available_parallelism().map(std::num::NonZeroUsize::get).unwrap_or(1)
+        });
         let metrics = eval::parse_metric_list(&self.metrics)?;
         Ok(EvalOptions {
+            threads,
             metrics,
             eval: EvalSettings {
                 relevant_from: self.relevant_from,
