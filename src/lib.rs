@@ -10,6 +10,7 @@ pub mod error;
 pub mod ids;
 pub mod input;
 pub mod plural;
+pub mod progress;
 
 pub use error::{Error, ErrorKind, Result};
 pub mod analysis;

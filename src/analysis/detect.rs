@@ -411,16 +411,36 @@ impl LangDetector {
     /// threads spent, in seconds (the threads' own clocks where the system
     /// has them, else their wall-clock time), for the cost per text.
     pub fn detect_all_timed(&self, texts: &[&str]) -> (Vec<Option<Detection>>, f64) {
-        const THREADS: usize = 2;
+        self.detect_all_with(texts, 2, &|_| {})
+    }
+
+    /// [`detect_all_timed`](Self::detect_all_timed) on `threads` threads
+    /// (the answers do not depend on it), telling `tick(n)` of every `n`
+    /// texts detected.
+    pub fn detect_all_with(
+        &self,
+        texts: &[&str],
+        threads: usize,
+        tick: &(dyn Fn(u64) + Sync),
+    ) -> (Vec<Option<Detection>>, f64) {
+        /// Texts between two ticks.
+        const TICK: usize = 256;
         let timed = |part: &[&str]| {
             let clock = ThreadClock::start();
-            let found: Vec<Option<Detection>> = part.iter().map(|t| self.detect(t)).collect();
+            let mut found = Vec::with_capacity(part.len());
+            for (i, t) in part.iter().enumerate() {
+                found.push(self.detect(t));
+                if (i + 1).is_multiple_of(TICK) {
+                    tick(TICK as u64);
+                }
+            }
+            tick((part.len() % TICK) as u64);
             (found, clock.seconds())
         };
-        if texts.len() < 64 {
+        if texts.len() < 64 || threads <= 1 {
             return timed(texts);
         }
-        let chunk = texts.len().div_ceil(THREADS);
+        let chunk = texts.len().div_ceil(threads);
         std::thread::scope(|scope| {
             let handles: Vec<_> =
                 texts.chunks(chunk).map(|part| scope.spawn(move || timed(part))).collect();

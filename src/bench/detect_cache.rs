@@ -15,11 +15,9 @@
 //! an empty line for no detection); confidences are written in Rust's
 //! shortest round-trip form, so a reload gives bit-identical values.
 //!
-//! Location ([`DetectCache::from_env`]): `$POSTASSAY_CACHE_DIR` when set,
-//! else the user's cache directory (`$XDG_CACHE_HOME/postassay/detections`,
-//! else `$HOME/.cache/postassay/detections`; on Windows
-//! `%LOCALAPPDATA%\postassay\cache\detections`). Setting
-//! `POSTASSAY_NO_CACHE` to anything but empty or `0` turns the cache off.
+//! Location: `detections/` in the cache directory ([`cache_root_from_env`],
+//! or `run --cache-dir`); `run --no-cache` or `POSTASSAY_NO_CACHE` turns the
+//! cache off.
 //! Files are never evicted; the directory can be deleted at any time. A
 //! missing, unreadable or damaged file is a miss: the texts are detected
 //! again and the file rewritten (atomically, through a temporary file).
@@ -62,6 +60,38 @@ const PROBES: &[&str] = &[
     "12:30 !!! 🎉",
 ];
 
+/// The cache directory the environment asks for: `$POSTASSAY_CACHE_DIR`
+/// when set, else the user's cache directory (`$XDG_CACHE_HOME/postassay`,
+/// else `$HOME/.cache/postassay`; on Windows `%LOCALAPPDATA%\postassay\cache`);
+/// `None` when `POSTASSAY_NO_CACHE` is set to anything but empty or `0`, or
+/// no such directory can be found. Detections are kept in its
+/// `detections/`, chain indexes in its `indexes/`
+/// ([`crate::index::cache`]).
+pub fn cache_root_from_env() -> Option<PathBuf> {
+    cache_root_from_vars(|name| std::env::var_os(name).map(PathBuf::from))
+}
+
+/// [`cache_root_from_env`] with the variables read by `var`.
+pub fn cache_root_from_vars(var: impl Fn(&str) -> Option<PathBuf>) -> Option<PathBuf> {
+    let set = |name: &str| var(name).filter(|v| !v.as_os_str().is_empty());
+    if set(NO_CACHE_ENV).is_some_and(|v| v.as_os_str() != "0") {
+        return None;
+    }
+    if let Some(dir) = set(CACHE_DIR_ENV) {
+        return Some(dir);
+    }
+    // XDG Base Directory Specification: a relative $XDG_CACHE_HOME is
+    // invalid and must be ignored.
+    if cfg!(windows) {
+        set("LOCALAPPDATA").filter(|p| p.is_absolute()).map(|p| p.join("postassay/cache"))
+    } else {
+        set("XDG_CACHE_HOME")
+            .filter(|p| p.is_absolute())
+            .or_else(|| set("HOME").filter(|p| p.is_absolute()).map(|h| h.join(".cache")))
+            .map(|p| p.join("postassay"))
+    }
+}
+
 /// A directory of cached detections.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct DetectCache {
@@ -92,34 +122,6 @@ impl DetectCache {
     pub fn with_min_texts(mut self, min_texts: usize) -> DetectCache {
         self.min_texts = min_texts;
         self
-    }
-
-    /// The cache the environment asks for (see the module docs); `None` when
-    /// it is turned off or no cache directory can be found.
-    pub fn from_env() -> Option<DetectCache> {
-        Self::from_vars(|name| std::env::var_os(name).map(PathBuf::from))
-    }
-
-    /// [`from_env`](Self::from_env) with the variables read by `var`.
-    pub fn from_vars(var: impl Fn(&str) -> Option<PathBuf>) -> Option<DetectCache> {
-        let set = |name: &str| var(name).filter(|v| !v.as_os_str().is_empty());
-        if set(NO_CACHE_ENV).is_some_and(|v| v.as_os_str() != "0") {
-            return None;
-        }
-        if let Some(dir) = set(CACHE_DIR_ENV) {
-            return Some(DetectCache::new(dir));
-        }
-        // XDG Base Directory Specification: a relative $XDG_CACHE_HOME is
-        // invalid and must be ignored.
-        let base = if cfg!(windows) {
-            set("LOCALAPPDATA").filter(|p| p.is_absolute()).map(|p| p.join("postassay/cache"))
-        } else {
-            set("XDG_CACHE_HOME")
-                .filter(|p| p.is_absolute())
-                .or_else(|| set("HOME").filter(|p| p.is_absolute()).map(|h| h.join(".cache")))
-                .map(|p| p.join("postassay"))
-        };
-        base.map(|b| DetectCache::new(b.join("detections")))
     }
 
     /// The directory.
@@ -387,27 +389,20 @@ mod tests {
         let vars = |pairs: &'static [(&'static str, &'static str)]| {
             move |name: &str| pairs.iter().find(|(k, _)| *k == name).map(|(_, v)| PathBuf::from(v))
         };
-        let dir = |c: Option<DetectCache>| c.map(|c| c.dir().to_path_buf());
         assert_eq!(
-            dir(DetectCache::from_vars(vars(&[(CACHE_DIR_ENV, "here"), ("HOME", "/h")]))),
+            cache_root_from_vars(vars(&[(CACHE_DIR_ENV, "here"), ("HOME", "/h")])),
             Some(PathBuf::from("here"))
         );
-        assert_eq!(DetectCache::from_vars(vars(&[(NO_CACHE_ENV, "1"), ("HOME", "/h")])), None);
-        assert_eq!(DetectCache::from_vars(vars(&[])), None);
+        assert_eq!(cache_root_from_vars(vars(&[(NO_CACHE_ENV, "1"), ("HOME", "/h")])), None);
+        assert_eq!(cache_root_from_vars(vars(&[])), None);
         if !cfg!(windows) {
-            let off0 = DetectCache::from_vars(vars(&[(NO_CACHE_ENV, "0"), ("HOME", "/h")]));
-            assert_eq!(dir(off0), Some(PathBuf::from("/h/.cache/postassay/detections")));
+            let off0 = cache_root_from_vars(vars(&[(NO_CACHE_ENV, "0"), ("HOME", "/h")]));
+            assert_eq!(off0, Some(PathBuf::from("/h/.cache/postassay")));
             let xdg = vars(&[("XDG_CACHE_HOME", "/x"), ("HOME", "/h")]);
-            assert_eq!(
-                dir(DetectCache::from_vars(xdg)),
-                Some(PathBuf::from("/x/postassay/detections"))
-            );
+            assert_eq!(cache_root_from_vars(xdg), Some(PathBuf::from("/x/postassay")));
             // A relative XDG_CACHE_HOME is ignored (XDG Base Directory Specification).
             let rel = vars(&[("XDG_CACHE_HOME", "rel"), ("HOME", "/h")]);
-            assert_eq!(
-                dir(DetectCache::from_vars(rel)),
-                Some(PathBuf::from("/h/.cache/postassay/detections"))
-            );
+            assert_eq!(cache_root_from_vars(rel), Some(PathBuf::from("/h/.cache/postassay")));
         }
     }
 }

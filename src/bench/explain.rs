@@ -90,11 +90,16 @@ pub fn explain(plan: &ExplainPlan) -> Result<Explanation> {
     let post = &posts[post_pos];
     let analyzers = super::build_analyzers(&plan.chains, &posts)?;
     // Detect as `run` does: once per detector setting, through the cache.
+    let cache = super::detect_cache::cache_root_from_env()
+        .map(|root| super::detect_cache::DetectCache::new(root.join("detections")));
+    let threads = std::thread::available_parallelism().map_or(1, std::num::NonZeroUsize::get);
     let detections = super::Detections::compute(
         &analyzers,
         &posts,
         std::slice::from_ref(query),
-        &mut |_: &str| {},
+        cache.as_ref(),
+        threads,
+        &crate::progress::Progress::quiet(),
     );
     let mut chains = Vec::new();
     for analyzer in &analyzers {

@@ -18,6 +18,7 @@ pub mod moved;
 
 use std::collections::{BTreeMap, BTreeSet};
 use std::path::{Path, PathBuf};
+use std::sync::atomic::{AtomicBool, AtomicUsize, Ordering};
 use std::time::Instant;
 
 use self::detect_cache::DetectCache;
@@ -28,8 +29,10 @@ use crate::diagnose::{self, ChainUnderTest, DiagnosePlan, Diagnostics, FreqSourc
 use crate::error::{Error, Result};
 use crate::eval::{self, EvalSettings, Gain, Metric, SystemScores};
 use crate::ids::{ChainName, QueryId};
-use crate::index::ChainIndex;
+use crate::index::cache::{self as index_cache, IndexCache};
+use crate::index::{BuildCost, ChainIndex};
 use crate::input::{self, Judgments, LangCode, Post, Query, Run};
+use crate::progress::Progress;
 use crate::report::model::{
     Basis, ChainTiming, Cost, Counts, Coverage, InputFile, PerQuery, QueryValues, Report,
     RoutingInfo, Settings, SystemInfo, Timing, ToolInfo, SCHEMA_VERSION,
@@ -74,6 +77,10 @@ pub struct RunPlan {
     pub options: EvalOptions,
     /// Diagnose the chains on open data too (`run --vet`).
     pub diagnostics: Option<RunDiagnostics>,
+    /// Cache directory of language detections (`detections/`) and chain
+    /// indexes (`indexes/`); `None` caches nothing. See
+    /// [`detect_cache::cache_root_from_env`].
+    pub cache: Option<PathBuf>,
 }
 
 /// How `run --vet` diagnoses the chains it runs: every section
@@ -110,8 +117,8 @@ pub struct BenchOutput {
 }
 
 /// Run the bench: index the corpus once per chain, search, evaluate, compare.
-/// `progress` receives one line per step (the CLI prints it on stderr).
-pub fn run(plan: &RunPlan, progress: &mut dyn FnMut(&str)) -> Result<BenchOutput> {
+/// `progress` shows each step (the CLI draws it on stderr).
+pub fn run(plan: &RunPlan, progress: &Progress) -> Result<BenchOutput> {
     let started = Instant::now();
     if plan.chains.is_empty() {
         return Err(Error::usage("no chain to run"));
@@ -122,48 +129,57 @@ pub fn run(plan: &RunPlan, progress: &mut dyn FnMut(&str)) -> Result<BenchOutput
     let queries = input::read_queries(&plan.queries)?;
     let posts = input::read_corpus(&plan.corpus)?;
     check_settings(&plan.judgments, &judgments, &plan.options.eval)?;
-    progress(&format!(
-        "read {} posts, {} queries, {} judgments",
+    progress.line(&format!(
+        "read {} posts, {} queries, {} judgments in {:.2} s",
         posts.len(),
         queries.len(),
-        judgments.len()
+        judgments.len(),
+        started.elapsed().as_secs_f64()
     ));
+    let mut line = |l: &str| progress.line(l);
     let diagnostics = match &plan.diagnostics {
-        Some(settings) => Some(diagnose_chains(plan, settings, progress)?),
+        Some(settings) => Some(diagnose_chains(plan, settings, &mut line)?),
         None => None,
     };
 
+    let corpus_input = hash_input("corpus", &plan.corpus)?;
     let analyzers = build_analyzers(&plan.chains, &posts)?;
-    let detections = Detections::compute(&analyzers, &posts, &queries, progress);
+    let detect_cache = plan.cache.as_ref().map(|root| DetectCache::new(root.join("detections")));
+    let detections = Detections::compute(
+        &analyzers,
+        &posts,
+        &queries,
+        detect_cache.as_ref(),
+        plan.options.threads,
+        progress,
+    );
+    let index_cache = plan.cache.as_ref().map(|root| IndexCache::new(root.join("indexes")));
+    let built = build_and_search(&ChainWork {
+        analyzers: &analyzers,
+        chains: &plan.chains,
+        posts: &posts,
+        queries: &queries,
+        detections: &detections,
+        corpus_sha256: &corpus_input.sha256,
+        depth: plan.depth,
+        threads: plan.options.threads,
+        cache: index_cache.as_ref(),
+        progress,
+    })?;
 
     let mut runs = Vec::new();
     let mut infos = Vec::new();
     let mut timings = Vec::new();
-    for analyzer in &analyzers {
+    for (analyzer, chain) in analyzers.iter().zip(built) {
         let (post_det, query_det) = detections.for_analyzer(analyzer);
-        let index = ChainIndex::build(analyzer, &posts, post_det)?;
-        let outcome = search::search_chain(&index, analyzer, &queries, query_det, plan.depth)?;
-        let cost = index.cost();
-        progress(&format!(
-            "chain {}: indexed in {:.2} s, {} distinct terms",
-            analyzer.name(),
-            cost.build_seconds,
-            cost.distinct_terms
-        ));
-        let (mean_ms, p95_ms) = latency_summary(&outcome.latencies_ms);
-        timings.push(ChainTiming {
-            name: analyzer.name().clone(),
-            build_seconds: cost.build_seconds,
-            query_ms_mean: mean_ms,
-            query_ms_p95: p95_ms,
-        });
+        timings.push(chain.timing);
         infos.push(SystemInfo {
             name: analyzer.name().clone(),
-            cost: Some(Cost::from(cost)),
+            cost: Some(Cost::from(&chain.cost)),
             routing: routing_info(analyzer, &posts, post_det, &queries, query_det),
             coverage: Coverage::default(),
         });
-        runs.push((analyzer.name().clone(), outcome.run));
+        runs.push((analyzer.name().clone(), chain.run));
     }
 
     // Judged queries missing from the query file cannot be run: they are left
@@ -185,7 +201,7 @@ pub fn run(plan: &RunPlan, progress: &mut dyn FnMut(&str)) -> Result<BenchOutput
     }
 
     let mut inputs = vec![
-        hash_input("corpus", &plan.corpus)?,
+        corpus_input,
         hash_input("queries", &plan.queries)?,
         hash_input("judgments", &plan.judgments)?,
     ];
@@ -253,6 +269,170 @@ pub fn run(plan: &RunPlan, progress: &mut dyn FnMut(&str)) -> Result<BenchOutput
     Ok(out)
 }
 
+/// What [`build_and_search`] works on.
+struct ChainWork<'a> {
+    analyzers: &'a [Analyzer],
+    chains: &'a [ChainSpec],
+    posts: &'a [Post],
+    queries: &'a [Query],
+    detections: &'a Detections,
+    corpus_sha256: &'a str,
+    depth: usize,
+    threads: usize,
+    cache: Option<&'a IndexCache>,
+    progress: &'a Progress,
+}
+
+/// One chain's index cost, run and timing.
+struct ChainDone {
+    cost: BuildCost,
+    run: Run,
+    timing: ChainTiming,
+}
+
+/// Build (or read from the cache) and search every chain, `work.threads`
+/// chains at a time; results in chain order. Each index is still built by
+/// one writer thread ([`crate::index::deterministic_writer`]), so no output
+/// depends on the thread count. The first failing chain, in chain order,
+/// gives the error.
+fn build_and_search(work: &ChainWork<'_>) -> Result<Vec<ChainDone>> {
+    let total = work.analyzers.len();
+    let next = AtomicUsize::new(0);
+    let failed = AtomicBool::new(false);
+    let workers = work.threads.clamp(1, total.max(1));
+    let mut slots: Vec<Option<Result<ChainDone>>> = (0..total).map(|_| None).collect();
+    let finished: Vec<Vec<(usize, Result<ChainDone>)>> = std::thread::scope(|scope| {
+        let handles: Vec<_> = (0..workers)
+            .map(|_| {
+                scope.spawn(|| {
+                    let mut done = Vec::new();
+                    loop {
+                        let i = next.fetch_add(1, Ordering::Relaxed);
+                        if i >= total || failed.load(Ordering::Relaxed) {
+                            break done;
+                        }
+                        let result = one_chain(work, i);
+                        if result.is_err() {
+                            failed.store(true, Ordering::Relaxed);
+                        }
+                        done.push((i, result));
+                    }
+                })
+            })
+            .collect();
+        handles
+            .into_iter()
+            .map(|h| h.join().unwrap_or_else(|e| std::panic::resume_unwind(e)))
+            .collect()
+    });
+    for (i, result) in finished.into_iter().flatten() {
+        if let Some(slot) = slots.get_mut(i) {
+            *slot = Some(result);
+        }
+    }
+    let mut out = Vec::with_capacity(total);
+    for slot in slots {
+        match slot {
+            Some(result) => out.push(result?),
+            // Left undone because an earlier-taken chain failed; that
+            // failure is in a slot before or after this one.
+            None => continue,
+        }
+    }
+    if out.len() < total {
+        return Err(Error::index("a chain failed without an error".to_string()));
+    }
+    Ok(out)
+}
+
+/// Build (or read from the cache) and search chain `i` of `work`.
+fn one_chain(work: &ChainWork<'_>, i: usize) -> Result<ChainDone> {
+    let (Some(analyzer), Some(spec)) = (work.analyzers.get(i), work.chains.get(i)) else {
+        return Err(Error::index(format!("no chain {i}")));
+    };
+    let progress = work.progress;
+    let name = analyzer.name();
+    let (post_det, query_det) = work.detections.for_analyzer(analyzer);
+    let started = Instant::now();
+    let building =
+        progress.step(&format!("chain {name}: indexing"), work.posts.len() as u64, "posts");
+    let tick = |n| building.advance(n);
+    let (index, from_cache) = match work.cache {
+        None => (ChainIndex::build_ticking(analyzer, work.posts, post_det, &tick)?, false),
+        Some(cache) => {
+            let definition = serde_json::to_string(spec)
+                .map_err(|e| Error::usage(format!("chain as JSON: {e}")))?;
+            let key = index_cache::key(&index_cache::KeyParts {
+                tool_version: env!("CARGO_PKG_VERSION"),
+                corpus_sha256: work.corpus_sha256,
+                chain_definition: &definition,
+                analyzer,
+                detections: post_det,
+            });
+            match cache.open(&key, analyzer, work.posts) {
+                Some(index) => (index, true),
+                None => match cache.build(
+                    &key,
+                    work.corpus_sha256,
+                    analyzer,
+                    work.posts,
+                    post_det,
+                    &tick,
+                ) {
+                    Ok(index) => (index, false),
+                    Err(e) => {
+                        progress.line(&format!(
+                            "warning: chain {name}: could not keep the index in the cache ({e}); \
+                             building it in a temporary directory"
+                        ));
+                        (ChainIndex::build_ticking(analyzer, work.posts, post_det, &tick)?, false)
+                    }
+                },
+            }
+        }
+    };
+    let seconds = started.elapsed().as_secs_f64();
+    let cost = index.cost().clone();
+    building.finish(
+        progress,
+        &format!(
+            "chain {name}: {} in {seconds:.2} s, {} distinct terms",
+            if from_cache { "index read from the cache" } else { "indexed" },
+            cost.distinct_terms
+        ),
+    );
+    let searching =
+        progress.step(&format!("chain {name}: searching"), work.queries.len() as u64, "queries");
+    let outcome = search::search_chain_ticking(
+        &index,
+        analyzer,
+        work.queries,
+        query_det,
+        work.depth,
+        &|n| searching.advance(n),
+    )?;
+    let seconds = searching.seconds();
+    searching.finish(
+        progress,
+        &format!("chain {name}: searched {} queries in {seconds:.2} s", work.queries.len()),
+    );
+    let (mean_ms, p95_ms) = latency_summary(&outcome.latencies_ms);
+    let build_seconds = cost.build_seconds;
+    Ok(ChainDone {
+        cost,
+        run: outcome.run,
+        timing: ChainTiming {
+            name: name.clone(),
+            // A cached index reports the build time measured when it was
+            // built, so chains stay comparable whatever the cache held.
+            build_seconds,
+            from_cache,
+            query_ms_mean: mean_ms,
+            query_ms_p95: p95_ms,
+        },
+    })
+}
+
 /// The diagnostics of `run --vet`: the run's chains as indexed (the
 /// built-in `stemmed` keeps the run's one stemming language, unlike `vet`,
 /// which gives each language its own), every section, word frequencies
@@ -277,7 +457,7 @@ fn diagnose_chains(
 
 /// Score existing runs against judgments. `progress` receives the report's
 /// warnings (the CLI prints them on stderr).
-pub fn score(plan: &ScorePlan, progress: &mut dyn FnMut(&str)) -> Result<BenchOutput> {
+pub fn score(plan: &ScorePlan, progress: &Progress) -> Result<BenchOutput> {
     let started = Instant::now();
     if plan.runs.is_empty() {
         return Err(Error::usage("give at least one --run NAME=FILE"));
@@ -362,9 +542,9 @@ fn evaluated_not_in(population: &eval::QueryPopulation, queries: &[Query]) -> Ve
 /// `warning: …`, so whatever was collected into the report (from the input
 /// readers, the population, the evaluation) is also seen on stderr, unless
 /// the CLI's `--quiet` silences progress. The report keeps them unchanged.
-fn announce_warnings(report: &Report, progress: &mut dyn FnMut(&str)) {
+fn announce_warnings(report: &Report, progress: &Progress) {
     for w in &report.warnings {
-        progress(&format!("warning: {}", w.replace('\n', " ")));
+        progress.line(&format!("warning: {}", w.replace('\n', " ")));
     }
 }
 
@@ -652,23 +832,34 @@ impl Detections {
         format!("{d:?}")
     }
 
-    /// Detect with each distinct detector, reusing the detection cache the
-    /// environment asks for ([`DetectCache::from_env`]).
+    /// Detect with each distinct detector on `threads` threads, reusing
+    /// `cache` when given.
     fn compute(
         analyzers: &[Analyzer],
         posts: &[Post],
         queries: &[Query],
-        progress: &mut dyn FnMut(&str),
+        cache: Option<&DetectCache>,
+        threads: usize,
+        progress: &Progress,
     ) -> Detections {
-        let cache = DetectCache::from_env();
-        Self::compute_with(
+        let detectors: BTreeSet<String> =
+            analyzers.iter().filter_map(Analyzer::detector).map(Self::key).collect();
+        if detectors.is_empty() {
+            return Detections { by_detector: BTreeMap::new() };
+        }
+        let texts = (posts.len() + queries.len()) * detectors.len();
+        let step = progress.step("detecting languages", texts as u64, "texts");
+        let mut line = |l: &str| progress.line(l);
+        let found = Self::compute_with(
             analyzers,
             posts,
             queries,
-            cache.as_ref(),
-            &|d, texts| d.detect_all(texts),
-            progress,
-        )
+            cache,
+            &|d, texts| d.detect_all_with(texts, threads, &|n| step.advance(n)).0,
+            &mut line,
+        );
+        drop(step);
+        found
     }
 
     /// [`compute`](Self::compute) with an explicit cache and detection.

@@ -11,6 +11,7 @@ use postassay::error::Error;
 use postassay::eval::{self, EvalSettings, Gain};
 use postassay::ids::ChainName;
 use postassay::input::LangCode;
+use postassay::progress::Progress;
 use postassay::stats::StatSettings;
 
 /// Where reports go when `--out` is not given.
@@ -109,14 +110,33 @@ impl EvalFlags {
         })
     }
 
-    /// A progress printer honouring `--quiet`.
-    pub fn progress(&self) -> impl FnMut(&str) {
-        let quiet = self.quiet;
-        move |line: &str| {
-            if !quiet {
-                eprintln!("postassay: {line}");
-            }
+    /// Progress on stderr honouring `--quiet` (bars on a terminal, plain
+    /// lines otherwise).
+    pub fn progress(&self) -> Progress {
+        Progress::for_stderr(self.quiet)
+    }
+}
+
+/// Where language detections and chain indexes are cached.
+#[derive(Debug, Args)]
+pub struct CacheFlags {
+    /// Cache directory for language detections and chain indexes (default:
+    /// $POSTASSAY_CACHE_DIR, else the user's cache directory).
+    #[arg(long, value_name = "DIR", conflicts_with = "no_cache")]
+    pub cache_dir: Option<PathBuf>,
+    /// Neither read nor write the cache (also: POSTASSAY_NO_CACHE=1).
+    #[arg(long)]
+    pub no_cache: bool,
+}
+
+impl CacheFlags {
+    /// The cache directory, `None` when caching is off or no directory is
+    /// known.
+    pub fn root(&self) -> Option<PathBuf> {
+        if self.no_cache {
+            return None;
         }
+        self.cache_dir.clone().or_else(postassay::bench::detect_cache::cache_root_from_env)
     }
 }
 

@@ -3,6 +3,7 @@
 //! turns them into a typed plan and hands it to the library. No evaluation
 //! logic lives here.
 
+mod cache;
 mod common;
 mod explain;
 mod gate;
@@ -54,6 +55,9 @@ enum Command {
     /// Diagnose chains on open linguistic data: conflation against lemma
     /// classes, routing accuracy by length, hashtag segmentation accuracy.
     Vet(vet::VetArgs),
+    /// List the cached chain indexes with their size and age, or remove
+    /// them (`cache drop`).
+    Cache(cache::CacheArgs),
 }
 
 /// Run the parsed command line.
@@ -67,5 +71,6 @@ pub fn execute(cli: Cli) -> anyhow::Result<ExitCode> {
         Command::Pool(args) => pool::execute(args),
         Command::Judge(args) => judge::execute(args),
         Command::Vet(args) => vet::execute(args),
+        Command::Cache(args) => cache::execute(args),
     }
 }

@@ -12,7 +12,7 @@ use postassay::error::Error;
 use postassay::report;
 
 use super::common::{
-    resolve_data_dir, wrote_reports, ChainFlags, EvalFlags, InputFlags, DEFAULT_TOP,
+    resolve_data_dir, wrote_reports, CacheFlags, ChainFlags, EvalFlags, InputFlags, DEFAULT_TOP,
 };
 
 #[derive(Debug, Args)]
@@ -38,17 +38,19 @@ pub struct RunArgs {
     #[arg(long, value_name = "DIR", requires = "vet")]
     vet_data: Option<PathBuf>,
     #[command(flatten)]
+    cache: CacheFlags,
+    #[command(flatten)]
     eval: EvalFlags,
 }
 
 pub fn execute(args: RunArgs) -> anyhow::Result<ExitCode> {
     let plan = plan(&args)?;
     report::out_dir::check_out_dir(&args.eval.out)?;
-    let mut progress = args.eval.progress();
-    let out = bench::run(&plan, &mut progress)?;
+    let progress = args.eval.progress();
+    let out = bench::run(&plan, &progress)?;
     let runs: Vec<_> = out.runs.iter().map(|(n, r)| (n.clone(), r)).collect();
     report::write_outputs(&args.eval.out, &out.report, &runs)?;
-    progress(&wrote_reports(&args.eval.out));
+    progress.line(&wrote_reports(&args.eval.out));
     Ok(ExitCode::SUCCESS)
 }
 
@@ -66,6 +68,7 @@ fn plan(args: &RunArgs) -> Result<RunPlan, Error> {
         depth: args.depth,
         redact: args.redact,
         options: args.eval.options()?,
+        cache: args.cache.root(),
         diagnostics: if args.vet {
             Some(RunDiagnostics {
                 data: resolve_data_dir(args.vet_data.as_deref(), "--vet-data")?,

@@ -37,11 +37,11 @@ pub struct ScoreArgs {
 pub fn execute(args: ScoreArgs) -> anyhow::Result<ExitCode> {
     let plan = plan(&args)?;
     report::out_dir::check_out_dir(&args.eval.out)?;
-    let mut progress = args.eval.progress();
+    let progress = args.eval.progress();
     // The report's warnings come through `progress` (bench::score).
-    let out = bench::score(&plan, &mut progress)?;
+    let out = bench::score(&plan, &progress)?;
     report::write_outputs(&args.eval.out, &out.report, &[])?;
-    progress(&wrote_reports(&args.eval.out));
+    progress.line(&wrote_reports(&args.eval.out));
     Ok(ExitCode::SUCCESS)
 }
 

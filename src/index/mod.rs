@@ -12,11 +12,13 @@
 //! Each field's BM25 statistics are its own ([`FieldStatistics`]), as if
 //! each field were an index of its own.
 
+pub mod cache;
+
 use std::collections::{BTreeMap, HashSet};
-use std::path::Path;
+use std::path::{Path, PathBuf};
 use std::time::Instant;
 
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 use tantivy::indexer::NoMergePolicy;
 use tantivy::query::Bm25StatisticsProvider;
 use tantivy::schema::{
@@ -53,7 +55,7 @@ pub fn deterministic_writer(index: &Index) -> Result<IndexWriter<TantivyDocument
 }
 
 /// What building one chain's index cost.
-#[derive(Debug, Clone, Serialize, PartialEq)]
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct BuildCost {
     /// Wall-clock seconds to analyse and index every post and commit.
     pub build_seconds: f64,
@@ -68,8 +70,25 @@ pub struct BuildCost {
     pub posts_per_field: BTreeMap<String, u64>,
 }
 
-/// A built index for one chain, living in a temporary directory that is
-/// removed when this value is dropped.
+/// Where an index's files live.
+enum Home {
+    /// A temporary directory, removed when the index is dropped.
+    Temporary(tempfile::TempDir),
+    /// A directory that outlives the index (an [index cache](cache) entry).
+    Kept(PathBuf),
+}
+
+impl Home {
+    fn path(&self) -> &Path {
+        match self {
+            Home::Temporary(dir) => dir.path(),
+            Home::Kept(path) => path,
+        }
+    }
+}
+
+/// A built index for one chain, in a temporary directory removed when this
+/// value is dropped, or in an [index cache](cache) entry.
 pub struct ChainIndex {
     index: Index,
     reader: IndexReader,
@@ -77,46 +96,66 @@ pub struct ChainIndex {
     field_posts: Vec<u64>,
     ords: Vec<PostId>,
     cost: BuildCost,
-    _dir: tempfile::TempDir,
+    _home: Home,
 }
 
 impl ChainIndex {
-    /// Build the index of `posts` with `analyzer`. `detections[i]` is the
-    /// language detected for `posts[i]` (only read by routed chains; pass an
-    /// empty slice when the chain is not routed). One thread indexes, with
-    /// no merging ([`deterministic_writer`]).
+    /// Build the index of `posts` with `analyzer` in a temporary directory.
+    /// `detections[i]` is the language detected for `posts[i]` (only read by
+    /// routed chains; pass an empty slice when the chain is not routed). One
+    /// thread indexes, with no merging ([`deterministic_writer`]).
     pub fn build(
         analyzer: &Analyzer,
         posts: &[Post],
         detections: &[Option<Detection>],
     ) -> Result<ChainIndex> {
-        let started = Instant::now();
+        Self::build_ticking(analyzer, posts, detections, &|_| {})
+    }
+
+    /// [`build`](Self::build) into the empty directory `dir`, which the
+    /// index does not remove; `tick(n)` is told of every `n` posts indexed.
+    pub fn build_kept(
+        dir: &Path,
+        analyzer: &Analyzer,
+        posts: &[Post],
+        detections: &[Option<Detection>],
+        tick: &dyn Fn(u64),
+    ) -> Result<ChainIndex> {
+        Self::build_in(Home::Kept(dir.to_path_buf()), analyzer, posts, detections, tick)
+    }
+
+    /// [`build`](Self::build) in a temporary directory, telling `tick` of
+    /// the posts indexed.
+    pub fn build_ticking(
+        analyzer: &Analyzer,
+        posts: &[Post],
+        detections: &[Option<Detection>],
+        tick: &dyn Fn(u64),
+    ) -> Result<ChainIndex> {
         let dir = tempfile::Builder::new()
             .prefix("postassay-index-")
             .tempdir()
             .map_err(|e| Error::io(&std::env::temp_dir(), e))?;
+        Self::build_in(Home::Temporary(dir), analyzer, posts, detections, tick)
+    }
 
-        let mut builder = Schema::builder();
-        let ord_field = builder.add_u64_field(ORD_FIELD, NumericOptions::default().set_fast());
-        let mut fields = Vec::with_capacity(analyzer.fields().len());
-        for fa in analyzer.fields() {
-            let indexing = TextFieldIndexing::default()
-                .set_tokenizer(&tokenizer_name(analyzer, &fa.key))
-                .set_index_option(IndexRecordOption::WithFreqsAndPositions);
-            let options = TextOptions::default().set_indexing_options(indexing);
-            fields.push(builder.add_text_field(&fa.key, options));
-        }
-        let schema = builder.build();
-        let index = Index::create_in_dir(dir.path(), schema).map_err(tantivy_err)?;
-        for fa in analyzer.fields() {
-            index.tokenizers().register(&tokenizer_name(analyzer, &fa.key), fa.analyzer.clone());
-        }
+    fn build_in(
+        home: Home,
+        analyzer: &Analyzer,
+        posts: &[Post],
+        detections: &[Option<Detection>],
+        tick: &dyn Fn(u64),
+    ) -> Result<ChainIndex> {
+        /// Posts between two ticks.
+        const TICK: u64 = 4096;
+        let started = Instant::now();
+        let (index, fields) = create_index(home.path(), analyzer)?;
 
         let mut writer = deterministic_writer(&index)?;
         let mut posts_per_field: BTreeMap<String, u64> =
             analyzer.fields().iter().map(|f| (f.key.clone(), 0)).collect();
-        let mut ords = Vec::with_capacity(posts.len());
         let mut field_posts = vec![0u64; fields.len()];
+        let ord_field = index.schema().get_field(ORD_FIELD).map_err(tantivy_err)?;
         for (i, post) in posts.iter().enumerate() {
             let detected = detections.get(i).and_then(Option::as_ref);
             let mut doc = TantivyDocument::default();
@@ -133,29 +172,28 @@ impl ChainIndex {
                 doc.add_text(*field, &post.text);
             }
             writer.add_document(doc).map_err(tantivy_err)?;
-            ords.push(post.id.clone());
+            if (i as u64 + 1).is_multiple_of(TICK) {
+                tick(TICK);
+            }
         }
+        tick(posts.len() as u64 % TICK);
         writer.commit().map_err(tantivy_err)?;
         writer.wait_merging_threads().map_err(tantivy_err)?;
         let build_seconds = started.elapsed().as_secs_f64();
 
-        let reader = index
-            .reader_builder()
-            .reload_policy(ReloadPolicy::Manual)
-            .try_into()
-            .map_err(tantivy_err)?;
+        let reader = open_reader(&index)?;
         let searcher = reader.searcher();
         let distinct_terms = count_distinct_terms(&searcher, &fields)?;
         let total_tokens = count_tokens(&searcher, &fields)?;
         let mean_tokens_per_post =
             if posts.is_empty() { 0.0 } else { total_tokens as f64 / posts.len() as f64 };
-        let index_bytes = dir_size(dir.path())?;
+        let index_bytes = dir_size(home.path())?;
         Ok(ChainIndex {
             index,
             reader,
             fields,
             field_posts,
-            ords,
+            ords: posts.iter().map(|p| p.id.clone()).collect(),
             cost: BuildCost {
                 build_seconds,
                 index_bytes,
@@ -163,8 +201,55 @@ impl ChainIndex {
                 mean_tokens_per_post,
                 posts_per_field,
             },
-            _dir: dir,
+            _home: home,
         })
+    }
+
+    /// Open the index [`build_kept`](Self::build_kept) left in `dir` for
+    /// the same `analyzer` and `posts`, with the cost and the posts per field
+    /// recorded when it was built. The caller vouches that `dir` holds such
+    /// an index (the [cache](cache) checks its key and manifest); a schema
+    /// that does not match the analyzer is an error.
+    pub fn open_kept(
+        dir: &Path,
+        analyzer: &Analyzer,
+        posts: &[Post],
+        cost: BuildCost,
+        field_posts: Vec<u64>,
+    ) -> Result<ChainIndex> {
+        let index = Index::open_in_dir(dir).map_err(tantivy_err)?;
+        let schema = index.schema();
+        let fields = analyzer
+            .fields()
+            .iter()
+            .map(|fa| schema.get_field(&fa.key).map_err(tantivy_err))
+            .collect::<Result<Vec<_>>>()?;
+        if fields.len() != field_posts.len() {
+            return Err(Error::index(format!(
+                "{}: {} fields recorded, the chain has {}",
+                dir.display(),
+                field_posts.len(),
+                fields.len()
+            )));
+        }
+        for fa in analyzer.fields() {
+            index.tokenizers().register(&tokenizer_name(analyzer, &fa.key), fa.analyzer.clone());
+        }
+        let reader = open_reader(&index)?;
+        Ok(ChainIndex {
+            index,
+            reader,
+            fields,
+            field_posts,
+            ords: posts.iter().map(|p| p.id.clone()).collect(),
+            cost,
+            _home: Home::Kept(dir.to_path_buf()),
+        })
+    }
+
+    /// Posts indexed in each field, in field order (BM25's N of each field).
+    pub fn field_posts(&self) -> &[u64] {
+        &self.field_posts
     }
 
     /// The tantivy index.
@@ -257,6 +342,31 @@ impl Bm25StatisticsProvider for FieldStatistics<'_> {
     fn doc_freq(&self, term: &Term) -> tantivy::Result<u64> {
         self.searcher.doc_freq(term)
     }
+}
+
+/// A new index in `dir` with the ordinal field and one text field per field
+/// of `analyzer`, whose tokenizers are registered.
+fn create_index(dir: &Path, analyzer: &Analyzer) -> Result<(Index, Vec<Field>)> {
+    let mut builder = Schema::builder();
+    builder.add_u64_field(ORD_FIELD, NumericOptions::default().set_fast());
+    let mut fields = Vec::with_capacity(analyzer.fields().len());
+    for fa in analyzer.fields() {
+        let indexing = TextFieldIndexing::default()
+            .set_tokenizer(&tokenizer_name(analyzer, &fa.key))
+            .set_index_option(IndexRecordOption::WithFreqsAndPositions);
+        let options = TextOptions::default().set_indexing_options(indexing);
+        fields.push(builder.add_text_field(&fa.key, options));
+    }
+    let index = Index::create_in_dir(dir, builder.build()).map_err(tantivy_err)?;
+    for fa in analyzer.fields() {
+        index.tokenizers().register(&tokenizer_name(analyzer, &fa.key), fa.analyzer.clone());
+    }
+    Ok((index, fields))
+}
+
+/// A reader that never reloads (the index is complete when opened).
+fn open_reader(index: &Index) -> Result<IndexReader> {
+    index.reader_builder().reload_policy(ReloadPolicy::Manual).try_into().map_err(tantivy_err)
 }
 
 fn tokenizer_name(analyzer: &Analyzer, key: &str) -> String {

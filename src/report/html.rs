@@ -32,7 +32,7 @@ use crate::report::text::{
     breakdown_caveat, build_time, cost_table, coverage_lines, definitions_table, fixed, headline,
     improves, interval, lower_is_better, moved_tables, names_groups, p_equals, pvalue,
     reindex_case, route_table, sentence, settings_sentence, signed, spans_html, systems_compared,
-    CHAINS_INTRO, ROUTING_NOTE,
+    CACHED_NOTE, CHAINS_INTRO, ROUTING_NOTE,
 };
 
 /// Marks the start of the Timing section, the only part of the page that
@@ -860,15 +860,19 @@ fn timing(s: &mut String, r: &Report, headline: &str) {
         for t in &r.timing.chains {
             let _ = writeln!(
                 s,
-                "<tr><th scope=\"row\"><code>{}</code></th><td class=\"num\">{:.3}</td>\
+                "<tr><th scope=\"row\"><code>{}</code></th><td class=\"num\">{:.3}{}</td>\
                  <td class=\"num\">{:.3}</td><td class=\"num\">{:.3}</td></tr>",
                 esc(t.name.as_str()),
                 t.build_seconds,
+                if t.from_cache { " (cached)" } else { "" },
                 t.query_ms_mean,
                 t.query_ms_p95
             );
         }
         s.push_str("</tbody>\n</table></div>\n");
+        if r.timing.chains.iter().any(|t| t.from_cache) {
+            let _ = writeln!(s, "<p>{}</p>", esc(CACHED_NOTE));
+        }
     }
     let _ = writeln!(s, "</section>\n{TIMING_END}");
 }

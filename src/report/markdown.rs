@@ -14,7 +14,8 @@ use crate::report::model::Report;
 use crate::report::text::{
     breakdown_caveat, build_time, cost_table, coverage_lines, definitions_table, fixed, headline,
     interval, moved_tables, names_groups, pvalue, reindex_case, route_table, sentence,
-    settings_sentence, signed, spans_markdown, systems_compared, CHAINS_INTRO, ROUTING_NOTE,
+    settings_sentence, signed, spans_markdown, systems_compared, CACHED_NOTE, CHAINS_INTRO,
+    ROUTING_NOTE,
 };
 
 /// Render the whole Markdown report.
@@ -353,11 +354,18 @@ fn timing(s: &mut String, r: &Report, headline: &str) {
     for t in &r.timing.chains {
         let _ = writeln!(
             s,
-            "| `{}` | {:.3} | {:.3} | {:.3} |",
-            t.name, t.build_seconds, t.query_ms_mean, t.query_ms_p95
+            "| `{}` | {:.3}{} | {:.3} | {:.3} |",
+            t.name,
+            t.build_seconds,
+            if t.from_cache { " (cached)" } else { "" },
+            t.query_ms_mean,
+            t.query_ms_p95
         );
     }
     s.push('\n');
+    if r.timing.chains.iter().any(|t| t.from_cache) {
+        let _ = writeln!(s, "{CACHED_NOTE}\n");
+    }
 }
 
 /// Markdown table cells cannot hold `|` or line breaks.

@@ -282,8 +282,12 @@ pub struct Timing {
 pub struct ChainTiming {
     /// Chain name.
     pub name: ChainName,
-    /// Seconds to build the index.
+    /// Seconds to build the index (as measured when it was built, for an
+    /// index read from the cache).
     pub build_seconds: f64,
+    /// The index was read from the index cache, not built.
+    #[serde(default)]
+    pub from_cache: bool,
     /// Mean query latency in milliseconds.
     pub query_ms_mean: f64,
     /// 95th-percentile query latency in milliseconds (nearest rank).

@@ -1061,6 +1061,11 @@ pub fn cost_table(r: &Report) -> Option<Table> {
     })
 }
 
+/// The Timing section's note when a chain's index came from the index cache.
+pub const CACHED_NOTE: &str = "A cached chain's index was not built in this run but read from the \
+index cache (same corpus bytes, chain definition and tool version); its build time is the one \
+measured when it was built.";
+
 /// What the routing table shows, in one paragraph.
 pub const ROUTING_NOTE: &str = "Each language field is scored with its own BM25 statistics (its \
      posts, their mean length, its document frequencies), as a separate index of that \

@@ -209,6 +209,20 @@ pub fn search_chain(
     query_detections: &[Option<Detection>],
     depth: usize,
 ) -> Result<SearchOutcome> {
+    search_chain_ticking(index, analyzer, queries, query_detections, depth, &|_| {})
+}
+
+/// [`search_chain`], telling `tick(n)` of every `n` queries run.
+pub fn search_chain_ticking(
+    index: &ChainIndex,
+    analyzer: &Analyzer,
+    queries: &[Query],
+    query_detections: &[Option<Detection>],
+    depth: usize,
+    tick: &dyn Fn(u64),
+) -> Result<SearchOutcome> {
+    /// Queries between two ticks.
+    const TICK: u64 = 64;
     let searcher = index.reader().searcher();
     let columns = ord_columns(&searcher)?;
     let ranker = Ranker { searcher: &searcher, columns: &columns, index, analyzer };
@@ -223,7 +237,11 @@ pub fn search_chain(
             outcome.run.by_query.insert(q.id.clone(), hits);
         }
         outcome.latencies_ms.push(started.elapsed().as_secs_f64() * 1000.0);
+        if (i as u64 + 1).is_multiple_of(TICK) {
+            tick(TICK);
+        }
     }
+    tick(queries.len() as u64 % TICK);
     Ok(outcome)
 }
 

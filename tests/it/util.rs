@@ -15,9 +15,16 @@ pub fn fixture(rel: &str) -> PathBuf {
     root().join("tests/fixtures").join(rel)
 }
 
+/// The cache directory every test run of the binary uses (under cargo's
+/// target directory, so tests never write to the user's cache).
+pub fn test_cache_dir() -> PathBuf {
+    PathBuf::from(env!("CARGO_TARGET_TMPDIR")).join("it-cache")
+}
+
 /// Run the binary with `args` in directory `cwd`.
 pub fn postassay(cwd: &Path, args: &[&str]) -> Output {
     Command::new(env!("CARGO_BIN_EXE_postassay"))
+        .env("POSTASSAY_CACHE_DIR", test_cache_dir())
         .current_dir(cwd)
         .args(args)
         .output()
