@@ -84,16 +84,23 @@ impl Progress {
         }
     }
 
-    /// A step of `total` units (`unit`: "posts", "queries", "tests", …). The
+    /// A step of `total` units (`unit`: "posts", "queries", "tests", …;
+    /// "bytes" shows binary sizes). The
     /// bar shows `label`, the count, the rate and the time left; it
     /// disappears when the step is [finished](Step::finish).
     pub fn step(&self, label: &str, total: u64, unit: &str) -> Step {
         let bar = self.bars.as_ref().map(|bars| {
             let bar = bars.add(ProgressBar::new(total));
-            let template = format!(
-                "{{prefix:.bold}} [{{bar:30}}] {{human_pos}}/{{human_len}} {unit} \
-                 {{per_sec}} ({{eta}} left)"
-            );
+            let template = if unit == "bytes" {
+                "{prefix:.bold} [{bar:30}] {binary_bytes}/{binary_total_bytes} \
+                 {binary_bytes_per_sec} ({eta} left)"
+                    .to_string()
+            } else {
+                format!(
+                    "{{prefix:.bold}} [{{bar:30}}] {{human_pos}}/{{human_len}} {unit} \
+                     {{per_sec}} ({{eta}} left)"
+                )
+            };
             // The template is fixed text: it always parses.
             if let Ok(style) = ProgressStyle::with_template(&template) {
                 bar.set_style(style.progress_chars("=> "));

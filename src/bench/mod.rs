@@ -127,7 +127,13 @@ pub fn run(plan: &RunPlan, progress: &Progress) -> Result<BenchOutput> {
     let baseline = baseline_index(&names, plan.options.baseline.as_ref())?;
     let (judgments, mut warnings) = input::read_judgments(&plan.judgments)?;
     let queries = input::read_queries(&plan.queries)?;
-    let posts = input::read_corpus(&plan.corpus)?;
+    let corpus_bytes = std::fs::metadata(&plan.corpus).map_or(0, |m| m.len());
+    let reading = progress.step("reading the corpus", corpus_bytes, "bytes");
+    let read_so_far = std::cell::Cell::new(0u64);
+    let posts = input::read_corpus_metered(&plan.corpus, &|bytes| {
+        reading.advance(bytes.saturating_sub(read_so_far.replace(bytes)));
+    })?;
+    drop(reading);
     check_settings(&plan.judgments, &judgments, &plan.options.eval)?;
     progress.line(&format!(
         "read {} posts, {} queries, {} judgments in {:.2} s",

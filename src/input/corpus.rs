@@ -50,6 +50,12 @@ pub struct Post {
 /// Read and validate a corpus file (JSON Lines or CSV, see the module docs),
 /// listing every bad line.
 pub fn read_corpus(path: &Path) -> Result<Vec<Post>> {
+    read_corpus_metered(path, &|_| {})
+}
+
+/// [`read_corpus`], telling `meter` every few thousand posts how many bytes
+/// of the file it has read (for a progress bar).
+pub fn read_corpus_metered(path: &Path, meter: &dyn Fn(u64)) -> Result<Vec<Post>> {
     let is_jsonl = match first_non_blank_byte(path)? {
         None => {
             return Err(crate::Error::in_file(
@@ -63,9 +69,9 @@ pub fn read_corpus(path: &Path) -> Result<Vec<Post>> {
     let mut posts =
         Collector { problems: Problems::new(path), first_line: HashMap::new(), posts: Vec::new() };
     if is_jsonl {
-        read_jsonl(path, &mut posts)?;
+        read_jsonl(path, &mut posts, meter)?;
     } else {
-        read_csv(path, &mut posts)?;
+        read_csv(path, &mut posts, meter)?;
     }
     posts.finish()
 }
@@ -100,11 +106,19 @@ impl Collector {
     }
 }
 
-fn read_csv(path: &Path, posts: &mut Collector) -> Result<()> {
+/// Records between two calls of a reader's meter.
+const METER_EVERY: u64 = 4096;
+
+fn read_csv(path: &Path, posts: &mut Collector, meter: &dyn Fn(u64)) -> Result<()> {
     let mut table = CsvTable::open(path, "id,text")?;
     let ([id_col, text_col], [lang_col]) =
         table.columns(["id", "text"], ["lang"]).map_err(|e| with_layout_hint(path, e))?;
+    let mut records = 0u64;
     while let Some(row) = table.next_row(&mut posts.problems)? {
+        records += 1;
+        if records.is_multiple_of(METER_EVERY) {
+            meter(table.bytes_read());
+        }
         let id = check_id(row.get(id_col))
             .map_err(|m| posts.problems.push(row.line, in_column("id", &m)))
             .ok();
@@ -178,9 +192,15 @@ impl<'de: 'a, 'a> Deserialize<'de> for RawField<'a> {
     }
 }
 
-fn read_jsonl(path: &Path, posts: &mut Collector) -> Result<()> {
+fn read_jsonl(path: &Path, posts: &mut Collector, meter: &dyn Fn(u64)) -> Result<()> {
     let mut lines = Lines::open(path)?;
-    while let Some(line) = lines.next_line()? {
+    let mut read = 0u64;
+    loop {
+        if read.is_multiple_of(METER_EVERY) {
+            meter(lines.bytes_read());
+        }
+        read += 1;
+        let Some(line) = lines.next_line()? else { break };
         let number = line.number;
         let text = match line.text {
             Ok(text) if text.trim().is_empty() => continue,

@@ -153,12 +153,24 @@ pub(super) struct Lines {
     reader: BufReader<File>,
     buf: Vec<u8>,
     number: u64,
+    bytes: u64,
 }
 
 impl Lines {
     /// Open `path` (BOM skipped) for reading lines.
     pub fn open(path: &Path) -> Result<Lines> {
-        Ok(Lines { path: path.to_path_buf(), reader: open(path)?, buf: Vec::new(), number: 0 })
+        Ok(Lines {
+            path: path.to_path_buf(),
+            reader: open(path)?,
+            buf: Vec::new(),
+            number: 0,
+            bytes: 0,
+        })
+    }
+
+    /// Bytes read so far (for progress).
+    pub fn bytes_read(&self) -> u64 {
+        self.bytes
     }
 
     /// The next line, or `None` at the end of the file.
@@ -170,6 +182,7 @@ impl Lines {
             return Ok(None);
         }
         self.number += 1;
+        self.bytes += n as u64;
         let mut bytes: &[u8] = &self.buf;
         if let Some(rest) = bytes.strip_suffix(b"\n") {
             bytes = rest;
@@ -419,6 +432,11 @@ impl Row {
 }
 
 impl CsvTable {
+    /// Bytes of the records read so far, past the header (for progress).
+    pub fn bytes_read(&self) -> u64 {
+        self.reader.get_ref().offset
+    }
+
     /// Open `path` and read its header. `expected` describes the header for
     /// the message about an empty file (for example `"query_id,text"`).
     pub fn open(path: &Path, expected: &str) -> Result<CsvTable> {
