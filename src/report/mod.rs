@@ -5,8 +5,9 @@
 //! `--out` directory, which afterwards holds exactly these outputs: they are
 //! written into a new directory that is swapped in ([`out_dir`], shared by
 //! every command that writes a directory), so a reader never sees a
-//! half-written file or a stale one of an earlier run. [`write_atomic`]
-//! writes a single file (`gate --junit`, `pool --out`) the same way.
+//! half-written file or a stale one of an earlier run. A single file
+//! (`gate --junit`, `pool --out`) is written the same way, by
+//! [`crate::output::write_atomic`].
 
 pub mod csv;
 pub mod html;
@@ -16,7 +17,6 @@ pub mod out_dir;
 pub mod svg;
 pub mod text;
 
-use std::io::Write;
 use std::path::{Path, PathBuf};
 
 use crate::error::{Error, Result};
@@ -32,27 +32,6 @@ pub fn to_json(report: &Report) -> Result<String> {
             s
         })
         .map_err(|e| Error::usage(format!("serialising report.json: {e}")))
-}
-
-/// Write `bytes` to `path` atomically: a temporary sibling file, flushed and
-/// synced, then renamed over the target. The file gets the permissions an
-/// ordinary new file would (0666 less the umask).
-pub fn write_atomic(path: &Path, bytes: &[u8]) -> Result<()> {
-    let dir = path.parent().filter(|p| !p.as_os_str().is_empty()).unwrap_or(Path::new("."));
-    let mut builder = tempfile::Builder::new();
-    builder.prefix(".postassay-").suffix(".tmp");
-    // Temporary files are private (0600) by default; an output file is an
-    // ordinary file, readable as the user's umask allows.
-    #[cfg(unix)]
-    {
-        use std::os::unix::fs::PermissionsExt;
-        builder.permissions(std::fs::Permissions::from_mode(0o666));
-    }
-    let mut tmp = builder.tempfile_in(dir).map_err(|e| Error::io(dir, e))?;
-    tmp.write_all(bytes).map_err(|e| Error::io(path, e))?;
-    tmp.as_file().sync_all().map_err(|e| Error::io(path, e))?;
-    tmp.persist(path).map_err(|e| Error::io(path, e.error))?;
-    Ok(())
 }
 
 /// Make `out` hold exactly the output files (created when missing): the
