@@ -75,7 +75,7 @@ pub const DEFAULT_FREQ_LIST: &str = "tests/fixtures/analysis/hashtag/wordfreq_en
 pub fn execute(args: VetArgs) -> anyhow::Result<ExitCode> {
     let plan = plan(&args)?;
     if let Some(out) = &args.out {
-        postassay::report::out_dir::check_out_dir(out)?;
+        postassay::output::out_dir::check_out_dir(out)?;
     }
     let quiet = args.quiet;
     let mut progress = move |line: &str| {

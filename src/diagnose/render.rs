@@ -26,26 +26,11 @@ use crate::analysis::detect::DetectorKind;
 use crate::error::{Error, Result};
 use crate::ids::ChainName;
 use crate::input::format_shortest;
-use crate::report::out_dir::{replace_out_dir, OutputFile};
-
-/// File names written into `--out`.
-pub const MARKDOWN_FILE: &str = "diagnostics.md";
-/// The JSON model.
-pub const JSON_FILE: &str = "diagnostics.json";
-/// Conflation table.
-pub const CONFLATION_CSV: &str = "diagnostics-conflation.csv";
-/// Routing accuracy table (overall and per length bucket).
-pub const ROUTING_CSV: &str = "diagnostics-routing.csv";
-/// Routing confusion counts.
-pub const CONFUSION_CSV: &str = "diagnostics-confusion.csv";
-/// Segmentation table.
-pub const SEGMENTATION_CSV: &str = "diagnostics-segmentation.csv";
-/// Word segmentation of scripts written without spaces.
-pub const UNSPACED_CSV: &str = "diagnostics-unspaced.csv";
-
-/// Every file written into `--out`.
-pub const FILES: [&str; 6] =
-    [MARKDOWN_FILE, JSON_FILE, CONFLATION_CSV, ROUTING_CSV, CONFUSION_CSV, SEGMENTATION_CSV];
+pub use crate::output::out_dir::diagnostics::{
+    CONFLATION_CSV, CONFUSION_CSV, FILES, JSON_FILE, MARKDOWN_FILE, ROUTING_CSV, SEGMENTATION_CSV,
+    UNSPACED_CSV,
+};
+use crate::output::out_dir::{replace_out_dir, OutputFile};
 
 /// Every output file, rendered: `(file name, bytes)`.
 pub fn render_all(d: &Diagnostics) -> Result<Vec<(&'static str, Vec<u8>)>> {

@@ -1,9 +1,12 @@
 //! File writing, for every command that writes: [`write_atomic`] writes a
-//! single file (`gate --junit`, `pool --out`) so that a reader never sees
-//! it half-written. Renderers only make bytes; they write nothing.
+//! single file (`gate --junit`, `pool --out`) and [`out_dir`] swaps in a
+//! whole output directory (`run`, `score`, `vet`), so that a reader never
+//! sees a file half-written. Renderers only make bytes; they write nothing.
 //!
 //! Place in the data flow: beside `error`, at the bottom; it knows nothing
 //! of what the bytes say.
+
+pub mod out_dir;
 
 use std::io::Write;
 use std::path::Path;

@@ -3,7 +3,8 @@
 //!
 //! [`write_outputs`] writes every file of formats.md's output table into the
 //! `--out` directory, which afterwards holds exactly these outputs: they are
-//! written into a new directory that is swapped in ([`out_dir`], shared by
+//! written into a new directory that is swapped in
+//! ([`crate::output::out_dir`], shared by
 //! every command that writes a directory), so a reader never sees a
 //! half-written file or a stale one of an earlier run. A single file
 //! (`gate --junit`, `pool --out`) is written the same way, by
@@ -13,7 +14,6 @@ pub mod csv;
 pub mod html;
 pub mod markdown;
 pub mod model;
-pub mod out_dir;
 pub mod svg;
 pub mod text;
 
@@ -22,6 +22,7 @@ use std::path::{Path, PathBuf};
 use crate::error::{Error, Result};
 use crate::ids::ChainName;
 use crate::input::{write_run, Run};
+use crate::output::out_dir::{replace_out_dir, OutputFile};
 pub use model::Report;
 
 /// Serialise the report model as `report.json` text.
@@ -38,10 +39,10 @@ pub fn to_json(report: &Report) -> Result<String> {
 /// CSVs, `report.json`, `report.md`, `report.html` and, for `run`,
 /// `runs/NAME.csv`. Files postassay wrote there before are replaced (a chain
 /// no longer run leaves no `runs/NAME.csv`); a directory holding files
-/// postassay did not write is refused ([`out_dir::replace_out_dir`]).
+/// postassay did not write is refused ([`replace_out_dir`]).
 pub fn write_outputs(out: &Path, report: &Report, runs: &[(ChainName, &Run)]) -> Result<()> {
     // Render everything first so a rendering error writes nothing.
-    let mut files: Vec<out_dir::OutputFile> = vec![
+    let mut files: Vec<OutputFile> = vec![
         (PathBuf::from("summary.csv"), csv::summary_csv(report)?.into_bytes()),
         (PathBuf::from("per-query.csv"), csv::per_query_csv(report)?.into_bytes()),
         (PathBuf::from("comparisons.csv"), csv::comparisons_csv(report)?.into_bytes()),
@@ -54,5 +55,5 @@ pub fn write_outputs(out: &Path, report: &Report, runs: &[(ChainName, &Run)]) ->
         write_run(run, &mut bytes)?;
         files.push((Path::new("runs").join(format!("{name}.csv")), bytes));
     }
-    out_dir::replace_out_dir(out, &files)
+    replace_out_dir(out, &files)
 }
