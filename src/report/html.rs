@@ -20,13 +20,12 @@
 use std::collections::BTreeMap;
 use std::fmt::Write;
 
-use crate::bench::compare::{BreakdownCell, ComparisonRow, MIN_BREAKDOWN_QUERIES};
 use crate::diagnose::render::{
     conflation_table, routing_by_chain, routing_table, segmentation_table, unspaced_table, Table,
     UNSPACED_LEGEND,
 };
 use crate::plural::counted;
-use crate::report::model::Report;
+use crate::report::model::{BreakdownCell, ComparisonRow, Report, MIN_BREAKDOWN_QUERIES};
 use crate::report::svg::{self, esc, Bar, Estimate, Panel, Point, Series};
 use crate::report::text::{
     breakdown_caveat, build_time, cost_table, coverage_lines, definitions_table, fixed, headline,

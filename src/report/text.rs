@@ -4,9 +4,8 @@
 //! number comes from the report model (ratios of two model numbers are
 //! formatted for display, never stored).
 
-use crate::bench::compare::{BreakdownCell, ComparisonRow, MIN_BREAKDOWN_QUERIES};
 use crate::plural::counted;
-use crate::report::model::{Cost, Report};
+use crate::report::model::{BreakdownCell, ComparisonRow, Cost, Report, MIN_BREAKDOWN_QUERIES};
 use crate::report::svg::esc;
 
 /// Format a metric value for reading (three decimals; never `-0.000`).

@@ -6,7 +6,12 @@ use std::collections::BTreeMap;
 
 use serde::{Deserialize, Serialize};
 
-use crate::bench::compare::{BreakdownCell, ComparisonRow, SystemSummary};
+mod scores;
+
+pub use scores::{
+    BreakdownCell, ComparisonRow, MetricSummary, SystemSummary, MIN_BREAKDOWN_QUERIES,
+};
+
 use crate::bench::moved::MovedQuery;
 use crate::ids::{ChainName, PostId, QueryId};
 use crate::index::BuildCost;
