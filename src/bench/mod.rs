@@ -28,7 +28,7 @@ use crate::diagnose::{self, ChainUnderTest, DiagnosePlan, Diagnostics, FreqSourc
 use crate::error::{Error, Result};
 use crate::eval::{self, EvalSettings, Gain, Metric, SystemScores};
 use crate::ids::{ChainName, QueryId};
-use crate::index::ChainIndex;
+use crate::index::{BuildCost, ChainIndex};
 use crate::input::{self, Judgments, LangCode, Post, Query, Run};
 use crate::report::model::{
     Basis, ChainTiming, Cost, Counts, Coverage, InputFile, PerQuery, QueryValues, Report,
@@ -763,6 +763,19 @@ fn abbreviate(items: &[String]) -> String {
 fn hash_input(role: &str, path: &Path) -> Result<InputFile> {
     let sha256 = input::sha256_of(path)?;
     Ok(InputFile { role: role.to_string(), path: path.display().to_string(), sha256 })
+}
+
+/// The report shows the deterministic part of a build's cost (its time is
+/// under `timing`).
+impl From<&BuildCost> for Cost {
+    fn from(c: &BuildCost) -> Cost {
+        Cost {
+            index_bytes: c.index_bytes,
+            distinct_terms: c.distinct_terms,
+            mean_tokens_per_post: c.mean_tokens_per_post,
+            posts_per_field: c.posts_per_field.clone(),
+        }
+    }
 }
 
 #[cfg(test)]

@@ -13,7 +13,6 @@ pub use scores::{
 };
 
 use crate::ids::{ChainName, PostId, QueryId};
-use crate::index::BuildCost;
 
 /// Version of the `report.json` layout; bumped on any incompatible change.
 pub const SCHEMA_VERSION: u32 = 1;
@@ -241,17 +240,6 @@ pub struct Cost {
     pub mean_tokens_per_post: f64,
     /// Posts per index field (languages and fallback for routed chains).
     pub posts_per_field: BTreeMap<String, u64>,
-}
-
-impl From<&BuildCost> for Cost {
-    fn from(c: &BuildCost) -> Cost {
-        Cost {
-            index_bytes: c.index_bytes,
-            distinct_terms: c.distinct_terms,
-            mean_tokens_per_post: c.mean_tokens_per_post,
-            posts_per_field: c.posts_per_field.clone(),
-        }
-    }
 }
 
 /// One system's per-query values.
