@@ -6,6 +6,7 @@ use std::collections::BTreeMap;
 
 use serde::{Deserialize, Serialize};
 
+pub mod diagnostics;
 mod scores;
 
 pub use scores::{
@@ -58,7 +59,7 @@ pub struct Report {
     /// only): conflation, routing and hashtag segmentation, with the SHA-256
     /// of every data file read. Absent from `report.json` without `--vet`.
     #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub diagnostics: Option<crate::diagnose::Diagnostics>,
+    pub diagnostics: Option<diagnostics::Diagnostics>,
     /// Warnings raised while reading and scoring.
     pub warnings: Vec<String>,
     /// Wall-clock figures; the only part that differs between identical runs.
