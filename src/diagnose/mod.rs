@@ -4,8 +4,10 @@
 //! field, and how well a chain's `hashtags` step segments gold hashtags.
 //!
 //! Place in the data flow: a side branch that uses `input` and `analysis`
-//! (no index, no search) and renders its own small report: Markdown, JSON
-//! and CSV, with the SHA-256 of every file read.
+//! (no index, no search) and returns data: it fills the diagnostics part of
+//! the report model ([`crate::report::model::diagnostics`]), with the
+//! SHA-256 of every file read, which [`crate::report::diagnostics`] renders
+//! (Markdown, JSON and CSV).
 //!
 //! Sections (each can be turned off):
 //! - `conflation`: Paice's understemming/overstemming indices against lemma
@@ -35,12 +37,13 @@
 //!     top: 5,
 //! };
 //! let found = diagnose::run(&plan, &mut |line: &str| eprintln!("{line}")).unwrap();
-//! print!("{}", diagnose::render::markdown(&found));
+//! print!("{}", postassay::report::diagnostics::markdown(&found));
 //! ```
 
 pub mod conflation;
 pub mod data;
-pub mod render;
+#[cfg(test)]
+mod rendered;
 pub mod routing;
 pub mod segmentation;
 pub mod unspaced;

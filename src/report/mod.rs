@@ -11,6 +11,7 @@
 //! [`crate::output::write_atomic`].
 
 pub mod csv;
+pub mod diagnostics;
 pub mod html;
 pub mod markdown;
 pub mod model;
@@ -23,6 +24,7 @@ use crate::error::{Error, Result};
 use crate::ids::ChainName;
 use crate::input::{write_run, Run};
 use crate::output::out_dir::{replace_out_dir, OutputFile};
+use model::diagnostics::Diagnostics;
 pub use model::Report;
 
 /// Serialise the report model as `report.json` text.
@@ -56,4 +58,16 @@ pub fn write_outputs(out: &Path, report: &Report, runs: &[(ChainName, &Run)]) ->
         files.push((Path::new("runs").join(format!("{name}.csv")), bytes));
     }
     replace_out_dir(out, &files)
+}
+
+/// Make `out` hold exactly the output files of `vet` (created when missing; the
+/// files of an earlier `vet` there are replaced, see
+/// [`replace_out_dir`]); returns the paths written.
+pub fn write_diagnostics(out: &Path, d: &Diagnostics) -> Result<Vec<PathBuf>> {
+    let files: Vec<OutputFile> = diagnostics::render_all(d)?
+        .into_iter()
+        .map(|(name, bytes)| (PathBuf::from(name), bytes))
+        .collect();
+    replace_out_dir(out, &files)?;
+    Ok(files.iter().map(|(name, _)| out.join(name)).collect())
 }
