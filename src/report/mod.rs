@@ -12,6 +12,8 @@
 
 pub mod csv;
 pub mod diagnostics;
+pub mod gate_junit;
+pub mod gate_markdown;
 pub mod html;
 pub mod markdown;
 pub mod model;

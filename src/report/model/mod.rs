@@ -7,6 +7,7 @@ use std::collections::BTreeMap;
 use serde::{Deserialize, Serialize};
 
 pub mod diagnostics;
+pub mod gate;
 mod scores;
 
 pub use scores::{
