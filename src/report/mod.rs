@@ -1,5 +1,8 @@
-//! Reports: the model computed by the bench and its renderings (CSV, JSON,
-//! Markdown, HTML). Last stage of the data flow; nothing here computes a number.
+//! Reports: the report model ([`model`]: the report, the diagnostics and the
+//! gate's outcome, filled by `bench`, `diagnose` and `gate`) and its
+//! renderings (CSV, JSON, Markdown, HTML, SVG, JUnit). Report renders what
+//! it is handed: nothing here computes a number, and nothing here imports
+//! `bench`, `index`, `search`, `diagnose`, `gate`, `pool` or `judge`.
 //!
 //! [`write_outputs`] writes every file of formats.md's output table into the
 //! `--out` directory, which afterwards holds exactly these outputs: they are

@@ -1,6 +1,11 @@
 //! The report model: every number and fact a report shows, computed before
 //! any rendering. `report.json` is this model serialised; the Markdown, HTML
 //! and CSV writers render the same value and compute nothing of their own.
+//!
+//! Plain data at the bottom of the house: it names only ids, language codes
+//! and plain settings, never the modules that fill it (`bench` fills
+//! [`Report`], with the scores of `scores.rs`; `diagnose` fills
+//! [`diagnostics::Diagnostics`]; `gate` fills [`gate::GateOutcome`]).
 
 use std::collections::BTreeMap;
 
