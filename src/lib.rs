@@ -3,7 +3,10 @@
 //!
 //! Data flow (each module depends only on the ones before it):
 //! `input` → `analysis` → `index` → `search` → `eval` → `stats` → `report`,
-//! with `bench` orchestrating a whole run and the binary's `cli` on top.
+//! with `bench` orchestrating a whole run, `diagnose`, `gate`, `pool` and
+//! `judge` beside it, and the binary's `cli` on top. `bench`, `diagnose` and
+//! `gate` fill the report model (`report::model`); `report` renders what it
+//! is handed and imports none of them; `output` writes the files.
 #![deny(missing_docs)]
 
 pub mod error;
@@ -20,6 +23,7 @@ pub mod eval;
 pub mod gate;
 pub mod index;
 pub mod judge;
+pub mod output;
 pub mod pool;
 pub mod report;
 pub mod search;

@@ -962,6 +962,19 @@ fn hash_input(role: &str, path: &Path) -> Result<InputFile> {
     Ok(InputFile { role: role.to_string(), path: path.display().to_string(), sha256 })
 }
 
+/// The report shows the deterministic part of a build's cost (its time is
+/// under `timing`).
+impl From<&BuildCost> for Cost {
+    fn from(c: &BuildCost) -> Cost {
+        Cost {
+            index_bytes: c.index_bytes,
+            distinct_terms: c.distinct_terms,
+            mean_tokens_per_post: c.mean_tokens_per_post,
+            posts_per_field: c.posts_per_field.clone(),
+        }
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

@@ -7,43 +7,16 @@
 
 use std::collections::BTreeMap;
 
-use serde::{Deserialize, Serialize};
-
 use crate::analysis::detect::Detection;
 use crate::analysis::Analyzer;
-use crate::ids::{ChainName, PostId, QueryId};
+use crate::ids::{PostId, QueryId};
 use crate::input::{Judgments, Post, Query, Run};
 use crate::search;
 
+pub use crate::report::model::MovedQuery;
+
 /// Queries shown per chain and direction (gains, losses).
 pub const MOVED_PER_SIDE: usize = 3;
-
-/// One query that moved, with an example post.
-#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
-pub struct MovedQuery {
-    /// The compared chain.
-    pub system: ChainName,
-    /// The query.
-    pub query_id: QueryId,
-    /// The query text.
-    pub query_text: String,
-    /// Headline metric of the chain minus the baseline's on this query.
-    pub delta: f64,
-    /// A relevant post whose rank moved the same way, when there is one.
-    pub post_id: Option<PostId>,
-    /// Its text (absent when the report is redacted).
-    pub post_text: Option<String>,
-    /// Its grade.
-    pub grade: Option<u32>,
-    /// Its rank under the baseline (absent: not in the top `depth`).
-    pub rank_baseline: Option<usize>,
-    /// Its rank under the chain.
-    pub rank_system: Option<usize>,
-    /// Query terms the post matched under the baseline.
-    pub matched_baseline: Vec<String>,
-    /// Query terms the post matched under the chain.
-    pub matched_system: Vec<String>,
-}
 
 /// A chain as it ran: its analyzer, run and the language detections it used.
 pub struct ChainRun<'a> {

@@ -11,7 +11,7 @@ use postassay::error::Error;
 use postassay::eval;
 use postassay::gate::{self, GateSettings, Thresholds};
 use postassay::ids::ChainName;
-use postassay::report::write_atomic;
+use postassay::output::write_atomic;
 
 use super::common::check_file_flag;
 

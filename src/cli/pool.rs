@@ -12,9 +12,9 @@ use postassay::error::Error;
 use postassay::ids::ChainName;
 use postassay::input::{self, Post, Query, Run};
 use postassay::judge::read_judgments_allow_empty;
+use postassay::output::write_atomic;
 use postassay::plural::counted;
 use postassay::pool::{self, PoolSources};
-use postassay::report::write_atomic;
 
 use super::common::{check_file_flag, refuse_directory};
 

@@ -9,6 +9,7 @@ use clap::Args;
 
 use postassay::bench::{self, RunDiagnostics, RunPlan};
 use postassay::error::Error;
+use postassay::output;
 use postassay::report;
 
 use super::common::{
@@ -45,7 +46,7 @@ pub struct RunArgs {
 
 pub fn execute(args: RunArgs) -> anyhow::Result<ExitCode> {
     let plan = plan(&args)?;
-    report::out_dir::check_out_dir(&args.eval.out)?;
+    output::out_dir::check_out_dir(&args.eval.out)?;
     let progress = args.eval.progress();
     let out = bench::run(&plan, &progress)?;
     let runs: Vec<_> = out.runs.iter().map(|(n, r)| (n.clone(), r)).collect();

@@ -8,6 +8,7 @@ use clap::Args;
 use postassay::bench::{self, ScorePlan};
 use postassay::error::Error;
 use postassay::ids::ChainName;
+use postassay::output;
 use postassay::report;
 
 use super::common::{check_file_flag, refuse_directory, wrote_reports, EvalFlags};
@@ -36,7 +37,7 @@ pub struct ScoreArgs {
 
 pub fn execute(args: ScoreArgs) -> anyhow::Result<ExitCode> {
     let plan = plan(&args)?;
-    report::out_dir::check_out_dir(&args.eval.out)?;
+    output::out_dir::check_out_dir(&args.eval.out)?;
     let progress = args.eval.progress();
     // The report's warnings come through `progress` (bench::score).
     let out = bench::score(&plan, &progress)?;

@@ -9,9 +9,10 @@ use std::process::ExitCode;
 use clap::Args;
 
 use postassay::analysis::{self, ChainSpec, StepSpec};
-use postassay::diagnose::{self, render, DiagnosePlan, FreqSource, Sections};
+use postassay::diagnose::{self, DiagnosePlan, FreqSource, Sections};
 use postassay::error::Error;
 use postassay::input::LangCode;
+use postassay::report::{self, diagnostics as render};
 
 use super::common::{check_file_flag, read_chain_file, resolve_data_dir, DEFAULT_TOP, DEMO_CORPUS};
 
@@ -75,7 +76,7 @@ pub const DEFAULT_FREQ_LIST: &str = "tests/fixtures/analysis/hashtag/wordfreq_en
 pub fn execute(args: VetArgs) -> anyhow::Result<ExitCode> {
     let plan = plan(&args)?;
     if let Some(out) = &args.out {
-        postassay::report::out_dir::check_out_dir(out)?;
+        postassay::output::out_dir::check_out_dir(out)?;
     }
     let quiet = args.quiet;
     let mut progress = move |line: &str| {
@@ -91,7 +92,7 @@ pub fn execute(args: VetArgs) -> anyhow::Result<ExitCode> {
     }
     match &args.out {
         Some(out) => {
-            render::write_outputs(out, &found)?;
+            report::write_diagnostics(out, &found)?;
             progress(&format!(
                 "wrote {} in {:.1} s",
                 out.join(render::MARKDOWN_FILE).display(),

@@ -55,25 +55,13 @@
 
 use std::collections::{BTreeMap, HashMap};
 
-use serde::{Deserialize, Serialize};
 use tantivy::tokenizer::TextAnalyzer;
 
 use super::data::LemmaList;
 
-/// Paice's pair counts for one chain on one word list.
-#[derive(Debug, Clone, Copy, Default, PartialEq, Eq, Serialize, Deserialize)]
-pub struct PaiceCounts {
-    /// Words `W`.
-    pub words: u64,
-    /// Desired merge total (pairs of words sharing a concept).
-    pub gdmt: u64,
-    /// Global unachieved merge total.
-    pub gumt: u64,
-    /// Desired non-merge total (pairs of words of different concepts).
-    pub gdnt: u64,
-    /// Global wrongly-merged total.
-    pub gwmt: u64,
-}
+pub use crate::report::model::diagnostics::{
+    ConflationFigures, MergedStem, PaiceCounts, SplitGroup, StemForms,
+};
 
 impl PaiceCounts {
     /// Count from `(concept, stem class)` ids, one pair per word (see the
@@ -178,66 +166,8 @@ impl WordGroups {
     }
 }
 
-/// A concept group split over several stem classes.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
-pub struct SplitGroup {
-    /// The lemma.
-    pub lemma: String,
-    /// Words in the group.
-    pub words: usize,
-    /// Each stem class the group's words fell into, largest first.
-    pub stems: Vec<StemForms>,
-}
-
-/// The words of one stem class (within a group or overall).
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
-pub struct StemForms {
-    /// The stem (empty for a word the chain drops entirely).
-    pub stem: String,
-    /// Its forms, in byte order (at most [`EXAMPLE_FORMS`]).
-    pub forms: Vec<String>,
-    /// How many forms in all.
-    pub count: usize,
-}
-
-/// A stem class that merges words of several concept groups.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
-pub struct MergedStem {
-    /// The stem.
-    pub stem: String,
-    /// Words in the class.
-    pub words: usize,
-    /// Each concept in the class, largest first (`stem` holds the lemma).
-    pub lemmas: Vec<StemForms>,
-}
-
 /// Forms shown per stem or lemma in the offender lists.
 pub const EXAMPLE_FORMS: usize = 4;
-
-/// Everything measured for one chain on one word list.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
-pub struct ConflationFigures {
-    /// Paice's counts.
-    pub counts: PaiceCounts,
-    /// UI.
-    pub understemming: Option<f64>,
-    /// OI.
-    pub overstemming: Option<f64>,
-    /// SW = OI / UI.
-    pub stemming_weight: Option<f64>,
-    /// Concept groups of two words or more.
-    pub multi_word_groups: usize,
-    /// Share of those whose words all share one stem.
-    pub fully_conflated: Option<f64>,
-    /// Mean number of stem classes per group of two words or more.
-    pub mean_stems_per_group: Option<f64>,
-    /// Words the chain outputs no term for.
-    pub words_without_terms: usize,
-    /// The groups split into most stems (then largest, then lemma order).
-    pub worst_splits: Vec<SplitGroup>,
-    /// The stems merging most concepts (then largest, then stem order).
-    pub worst_merges: Vec<MergedStem>,
-}
 
 /// The terms `analyzer` outputs for `form`, joined by a space.
 pub fn stem_of(analyzer: &mut TextAnalyzer, form: &str) -> String {

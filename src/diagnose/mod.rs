@@ -4,8 +4,10 @@
 //! field, and how well a chain's `hashtags` step segments gold hashtags.
 //!
 //! Place in the data flow: a side branch that uses `input` and `analysis`
-//! (no index, no search) and renders its own small report: Markdown, JSON
-//! and CSV, with the SHA-256 of every file read.
+//! (no index, no search) and returns data: it fills the diagnostics part of
+//! the report model ([`crate::report::model::diagnostics`]), with the
+//! SHA-256 of every file read, which [`crate::report::diagnostics`] renders
+//! (Markdown, JSON and CSV).
 //!
 //! Sections (each can be turned off):
 //! - `conflation`: Paice's understemming/overstemming indices against lemma
@@ -35,20 +37,19 @@
 //!     top: 5,
 //! };
 //! let found = diagnose::run(&plan, &mut |line: &str| eprintln!("{line}")).unwrap();
-//! print!("{}", diagnose::render::markdown(&found));
+//! print!("{}", postassay::report::diagnostics::markdown(&found));
 //! ```
 
 pub mod conflation;
 pub mod data;
-pub mod render;
+#[cfg(test)]
+mod rendered;
 pub mod routing;
 pub mod segmentation;
 pub mod unspaced;
 
 use std::path::PathBuf;
 use std::sync::Arc;
-
-use serde::{Deserialize, Serialize};
 
 use crate::analysis::detect::DetectorKind;
 use crate::analysis::hashtag::WordFreqs;
@@ -61,28 +62,13 @@ use crate::ids::ChainName;
 use crate::input::{read_corpus, LangCode};
 use crate::report::model::{InputFile, ToolInfo};
 
-use conflation::{ConflationFigures, WordGroups};
+pub use crate::report::model::diagnostics::{
+    ConflationResult, Diagnostics, RoutingResult, Sections, SegmentationResult, UnspacedResult,
+    SCHEMA_VERSION,
+};
+
+use conflation::WordGroups;
 use data::DataSets;
-use routing::RoutingFigures;
-use segmentation::SegmentationFigures;
-use unspaced::WordFigures;
-
-/// Version of the `diagnostics.json` layout.
-pub const SCHEMA_VERSION: u32 = 1;
-
-/// Which sections to compute.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
-pub struct Sections {
-    /// Conflation against lemma classes.
-    pub conflation: bool,
-    /// Routing accuracy.
-    pub routing: bool,
-    /// Hashtag segmentation.
-    pub segmentation: bool,
-    /// Word segmentation of scripts written without spaces.
-    #[serde(default)]
-    pub unspaced: bool,
-}
 
 /// Section names as given on the command line, in report order.
 pub const SECTION_NAMES: [&str; 4] = ["conflation", "routing", "segmentation", "unspaced"];
@@ -214,112 +200,6 @@ pub struct DiagnosePlan {
     pub chain_file: Option<PathBuf>,
     /// Offenders and examples listed per result.
     pub top: usize,
-}
-
-/// One chain on one lemma list.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
-pub struct ConflationResult {
-    /// The chain.
-    pub chain: ChainName,
-    /// The list's name (`en`, `it-pud`).
-    pub set: String,
-    /// Its language.
-    pub language: LangCode,
-    /// What ran: the chain, or for a routed chain the field used.
-    pub analysis: String,
-    /// Distinct words measured.
-    pub words: usize,
-    /// Concept groups.
-    pub groups: usize,
-    /// Forms left out for having several lemmas.
-    pub ambiguous_forms: usize,
-    /// Rows without a lemma (`_`).
-    pub without_lemma: usize,
-    /// The figures (`None` when the chain cannot serve the language).
-    pub figures: Option<ConflationFigures>,
-    /// Why there are no figures.
-    pub note: Option<String>,
-}
-
-/// One routed chain on one sentence set.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
-pub struct RoutingResult {
-    /// The chain.
-    pub chain: ChainName,
-    /// The detector it ran with: its own, or the other one on the same route
-    /// (so that both detectors' accuracy and cost are shown).
-    pub detector: DetectorKind,
-    /// `ud` or `ud_pud`.
-    pub collection: String,
-    /// The set's name.
-    pub set: String,
-    /// Its language.
-    pub language: LangCode,
-    /// The figures.
-    pub figures: RoutingFigures,
-}
-
-/// One chain's `hashtags` step on one gold set with one frequency source.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
-pub struct SegmentationResult {
-    /// The chain.
-    pub chain: ChainName,
-    /// The gold set's name.
-    pub gold: String,
-    /// The frequency source's label (`corpus:PATH`, `list:PATH`, `lists:LANG`
-    /// for a built-in list, `lists:all` for the merged one, `SOURCE+lists:LANG`
-    /// for a `corpus+lists` step, or `none`).
-    pub source: String,
-    /// Distinct words in its table.
-    pub source_words: usize,
-    /// The figures.
-    pub figures: SegmentationFigures,
-}
-
-/// One `unspaced` setting on one gold word segmentation.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
-pub struct UnspacedResult {
-    /// The gold set's name (`th`, `zh`, `ja`).
-    pub set: String,
-    /// Its language.
-    pub language: LangCode,
-    /// The setting of the `words` tokenizer.
-    pub setting: Unspaced,
-    /// The chains under test whose `words` or `posts` tokenizer uses it.
-    pub chains: Vec<ChainName>,
-    /// The figures.
-    pub figures: WordFigures,
-}
-
-/// A whole diagnostics report (`diagnostics.json` is this, serialised).
-#[derive(Debug, Clone, Serialize, Deserialize)]
-pub struct Diagnostics {
-    /// Layout version.
-    pub schema_version: u32,
-    /// The program.
-    pub tool: ToolInfo,
-    /// Always `vet`.
-    pub command: String,
-    /// Every file read, with its SHA-256.
-    pub inputs: Vec<InputFile>,
-    /// Chains in report order.
-    pub chains: Vec<ChainName>,
-    /// Chain definitions as data.
-    pub chain_specs: Vec<serde_json::Value>,
-    /// Sections computed.
-    pub sections: Sections,
-    /// Conflation results: by set, then chain order.
-    pub conflation: Vec<ConflationResult>,
-    /// Routing results: by chain, then detector (the chain's own first),
-    /// then collection, then set.
-    pub routing: Vec<RoutingResult>,
-    /// Segmentation results: by chain, then gold set, then source.
-    pub segmentation: Vec<SegmentationResult>,
-    /// Word segmentation results: by gold set, then setting.
-    #[serde(default)]
-    pub unspaced: Vec<UnspacedResult>,
-    /// What could not be measured, and why.
-    pub notes: Vec<String>,
 }
 
 /// Run the diagnostics of `plan`, reporting progress through `progress`.

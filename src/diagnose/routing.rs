@@ -25,57 +25,13 @@
 
 use std::collections::BTreeMap;
 
-use serde::{Deserialize, Serialize};
-
 use crate::analysis::detect::{length_bucket, LangDetector};
 use crate::analysis::Analyzer;
 use crate::input::LangCode;
 
-/// Label of the fallback field in confusion rows.
-pub const FALLBACK_LABEL: &str = "other";
-
-/// The length buckets in increasing order (labels of [`length_bucket`]).
-pub fn buckets() -> [&'static str; 4] {
-    [length_bucket(0), length_bucket(21), length_bucket(61), length_bucket(141)]
-}
-
-/// Accuracy on the sentences of one length bucket.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
-pub struct BucketFigures {
-    /// The bucket's label.
-    pub bucket: String,
-    /// Sentences in it.
-    pub sentences: usize,
-    /// Routed to their language's field.
-    pub correct: usize,
-    /// `correct / sentences` (`None` for an empty bucket).
-    pub accuracy: Option<f64>,
-    /// Sent to the fallback field.
-    pub to_fallback: usize,
-}
-
-/// Routing of one set of sentences of one language.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
-pub struct RoutingFigures {
-    /// Whether the route has a field for the language.
-    pub routable: bool,
-    /// Sentences.
-    pub sentences: usize,
-    /// Routed to their language's field.
-    pub correct: usize,
-    /// `correct / sentences` (`None` without sentences).
-    pub accuracy: Option<f64>,
-    /// Sentences sent to the fallback field.
-    pub to_fallback: usize,
-    /// Per length bucket, in [`buckets`] order (every bucket listed).
-    pub by_length: Vec<BucketFigures>,
-    /// Field label (a language code or [`FALLBACK_LABEL`]) → sentences.
-    pub confusion: BTreeMap<String, usize>,
-    /// Mean CPU time of language detection per sentence, in microseconds
-    /// (a measurement, so it varies from run to run; `None` when not
-    /// measured).
-    pub micros_per_sentence: Option<f64>,
-}
+pub use crate::report::model::diagnostics::{
+    buckets, BucketFigures, RoutingFigures, FALLBACK_LABEL,
+};
 
 fn share(num: usize, den: usize) -> Option<f64> {
     (den > 0).then(|| num as f64 / den as f64)

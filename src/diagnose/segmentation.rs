@@ -35,10 +35,11 @@
 
 use std::collections::BTreeMap;
 
-use serde::{Deserialize, Serialize};
 use tantivy::tokenizer::TextAnalyzer;
 
 use super::data::GoldTag;
+
+pub use crate::report::model::diagnostics::{SegmentationError, SegmentationFigures};
 
 /// The scoring of one tag.
 #[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
@@ -114,47 +115,6 @@ pub fn score_tag(predicted: &[String], accepted: &[String]) -> TagScore {
     let mut score = best.map(|(_, s)| s).unwrap_or_default();
     score.exact = exact;
     score
-}
-
-/// One wrong segmentation, as an example.
-#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
-pub struct SegmentationError {
-    /// Line in the gold file.
-    pub line: u64,
-    /// The tag.
-    pub tag: String,
-    /// The predicted parts, space-separated.
-    pub predicted: String,
-    /// The gold segmentation.
-    pub gold: String,
-}
-
-/// Totals over a gold set.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
-pub struct SegmentationFigures {
-    /// Tags scored.
-    pub tags: usize,
-    /// Exactly matched tags.
-    pub exact: usize,
-    /// `exact / tags`.
-    pub exact_accuracy: Option<f64>,
-    /// Tags left out of the boundary figures (see the module docs).
-    pub unaligned: usize,
-    /// Boundaries predicted.
-    pub predicted_boundaries: usize,
-    /// Gold boundaries.
-    pub gold_boundaries: usize,
-    /// Boundaries in both.
-    pub correct_boundaries: usize,
-    /// Micro-averaged boundary precision.
-    pub precision: Option<f64>,
-    /// Micro-averaged boundary recall.
-    pub recall: Option<f64>,
-    /// Harmonic mean of precision and recall.
-    pub f1: Option<f64>,
-    /// The first wrong segmentations in file order (as many as asked for,
-    /// see [`assess`]).
-    pub errors: Vec<SegmentationError>,
 }
 
 /// Micro-averaged precision (Σ correct / Σ predicted), recall (Σ correct /

@@ -40,54 +40,13 @@
 
 use std::collections::BTreeSet;
 
-use serde::{Deserialize, Serialize};
 use tantivy::tokenizer::{TextAnalyzer, Token};
 
 use super::data::GoldSentence;
 use super::segmentation::precision_recall_f1;
+
 use crate::analysis::{Unspaced, WordTokenizer};
-
-/// A sentence where the prediction differs from the gold.
-#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
-pub struct SentenceMiss {
-    /// The sentence id.
-    pub id: String,
-    /// The tokens, separated by spaces.
-    pub predicted: String,
-    /// The gold words, separated by spaces.
-    pub gold: String,
-}
-
-/// The figures of one setting on one gold set.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
-pub struct WordFigures {
-    /// Sentences scored.
-    pub sentences: usize,
-    /// Sentences whose gold words do not spell the text (not scored).
-    pub unaligned: usize,
-    /// Tokens produced on the scored sentences.
-    pub tokens: usize,
-    /// Predicted boundaries (places where a token starts or ends).
-    pub predicted_boundaries: usize,
-    /// Gold boundaries.
-    pub gold_boundaries: usize,
-    /// Places in both.
-    pub correct_boundaries: usize,
-    /// Σ correct / Σ predicted.
-    pub precision: Option<f64>,
-    /// Σ correct / Σ gold.
-    pub recall: Option<f64>,
-    /// Harmonic mean of precision and recall.
-    pub f1: Option<f64>,
-    /// Gold words with a letter or digit.
-    pub gold_words: usize,
-    /// Of those, found as a token with the same span.
-    pub words_found: usize,
-    /// `words_found / gold_words`.
-    pub word_recall: Option<f64>,
-    /// The first sentences (file order) where the boundaries differ.
-    pub misses: Vec<SentenceMiss>,
-}
+pub use crate::report::model::diagnostics::{SentenceMiss, WordFigures};
 
 /// Byte spans of the gold words in `text`, or `None` when they do not
 /// spell it (white space between words is skipped).

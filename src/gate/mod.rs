@@ -3,8 +3,9 @@
 //! than allowed. It sits after `report` in the data flow (input → analysis →
 //! index → search → eval → stats → report → **gate**): it reads two
 //! `report.json` documents, recomputes the paired tests from their per-query
-//! values with [`crate::stats`], and hands a [`GateOutcome`] to the Markdown
-//! and JUnit renderers of this module. The CLI maps a failed gate to exit 1.
+//! values with [`crate::stats`], and fills a [`GateOutcome`] (the gate part
+//! of the report model), which [`crate::report::gate_markdown`] and
+//! [`crate::report::gate_junit`] render. The CLI maps a failed gate to exit 1.
 //!
 //! # The rule
 //!
@@ -49,9 +50,6 @@
 //! their files, and a refusal says what changed (pairs added, grades
 //! changed, queries added …).
 
-mod junit;
-mod markdown;
-
 use std::collections::{BTreeMap, BTreeSet};
 use std::path::{Path, PathBuf};
 
@@ -60,12 +58,16 @@ use serde::Deserialize;
 use crate::error::{Error, Result};
 use crate::eval::Metric;
 use crate::ids::{ChainName, PostId, QueryId};
+use crate::report::gate_markdown as markdown;
 use crate::report::model::{Report, SCHEMA_VERSION};
 use crate::report::text::{chain_definition, definition_parts};
 use crate::stats;
 
-pub use junit::render_junit;
-pub use markdown::render_markdown;
+pub use crate::report::gate_junit::render_junit;
+pub use crate::report::gate_markdown::render_markdown;
+pub use crate::report::model::gate::{
+    Check, DefinitionChange, GateOutcome, Limit, MissingSystem, Verdict,
+};
 
 /// A drop no larger than this is no drop: it absorbs float rounding, like the
 /// 1e-12 tolerance metrics.md uses for ties.
@@ -81,15 +83,6 @@ pub const ANY_METRIC: &str = "*";
 /// The roles of `report.json` `inputs` that must be identical in both
 /// reports (formats.md: a report records each input's SHA-256).
 const SAME_INPUT_ROLES: [&str; 2] = ["judgments", "queries"];
-
-/// The limits of the drop of one metric. Both `None`: no drop is allowed.
-#[derive(Debug, Clone, Copy, Default, PartialEq)]
-pub struct Limit {
-    /// Largest allowed absolute drop of the mean.
-    pub absolute: Option<f64>,
-    /// Largest allowed drop in percent of the baseline mean.
-    pub relative_percent: Option<f64>,
-}
 
 impl Limit {
     /// True when neither an absolute nor a relative limit is set.
@@ -478,22 +471,6 @@ fn short_hash(h: &str) -> &str {
     h.get(..12).unwrap_or(h)
 }
 
-/// The outcome of one system × metric check.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord)]
-pub enum Verdict {
-    /// No drop (equal within [`DROP_TOLERANCE`], or better).
-    Pass,
-    /// Dropped, but no more than the limit allows.
-    WithinLimit,
-    /// Dropped beyond the limit, but the paired test is not significant and
-    /// significance is required.
-    NotSignificant,
-    /// A regression: the gate fails.
-    Regression,
-    /// A diagnostic metric (`unjudged@k`): shown, never gated.
-    NotGated,
-}
-
 impl Verdict {
     /// A short label for tables.
     pub fn label(self) -> &'static str {
@@ -507,56 +484,11 @@ impl Verdict {
     }
 }
 
-/// One system × metric comparison.
-#[derive(Debug, Clone, PartialEq)]
-pub struct Check {
-    /// The system (chain or run name).
-    pub system: ChainName,
-    /// The metric key.
-    pub metric: String,
-    /// Mean in the baseline report.
-    pub baseline_mean: f64,
-    /// Mean in the current report.
-    pub current_mean: f64,
-    /// The limit that applied.
-    pub limit: Limit,
-    /// Queries evaluated in both reports (the pairs of the tests).
-    pub paired_queries: usize,
-    /// Two-sided paired randomization test p (None with fewer than 2 pairs).
-    pub p_randomization: Option<f64>,
-    /// Two-sided paired t-test p (None with fewer than 2 pairs).
-    pub p_ttest: Option<f64>,
-    /// The decision.
-    pub verdict: Verdict,
-}
-
 impl Check {
     /// current mean − baseline mean.
     pub fn delta(&self) -> f64 {
         self.current_mean - self.baseline_mean
     }
-}
-
-/// A system of the baseline report that the current report lacks.
-#[derive(Debug, Clone, PartialEq, Eq)]
-pub struct MissingSystem {
-    /// Its name.
-    pub system: ChainName,
-    /// Whether the caller allowed it to go (`--allow-missing`); if not, the
-    /// gate fails.
-    pub allowed: bool,
-}
-
-/// A chain whose definition differs between the two reports (often the
-/// point of the change under review: shown, never refused).
-#[derive(Debug, Clone, PartialEq, Eq)]
-pub struct DefinitionChange {
-    /// The chain.
-    pub system: ChainName,
-    /// Each part that differs ([`definition_parts`]): the part, the
-    /// baseline's settings and the current ones (`none` where a part is
-    /// absent).
-    pub parts: Vec<(String, String, String)>,
 }
 
 /// The chains of both reports whose definitions differ (descriptions
@@ -596,33 +528,6 @@ fn definition_changes(b: &Report, c: &Report, systems: &[ChainName]) -> Vec<Defi
     out
 }
 
-/// Everything the gate found, ready to render.
-#[derive(Debug, Clone, PartialEq)]
-pub struct GateOutcome {
-    /// The baseline `report.json`.
-    pub baseline_path: PathBuf,
-    /// The current `report.json`.
-    pub current_path: PathBuf,
-    /// Checks in the current report's system order, then its metric order.
-    pub checks: Vec<Check>,
-    /// Systems of the baseline absent from the current report, in the
-    /// baseline's order.
-    pub missing: Vec<MissingSystem>,
-    /// Chains of both reports whose definition changed.
-    pub changed_definitions: Vec<DefinitionChange>,
-    /// Systems or metrics present in one report only, differences allowed
-    /// through, and other notes; never failures.
-    pub warnings: Vec<String>,
-    /// Whether only significant drops fail.
-    pub require_significance: bool,
-    /// The significance level.
-    pub alpha: f64,
-    /// Seed of the randomization test.
-    pub seed: u64,
-    /// Sampled sign assignments of the randomization test (n > 16).
-    pub permutations: u32,
-}
-
 impl GateOutcome {
     /// The checks that failed.
     pub fn regressions(&self) -> impl Iterator<Item = &Check> {
@@ -638,56 +543,6 @@ impl GateOutcome {
     pub fn passed(&self) -> bool {
         self.regressions().next().is_none() && self.missing_failures().next().is_none()
     }
-
-    /// The one-line verdict (Markdown), e.g. `**PASS**: no regression in 14
-    /// checks.`
-    pub fn verdict_line(&self) -> String {
-        let gated = self.checks.iter().filter(|c| c.verdict != Verdict::NotGated).count();
-        let checks = plural(gated, "check", "checks");
-        let failed: Vec<&Check> = self.regressions().collect();
-        let gone: Vec<String> =
-            self.missing_failures().map(|m| markdown::code(m.system.as_str())).collect();
-        let gone_text = (!gone.is_empty()).then(|| {
-            format!(
-                "{} of the baseline missing from the current report: {}",
-                plural(gone.len(), "system", "systems"),
-                gone.join(", ")
-            )
-        });
-        if failed.is_empty() {
-            return match gone_text {
-                None => format!("**PASS**: no regression in {checks}."),
-                Some(g) => format!("**FAIL**: {g}; no regression in {checks}."),
-            };
-        }
-        const NAMED: usize = 5;
-        let mut named: Vec<String> = failed
-            .iter()
-            .take(NAMED)
-            .map(|c| {
-                format!(
-                    "{} {} {} ({})",
-                    markdown::code(c.system.as_str()),
-                    c.metric,
-                    markdown::signed(c.delta()),
-                    markdown::limit_text(&c.limit)
-                )
-            })
-            .collect();
-        if failed.len() > NAMED {
-            named.push(format!("and {} more", failed.len() - NAMED));
-        }
-        format!(
-            "**FAIL**: {}{} in {checks}: {}.",
-            gone_text.map(|g| format!("{g}; ")).unwrap_or_default(),
-            plural(failed.len(), "regression", "regressions"),
-            named.join(", ")
-        )
-    }
-}
-
-fn plural(n: usize, one: &str, many: &str) -> String {
-    format!("{n} {}", if n == 1 { one } else { many })
 }
 
 /// Compare `current` with `baseline` under `settings`.

@@ -20,13 +20,12 @@
 use std::collections::BTreeMap;
 use std::fmt::Write;
 
-use crate::bench::compare::{BreakdownCell, ComparisonRow, MIN_BREAKDOWN_QUERIES};
-use crate::diagnose::render::{
+use crate::plural::counted;
+use crate::report::diagnostics::{
     conflation_table, routing_by_chain, routing_table, segmentation_table, unspaced_table, Table,
     UNSPACED_LEGEND,
 };
-use crate::plural::counted;
-use crate::report::model::Report;
+use crate::report::model::{BreakdownCell, ComparisonRow, Report, MIN_BREAKDOWN_QUERIES};
 use crate::report::svg::{self, esc, Bar, Estimate, Panel, Point, Series};
 use crate::report::text::{
     breakdown_caveat, build_time, cost_table, coverage_lines, definitions_table, fixed, headline,
@@ -951,7 +950,7 @@ pre { font-size: 12px; background: #f7f7f7; padding: 8px; overflow-x: auto; whit
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::diagnose::render::Cell;
+    use crate::report::diagnostics::Cell;
 
     #[test]
     fn diagnostics_tables_escape_and_draw_shares_as_bars() {

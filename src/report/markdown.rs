@@ -4,13 +4,12 @@
 
 use std::fmt::Write;
 
-use crate::bench::compare::{BreakdownCell, MIN_BREAKDOWN_QUERIES};
-use crate::diagnose::render::{
+use crate::plural::counted;
+use crate::report::diagnostics::{
     conflation_table, routing_by_chain, routing_table, segmentation_table, unspaced_table,
     UNSPACED_LEGEND,
 };
-use crate::plural::counted;
-use crate::report::model::Report;
+use crate::report::model::{BreakdownCell, Report, MIN_BREAKDOWN_QUERIES};
 use crate::report::text::{
     breakdown_caveat, build_time, cost_table, coverage_lines, definitions_table, fixed, headline,
     interval, moved_tables, names_groups, pvalue, reindex_case, route_table, sentence,

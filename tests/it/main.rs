@@ -1,6 +1,7 @@
 //! Integration tests: run the built `postassay` binary as a user would and
 //! check its outputs, messages and exit codes. One module per command.
 
+mod architecture;
 mod cache;
 mod chains;
 mod ci_recipe;

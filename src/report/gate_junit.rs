@@ -12,8 +12,8 @@
 
 use std::fmt::Write;
 
-use super::markdown::{definition_change_lines, fixed, limit_text, signed};
-use super::{Check, GateOutcome, Verdict};
+use crate::report::gate_markdown::{definition_change_lines, fixed, limit_text, signed};
+use crate::report::model::gate::{Check, GateOutcome, Verdict};
 
 /// Render the JUnit XML document.
 pub fn render_junit(outcome: &GateOutcome) -> String {

@@ -18,13 +18,13 @@
 //! unchanged. Anything else is foreign: the command refuses it before any
 //! work ([`check_out_dir`], exit 2), naming the entries.
 //!
-//! Last stage of the data flow, with the renderers of this module.
+//! Place in the data flow: at the bottom, beside `error`; the renderers of
+//! `report` make the bytes, this module only writes them.
 
 use std::collections::BTreeSet;
 use std::io::Write;
 use std::path::{Path, PathBuf};
 
-use crate::diagnose::render as diagnostics;
 use crate::error::{Error, Result};
 
 /// The file that lists, one relative path a line, what postassay wrote into
@@ -40,6 +40,29 @@ const REPORT_FILES: [&str; 6] =
 
 /// The subdirectory of `run`'s rankings.
 const RUNS_DIR: &str = "runs";
+
+/// The names of the files `vet` writes into its directory (rendered by
+/// [`crate::report`]).
+pub mod diagnostics {
+    /// File names written into `--out`.
+    pub const MARKDOWN_FILE: &str = "diagnostics.md";
+    /// The JSON model.
+    pub const JSON_FILE: &str = "diagnostics.json";
+    /// Conflation table.
+    pub const CONFLATION_CSV: &str = "diagnostics-conflation.csv";
+    /// Routing accuracy table (overall and per length bucket).
+    pub const ROUTING_CSV: &str = "diagnostics-routing.csv";
+    /// Routing confusion counts.
+    pub const CONFUSION_CSV: &str = "diagnostics-confusion.csv";
+    /// Segmentation table.
+    pub const SEGMENTATION_CSV: &str = "diagnostics-segmentation.csv";
+    /// Word segmentation of scripts written without spaces.
+    pub const UNSPACED_CSV: &str = "diagnostics-unspaced.csv";
+
+    /// Every file written into `--out`.
+    pub const FILES: [&str; 6] =
+        [MARKDOWN_FILE, JSON_FILE, CONFLATION_CSV, ROUTING_CSV, CONFUSION_CSV, SEGMENTATION_CSV];
+}
 
 /// Entries named in a refusal before the rest are counted.
 const NAMED: usize = 10;

@@ -1,15 +1,25 @@
 //! The report model: every number and fact a report shows, computed before
 //! any rendering. `report.json` is this model serialised; the Markdown, HTML
 //! and CSV writers render the same value and compute nothing of their own.
+//!
+//! Plain data at the bottom of the house: it names only ids, language codes
+//! and plain settings, never the modules that fill it (`bench` fills
+//! [`Report`], with the scores of `scores.rs`; `diagnose` fills
+//! [`diagnostics::Diagnostics`]; `gate` fills [`gate::GateOutcome`]).
 
 use std::collections::BTreeMap;
 
 use serde::{Deserialize, Serialize};
 
-use crate::bench::compare::{BreakdownCell, ComparisonRow, SystemSummary};
-use crate::bench::moved::MovedQuery;
+pub mod diagnostics;
+pub mod gate;
+mod scores;
+
+pub use scores::{
+    BreakdownCell, ComparisonRow, MetricSummary, SystemSummary, MIN_BREAKDOWN_QUERIES,
+};
+
 use crate::ids::{ChainName, PostId, QueryId};
-use crate::index::BuildCost;
 
 /// Version of the `report.json` layout; bumped on any incompatible change.
 pub const SCHEMA_VERSION: u32 = 1;
@@ -55,7 +65,7 @@ pub struct Report {
     /// only): conflation, routing and hashtag segmentation, with the SHA-256
     /// of every data file read. Absent from `report.json` without `--vet`.
     #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub diagnostics: Option<crate::diagnose::Diagnostics>,
+    pub diagnostics: Option<diagnostics::Diagnostics>,
     /// Warnings raised while reading and scoring.
     pub warnings: Vec<String>,
     /// Wall-clock figures; the only part that differs between identical runs.
@@ -239,17 +249,6 @@ pub struct Cost {
     pub posts_per_field: BTreeMap<String, u64>,
 }
 
-impl From<&BuildCost> for Cost {
-    fn from(c: &BuildCost) -> Cost {
-        Cost {
-            index_bytes: c.index_bytes,
-            distinct_terms: c.distinct_terms,
-            mean_tokens_per_post: c.mean_tokens_per_post,
-            posts_per_field: c.posts_per_field.clone(),
-        }
-    }
-}
-
 /// One system's per-query values.
 #[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct PerQuery {
@@ -266,6 +265,33 @@ pub struct QueryValues {
     pub query_id: QueryId,
     /// Values in `settings.metrics` order.
     pub values: Vec<f64>,
+}
+
+/// One query that moved, with an example post.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
+pub struct MovedQuery {
+    /// The compared chain.
+    pub system: ChainName,
+    /// The query.
+    pub query_id: QueryId,
+    /// The query text.
+    pub query_text: String,
+    /// Headline metric of the chain minus the baseline's on this query.
+    pub delta: f64,
+    /// A relevant post whose rank moved the same way, when there is one.
+    pub post_id: Option<PostId>,
+    /// Its text (absent when the report is redacted).
+    pub post_text: Option<String>,
+    /// Its grade.
+    pub grade: Option<u32>,
+    /// Its rank under the baseline (absent: not in the top `depth`).
+    pub rank_baseline: Option<usize>,
+    /// Its rank under the chain.
+    pub rank_system: Option<usize>,
+    /// Query terms the post matched under the baseline.
+    pub matched_baseline: Vec<String>,
+    /// Query terms the post matched under the chain.
+    pub matched_system: Vec<String>,
 }
 
 /// Wall-clock figures (differ from run to run).

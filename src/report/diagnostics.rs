@@ -2,9 +2,10 @@
 //! `diagnostics.json` (the model itself) and one CSV per table. Nothing here
 //! computes a figure; shares are only formatted.
 //!
-//! Place in the data flow: the report end of `diagnose`. Files are all
-//! rendered before any is written, then swapped in as a whole directory
-//! ([`replace_out_dir`]). CSV numbers are the shortest text that parses back to the same
+//! Place in the data flow: `report`, rendering the model `diagnose` fills
+//! ([`crate::report::model::diagnostics`]). Files are all rendered before
+//! any is written, then swapped in as a whole directory
+//! ([`crate::report::write_diagnostics`]). CSV numbers are the shortest text that parses back to the same
 //! f64 ([`format_shortest`]); an absent value is an empty field. Markdown
 //! uses fixed precision: 4 decimals for UI, 3 significant digits in
 //! scientific notation for OI and SW (their values are small: pairs across
@@ -17,35 +18,19 @@
 //! `report.md` and `report.html` show the same figures in the same words.
 
 use std::fmt::Write as _;
-use std::path::{Path, PathBuf};
 
-use super::conflation::ConflationFigures;
-use super::routing::{buckets, FALLBACK_LABEL};
-use super::{ConflationResult, Diagnostics, RoutingResult, SegmentationResult, UnspacedResult};
 use crate::analysis::detect::DetectorKind;
 use crate::error::{Error, Result};
 use crate::ids::ChainName;
 use crate::input::format_shortest;
-use crate::report::out_dir::{replace_out_dir, OutputFile};
-
-/// File names written into `--out`.
-pub const MARKDOWN_FILE: &str = "diagnostics.md";
-/// The JSON model.
-pub const JSON_FILE: &str = "diagnostics.json";
-/// Conflation table.
-pub const CONFLATION_CSV: &str = "diagnostics-conflation.csv";
-/// Routing accuracy table (overall and per length bucket).
-pub const ROUTING_CSV: &str = "diagnostics-routing.csv";
-/// Routing confusion counts.
-pub const CONFUSION_CSV: &str = "diagnostics-confusion.csv";
-/// Segmentation table.
-pub const SEGMENTATION_CSV: &str = "diagnostics-segmentation.csv";
-/// Word segmentation of scripts written without spaces.
-pub const UNSPACED_CSV: &str = "diagnostics-unspaced.csv";
-
-/// Every file written into `--out`.
-pub const FILES: [&str; 6] =
-    [MARKDOWN_FILE, JSON_FILE, CONFLATION_CSV, ROUTING_CSV, CONFUSION_CSV, SEGMENTATION_CSV];
+pub use crate::output::out_dir::diagnostics::{
+    CONFLATION_CSV, CONFUSION_CSV, FILES, JSON_FILE, MARKDOWN_FILE, ROUTING_CSV, SEGMENTATION_CSV,
+    UNSPACED_CSV,
+};
+use crate::report::model::diagnostics::{
+    buckets, ConflationFigures, ConflationResult, Diagnostics, RoutingResult, SegmentationResult,
+    UnspacedResult, FALLBACK_LABEL,
+};
 
 /// Every output file, rendered: `(file name, bytes)`.
 pub fn render_all(d: &Diagnostics) -> Result<Vec<(&'static str, Vec<u8>)>> {
@@ -58,16 +43,6 @@ pub fn render_all(d: &Diagnostics) -> Result<Vec<(&'static str, Vec<u8>)>> {
         (SEGMENTATION_CSV, segmentation_csv(d)?.into_bytes()),
         (UNSPACED_CSV, unspaced_csv(d)?.into_bytes()),
     ])
-}
-
-/// Make `out` hold exactly the output files (created when missing; the
-/// files of an earlier `vet` there are replaced, see
-/// [`replace_out_dir`]); returns the paths written.
-pub fn write_outputs(out: &Path, d: &Diagnostics) -> Result<Vec<PathBuf>> {
-    let files: Vec<OutputFile> =
-        render_all(d)?.into_iter().map(|(name, bytes)| (PathBuf::from(name), bytes)).collect();
-    replace_out_dir(out, &files)?;
-    Ok(files.iter().map(|(name, _)| out.join(name)).collect())
 }
 
 /// `diagnostics.json`: the model, pretty-printed, with a final newline.
@@ -847,88 +822,6 @@ fn unspaced_md(s: &mut String, d: &Diagnostics) {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::diagnose::conflation::{figures, WordGroups};
-    use crate::diagnose::data::LemmaList;
-    use crate::diagnose::routing::{tally, RoutingFigures};
-    use crate::diagnose::{ConflationResult, Sections, SCHEMA_VERSION};
-    use crate::ids::ChainName;
-    use crate::input::LangCode;
-    use crate::report::model::{InputFile, ToolInfo};
-
-    fn sample() -> Diagnostics {
-        let en = LangCode::parse("en").expect("valid");
-        let list = LemmaList {
-            rows: [("runs", "run"), ("ran", "run"), ("cat", "cat")]
-                .iter()
-                .map(|(f, l)| (f.to_string(), l.to_string()))
-                .collect(),
-            without_lemma: 0,
-        };
-        let groups = WordGroups::from_list(&list);
-        let stems = ["run", "ran", "cat"].map(String::from);
-        Diagnostics {
-            schema_version: SCHEMA_VERSION,
-            tool: ToolInfo { name: "postassay".into(), version: "0".into() },
-            command: "vet".into(),
-            inputs: vec![InputFile {
-                role: "lemmas:en".into(),
-                path: "en.tsv".into(),
-                sha256: "ab".into(),
-            }],
-            chains: vec![ChainName::from("stemmed")],
-            chain_specs: Vec::new(),
-            sections: Sections::all(),
-            conflation: vec![ConflationResult {
-                chain: ChainName::from("stemmed"),
-                set: "en".into(),
-                language: en,
-                analysis: "stemmed (stem(en, current))".into(),
-                words: 3,
-                groups: 2,
-                ambiguous_forms: 0,
-                without_lemma: 0,
-                figures: Some(figures(&groups, &stems, 3)),
-                note: None,
-            }],
-            routing: vec![RoutingResult {
-                chain: ChainName::from("routed"),
-                detector: DetectorKind::Lingua,
-                collection: "ud".into(),
-                set: "en".into(),
-                language: en,
-                figures: RoutingFigures {
-                    micros_per_sentence: Some(250.0),
-                    ..tally(en, true, &[(10, Some(en)), (80, None)])
-                },
-            }],
-            segmentation: Vec::new(),
-            unspaced: Vec::new(),
-            notes: vec!["segmentation: none of the chains has a hashtags step".into()],
-        }
-    }
-
-    #[test]
-    fn csv_rows_carry_the_figures() {
-        let d = sample();
-        let conflation = conflation_csv(&d).expect("renders");
-        let row = conflation.lines().nth(1).expect("one row");
-        // 3 words; GDMT 1 (runs–ran), GUMT 1, GDNT 2, GWMT 0: UI 1, OI 0.
-        assert_eq!(
-            row,
-            "stemmed,en,en,\"stemmed (stem(en, current))\",3,2,1,0,0,0,1,1,2,0,1,0,0,0,2,"
-        );
-        let routing = routing_csv(&d).expect("renders");
-        let lines: Vec<&str> = routing.lines().collect();
-        assert_eq!(lines[1], "routed,lingua,ud,en,en,yes,all,2,1,0.5,1,250");
-        assert_eq!(lines[2], "routed,lingua,ud,en,en,yes,<=20,1,1,1,0,");
-        assert_eq!(lines[3], "routed,lingua,ud,en,en,yes,21-60,0,0,,0,");
-        assert_eq!(lines[4], "routed,lingua,ud,en,en,yes,61-140,1,0,0,1,");
-        let confusion = confusion_csv(&d).expect("renders");
-        assert_eq!(
-            confusion.lines().skip(1).collect::<Vec<_>>(),
-            ["routed,lingua,ud,en,en,en,1", "routed,lingua,ud,en,en,other,1"]
-        );
-    }
 
     #[test]
     fn tables_escape_cells_and_align_numbers() {
@@ -938,72 +831,5 @@ mod tests {
             rows: vec![vec![Cell::text("x`y"), Cell::text("3")]],
         };
         assert_eq!(t.markdown(), "| a\\|b | n |\n|---|--:|\n| x'y | 3 |\n");
-    }
-
-    #[test]
-    fn routing_tables_carry_the_model_shares_per_chain() {
-        let mut d = sample();
-        let mut other = d.routing[0].clone();
-        other.chain = ChainName::from("other");
-        let mut second = d.routing[0].clone();
-        second.set = "de".into();
-        second.figures.micros_per_sentence = Some(1000.0);
-        let mut whatlang = d.routing[0].clone();
-        whatlang.detector = DetectorKind::Whatlang;
-        // Swedish, not routed: one sentence of 80 chars sent to the fallback.
-        let sv = LangCode::parse("sv").expect("valid");
-        let mut unlisted = d.routing[0].clone();
-        unlisted.set = "sv".into();
-        unlisted.figures = tally(sv, false, &[(80, None)]);
-        d.routing.extend([other, second, whatlang, unlisted]);
-        let grouped = routing_by_chain(&d.routing);
-        let names: Vec<(&str, &str, usize)> =
-            grouped.iter().map(|g| (g.chain.as_str(), g.detector.as_str(), g.rows.len())).collect();
-        assert_eq!(
-            names,
-            [("routed", "lingua", 3), ("other", "lingua", 1), ("routed", "whatlang", 1)],
-            "report order, sets gathered per chain and detector"
-        );
-        assert_eq!(grouped[2].title(), "`routed`, detector `whatlang`");
-        // Pooled over the timed sets: (250 · 2 + 1000 · 2) / 4 sentences.
-        assert_eq!(grouped[0].micros_per_sentence(), Some(625.0));
-        let table = routing_table(&grouped[0].rows);
-        assert_eq!(table.header.len(), 10);
-        assert_eq!(table.numeric, [false, false, true, true, true, true, true, true, true, true]);
-        // Two sentences: 10 chars → en (right), 80 chars → fallback (wrong).
-        let shares: Vec<Option<f64>> = table.rows[0].iter().map(|c| c.share).collect();
-        assert_eq!(
-            shares,
-            [None, None, None, Some(0.5), Some(1.0), None, Some(0.0), None, None, None]
-        );
-        assert_eq!(table.rows[0][4].text, "100.0% (1)");
-        assert_eq!(table.rows[0][9].text, "250");
-        // The unlisted language: the cells show the share sent to the fallback.
-        let texts: Vec<&str> = table.rows[2].iter().map(|c| c.text.as_str()).collect();
-        assert_eq!(
-            texts,
-            ["ud", "sv", "1", "not routed", "–", "–", "↪ 100.0% (1)", "–", "100.0%", "–"]
-        );
-        assert_eq!(table.rows[2][6].share, Some(1.0));
-    }
-
-    #[test]
-    fn markdown_shows_tables_offenders_and_inputs() {
-        let md = markdown(&sample());
-        let row =
-            "| en | stemmed | stemmed (stem(en, current)) | 3 | 1 | 1.0000 | 0 | 0 | 0.0% | 2.00 |";
-        assert!(md.contains(row), "{md}");
-        assert!(md.contains("- split `run` (2 words, 2 terms): `ran` ran; `run` runs"), "{md}");
-        // Two sentences: 10 chars → en (right), 80 chars → fallback (wrong).
-        let row = "| ud | en | 2 | 50.0% | 100.0% (1) | – | 0.0% (1) | – | 50.0% | 250 |";
-        assert!(md.contains(row), "{md}");
-        assert!(md.contains("### `routed`, detector `lingua`\n"), "{md}");
-        assert!(md.contains("Detection: 250 µs of CPU time per sentence."), "{md}");
-        assert!(md.contains("| en | **1** | 1 |"), "{md}");
-        assert!(md.contains("| lemmas:en | `en.tsv` | `ab` |"), "{md}");
-        assert!(md.contains("## Notes"));
-        let json = json(&sample()).expect("serialises");
-        let back: Diagnostics = serde_json::from_str(&json).expect("parses back");
-        assert_eq!(back.conflation, sample().conflation);
     }
 }

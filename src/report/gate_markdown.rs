@@ -5,7 +5,7 @@
 
 use std::fmt::Write;
 
-use super::{GateOutcome, Limit, Verdict};
+use crate::report::model::gate::{Check, GateOutcome, Limit, Verdict};
 
 /// Decimal places of means, deltas and limits in the table.
 const PLACES: usize = 4;
@@ -115,7 +115,7 @@ pub(super) fn definition_change_lines(outcome: &GateOutcome) -> Vec<String> {
 }
 
 /// A number with the table's fixed precision.
-pub(super) fn fixed(v: f64) -> String {
+pub(crate) fn fixed(v: f64) -> String {
     format!("{v:.PLACES$}")
 }
 
@@ -159,10 +159,60 @@ pub(super) fn code(text: &str) -> String {
     format!("{fence}{pad}{}{pad}{fence}", cell(text))
 }
 
+impl GateOutcome {
+    /// The one-line verdict (Markdown), e.g. `**PASS**: no regression in 14
+    /// checks.`
+    pub fn verdict_line(&self) -> String {
+        let gated = self.checks.iter().filter(|c| c.verdict != Verdict::NotGated).count();
+        let checks = plural(gated, "check", "checks");
+        let failed: Vec<&Check> = self.regressions().collect();
+        let gone: Vec<String> = self.missing_failures().map(|m| code(m.system.as_str())).collect();
+        let gone_text = (!gone.is_empty()).then(|| {
+            format!(
+                "{} of the baseline missing from the current report: {}",
+                plural(gone.len(), "system", "systems"),
+                gone.join(", ")
+            )
+        });
+        if failed.is_empty() {
+            return match gone_text {
+                None => format!("**PASS**: no regression in {checks}."),
+                Some(g) => format!("**FAIL**: {g}; no regression in {checks}."),
+            };
+        }
+        const NAMED: usize = 5;
+        let mut named: Vec<String> = failed
+            .iter()
+            .take(NAMED)
+            .map(|c| {
+                format!(
+                    "{} {} {} ({})",
+                    code(c.system.as_str()),
+                    c.metric,
+                    signed(c.delta()),
+                    limit_text(&c.limit)
+                )
+            })
+            .collect();
+        if failed.len() > NAMED {
+            named.push(format!("and {} more", failed.len() - NAMED));
+        }
+        format!(
+            "**FAIL**: {}{} in {checks}: {}.",
+            gone_text.map(|g| format!("{g}; ")).unwrap_or_default(),
+            plural(failed.len(), "regression", "regressions"),
+            named.join(", ")
+        )
+    }
+}
+
+fn plural(n: usize, one: &str, many: &str) -> String {
+    format!("{n} {}", if n == 1 { one } else { many })
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::gate::Check;
     use crate::ids::ChainName;
     use std::path::PathBuf;
 
