@@ -4,9 +4,12 @@
 //! Data flow (each module depends only on the ones before it):
 //! `input` → `analysis` → `index` → `search` → `eval` → `stats` → `report`,
 //! with `bench` orchestrating a whole run and the binary's `cli` on top.
+//! `fetch` sits beside `input`: it makes runs from a live search endpoint,
+//! standing in for `analysis` … `search`.
 #![deny(missing_docs)]
 
 pub mod error;
+pub mod fetch;
 pub mod ids;
 pub mod input;
 pub mod plural;
