@@ -115,7 +115,7 @@ fn serve(
         .and_then(|d| d.parse().ok())
         .unwrap_or(0);
     let fail = faults.load(Ordering::SeqCst)
-        && id % FAULT_EVERY == 0
+        && id.is_multiple_of(FAULT_EVERY)
         && failed_once.lock().map(|mut s| s.insert(id)).unwrap_or(false);
     let (status, body) = if fail {
         ("503 Service Unavailable", "{\"reason\": \"busy\"}".to_string())

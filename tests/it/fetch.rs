@@ -226,7 +226,13 @@ fn answer(request: &Request) -> String {
 }
 
 fn ok(request: &Request) -> Reply {
-    Reply { status: 200, headers: Vec::new(), body: answer(request), delay: Duration::ZERO }
+    reply(200, &[], &answer(request))
+}
+
+/// An immediate reply with this status, headers and body.
+fn reply(status: u16, headers: &[(&'static str, &str)], body: &str) -> Reply {
+    let headers = headers.iter().map(|(n, v)| (*n, v.to_string())).collect();
+    Reply { status, headers, body: body.to_string(), delay: Duration::ZERO }
 }
 
 /// Run `postassay fetch` with the secret in its environment.
@@ -386,12 +392,7 @@ fn get_and_post_templates_write_the_served_rankings_then_score_reads_them() {
 fn too_many_requests_is_retried_after_the_wait_it_asks_for() {
     let server = Server::start(Arc::new(|r: &Request, seen| {
         if r.query == "q2" && seen == 0 {
-            Reply {
-                status: 429,
-                headers: vec![("Retry-After", "1".into())],
-                body: "{}".into(),
-                delay: Duration::ZERO,
-            }
+            reply(429, &[("Retry-After", "1")], "{}")
         } else {
             ok(r)
         }
@@ -416,12 +417,7 @@ fn too_many_requests_is_retried_after_the_wait_it_asks_for() {
 fn server_errors_past_the_tries_end_with_exit_2_naming_the_query() {
     let server = Server::start(Arc::new(|r: &Request, _| {
         if r.query == "q2" {
-            Reply {
-                status: 500,
-                headers: Vec::new(),
-                body: "{\"reason\": \"overloaded\"}".into(),
-                delay: Duration::ZERO,
-            }
+            reply(500, &[], "{\"reason\": \"overloaded\"}")
         } else {
             ok(r)
         }
@@ -474,8 +470,7 @@ fn a_slow_answer_past_the_time_limit_is_retried_then_fails_when_always_slow() {
 fn an_answer_without_the_hit_list_names_query_pointer_and_excerpt() {
     let server = Server::start(Arc::new(|r: &Request, _| {
         if r.query == "q10" {
-            let body = "{\"error\": {\"reason\": \"no such index: posts_v2\"}}".to_string();
-            Reply { status: 200, headers: Vec::new(), body, delay: Duration::ZERO }
+            reply(200, &[], "{\"error\": {\"reason\": \"no such index: posts_v2\"}}")
         } else {
             ok(r)
         }
@@ -489,6 +484,60 @@ fn an_answer_without_the_hit_list_names_query_pointer_and_excerpt() {
         stderr.contains(r#"query "q10": the answer does not match the template: the hit list "/ranking/*" is not in the answer (no "/ranking"); answer: {"error": {"reason": "no such index: posts_v2"}}"#),
         "{stderr}"
     );
+}
+
+#[test]
+fn every_template_is_checked_before_the_first_request() {
+    let server = Server::start(Arc::new(|r: &Request, _| ok(r)));
+    let tmp = tempfile::tempdir().expect("temp dir");
+    let get = server.template(tmp.path(), "get.toml");
+    let bad = crate::util::write(
+        tmp.path(),
+        "bad.toml",
+        "url = \"http://127.0.0.1:1/s?q={text}\"\n[response]\nhits = \"/r/*\"\nid = \"/p\"\nscore = \"/s\"\n",
+    );
+    let queries = fixture("fetch/queries.csv");
+    let (first, second) = (format!("a={}", get.display()), format!("b={}", bad.display()));
+    let args = [
+        "--queries",
+        queries.to_str().expect("utf-8"),
+        "--endpoint",
+        &first,
+        "--endpoint",
+        &second,
+        "--out",
+        "runs",
+    ];
+    let res = fetch(tmp.path(), &args);
+    let (_, stderr) = texts(&res);
+    assert_eq!(res.status.code(), Some(2), "{stderr}");
+    assert!(
+        stderr.contains(&format!(
+            "{}:1: url: {{text}}: say how to escape it here, {{text:url}}",
+            bad.display()
+        )),
+        "{stderr}"
+    );
+    // Without the secret's variable, the template that needs it is refused.
+    let res = Command::new(env!("CARGO_BIN_EXE_postassay"))
+        .current_dir(tmp.path())
+        .env_remove("POSTASSAY_TEST_SECRET")
+        .args([
+            "fetch",
+            "--queries",
+            queries.to_str().expect("utf-8"),
+            "--endpoint",
+            &first,
+            "--out",
+            "runs",
+        ])
+        .output()
+        .expect("runs");
+    let (_, stderr) = texts(&res);
+    assert_eq!(res.status.code(), Some(2), "{stderr}");
+    assert!(stderr.contains(&format!("{}:6: headers: X-Api-Key: the environment variable \"POSTASSAY_TEST_SECRET\" is not set", get.display())), "{stderr}");
+    assert!(server.requests().is_empty());
+    assert!(!tmp.path().join("runs").exists());
 }
 
 #[test]
