@@ -15,6 +15,8 @@ use postassay::fetch::{self, Endpoint, FetchEvent, FetchSettings, FetchSummary, 
 use postassay::input::read_queries;
 use postassay::report::write_atomic;
 
+use postassay::plural::counted;
+
 use super::common::{check_file_flag, named_files};
 
 /// Least time between two progress lines of one candidate.
@@ -144,7 +146,7 @@ impl Printer {
                 } else {
                     String::new()
                 };
-                eprintln!("postassay: fetch {}: {total} queries{from}", endpoint.as_str());
+                eprintln!("postassay: fetch {}: {}{from}", endpoint.as_str(), queries(total));
                 self.last = Some(Instant::now());
             }
             FetchEvent::Fetched { endpoint, done, total } => {
@@ -155,7 +157,7 @@ impl Printer {
                 }
             }
             FetchEvent::Retrying { endpoint, query, cause: _, detail, wait } => eprintln!(
-                "postassay: fetch {}: query {:?}: {detail}; trying again in {:.1} s",
+                "postassay: fetch {}: query {:?}: {detail}; trying again in {:.2} s",
                 endpoint.as_str(),
                 query.as_str(),
                 wait.as_secs_f64()
@@ -179,13 +181,14 @@ fn summary_line(s: &FetchSummary) -> String {
         String::new()
     };
     format!(
-        "fetch {}: {} queries ({} fetched, {} resumed), {} hits{repeats}; {retries} retries{causes}; \
+        "fetch {}: {} ({} fetched, {} resumed), {} hits{repeats}; {}{causes}; \
          latency ms p50 {} p90 {} p99 {} max {}; {:.2} s; wrote {}",
         s.endpoint.as_str(),
-        s.queries,
+        queries(s.queries),
         s.fetched,
         s.resumed,
         s.hits,
+        counted(retries, "retry", "retries"),
         ms(s.latency.p50),
         ms(s.latency.p90),
         ms(s.latency.p99),
@@ -193,4 +196,8 @@ fn summary_line(s: &FetchSummary) -> String {
         s.wall.as_secs_f64(),
         s.run_file.display()
     )
+}
+
+fn queries(n: usize) -> String {
+    counted(n, "query", "queries")
 }

@@ -187,6 +187,11 @@ impl Client {
             {
                 Attempt::Retry { cause: RetryCause::TimedOut, detail: limit, after: None }
             }
+            // A TLS failure (rustls reports it as invalid data) will not
+            // mend by trying again.
+            ureq::Error::Io(io) if io.kind() == std::io::ErrorKind::InvalidData => {
+                Attempt::Fail(format!("connection failed: {io}"))
+            }
             ureq::Error::Io(_)
             | ureq::Error::ConnectionFailed
             | ureq::Error::HostNotFound

@@ -174,7 +174,8 @@ pub fn fetch_endpoint(
     let mut latencies = Vec::new();
     let mut retries: BTreeMap<RetryCause, usize> = BTreeMap::new();
     let mut repeats = 0;
-    let mut failure: Option<Error> = None;
+    let mut failure: Option<String> = None;
+    let mut write_failure: Option<Error> = None;
     let template = &endpoint.template;
     std::thread::scope(|scope| {
         for _ in 0..settings.parallel.clamp(1, todo.len().max(1)) {
@@ -227,7 +228,7 @@ pub fn fetch_endpoint(
                     let Some(query) = todo.get(index) else { continue };
                     if let Err(e) = partial.append(&query.id, &hits) {
                         stop.store(true, Ordering::SeqCst);
-                        failure.get_or_insert(e);
+                        write_failure.get_or_insert(e);
                         continue;
                     }
                     repeats += r;
@@ -252,20 +253,31 @@ pub fn fetch_endpoint(
                     stop.store(true, Ordering::SeqCst);
                     let query = todo.get(index).map_or("?", |q| q.id.as_str());
                     failure.get_or_insert_with(|| {
-                        Error::remote(format!(
-                            "endpoint {} ({}): query {query:?}: {message}\n(the queries fetched \
-                             so far are kept in {}; run the same command again to fetch the rest)",
+                        format!(
+                            "endpoint {} ({}): query {query:?}: {message}",
                             endpoint.name.as_str(),
                             template.path.display(),
-                            partial_file.display()
-                        ))
+                        )
                     });
                 }
             }
         }
     });
-    if let Some(e) = failure {
+    if let Some(e) = write_failure {
         return Err(e);
+    }
+    if let Some(message) = failure {
+        // A partial file that holds no query is no use to a restart.
+        if partial.records() == 0 {
+            partial.remove()?;
+            return Err(Error::remote(message));
+        }
+        return Err(Error::remote(format!(
+            "{message}\n(the {} fetched so far are kept in {}; run the same command again to \
+             fetch the rest)",
+            crate::plural::counted(partial.records(), "query", "queries"),
+            partial_file.display()
+        )));
     }
     let mut run = Run::default();
     let mut hit_count = 0;

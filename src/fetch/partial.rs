@@ -46,6 +46,7 @@ pub type Fetched = BTreeMap<QueryId, Vec<(PostId, f64)>>;
 pub struct Partial {
     path: PathBuf,
     file: File,
+    records: usize,
 }
 
 impl Partial {
@@ -70,11 +71,17 @@ impl Partial {
         // Whole lines only: a cut last line is dropped.
         let whole = bytes.iter().rposition(|&b| b == b'\n').map_or(0, |i| i + 1);
         let mut fetched = Fetched::new();
+        let mut records = 0;
         let mut lines = bytes.get(..whole).unwrap_or_default().split(|&b| b == b'\n');
-        let has_header = match lines.next().filter(|l| !l.is_empty()) {
+        let first = lines.next().filter(|l| !l.is_empty());
+        let holds_records = lines.clone().any(|l| !l.is_empty());
+        let has_header = match first {
             Some(first) => {
                 let found: Header = serde_json::from_slice(first).map_err(|_| not_ours(path, 1))?;
-                if found != header {
+                if found != header && !holds_records {
+                    // Nothing fetched with the old template: start afresh.
+                    false
+                } else if found != header {
                     return Err(Error::in_file(
                         path,
                         format!(
@@ -85,8 +92,9 @@ impl Partial {
                             found.template_sha256.get(..12).unwrap_or(&found.template_sha256)
                         ),
                     ));
+                } else {
+                    true
                 }
-                true
             }
             None => false,
         };
@@ -102,11 +110,13 @@ impl Partial {
                 hits.push((PostId::from(doc), score));
             }
             fetched.insert(QueryId::from(record.query_id), hits);
+            records += 1;
         }
         let file = OpenOptions::new().create(true).append(true).open(path).map_err(io)?;
         let keep = if has_header { whole as u64 } else { 0 };
         file.set_len(keep).map_err(io)?;
-        let mut partial = Partial { path: path.to_path_buf(), file };
+        let records = if has_header { records } else { 0 };
+        let mut partial = Partial { path: path.to_path_buf(), file, records };
         if !has_header {
             let line = serde_json::to_string(&header).map_err(|e| Error::usage(e.to_string()))?;
             partial.append_line(line)?;
@@ -121,7 +131,14 @@ impl Partial {
             hits: hits.iter().map(|(d, s)| (d.to_string(), format_shortest(*s))).collect(),
         };
         let line = serde_json::to_string(&record).map_err(|e| Error::usage(e.to_string()))?;
-        self.append_line(line)
+        self.append_line(line)?;
+        self.records += 1;
+        Ok(())
+    }
+
+    /// Queries the file holds (read back or appended).
+    pub fn records(&self) -> usize {
+        self.records
     }
 
     fn append_line(&mut self, mut line: String) -> Result<()> {
@@ -180,5 +197,15 @@ mod tests {
         );
         let err = Partial::open(&path, "abc", 5).expect_err("other depth").to_string();
         assert!(err.contains("another template or depth"), "{err}");
+        // A file that holds no query yet is simply started again.
+        let empty = dir.path().join("b.csv.partial");
+        drop(Partial::open(&empty, "abc", 10).expect("new"));
+        let (p, fetched) = Partial::open(&empty, "xyz", 10).expect("started again");
+        assert_eq!((fetched.len(), p.records()), (0, 0));
+        let text = std::fs::read_to_string(&empty).expect("read");
+        assert_eq!(
+            text,
+            "{\"postassay_fetch_partial\":1,\"template_sha256\":\"xyz\",\"depth\":10}\n"
+        );
     }
 }

@@ -404,7 +404,7 @@ fn too_many_requests_is_retried_after_the_wait_it_asks_for() {
     assert_eq!(res.status.code(), Some(0), "{stderr}");
     let expected = std::fs::read_to_string(fixture("fetch/expected_depth3.csv")).expect("fixture");
     assert_eq!(std::fs::read_to_string(tmp.path().join("runs/a.csv")).expect("run"), expected);
-    assert!(stderr.contains("1 retries (429 1)"), "{stderr}");
+    assert!(stderr.contains("1 retry (429 1)"), "{stderr}");
     assert!(stderr.contains("query \"q2\": HTTP status 429 Too Many Requests"), "{stderr}");
     // Retry-After: 1 (RFC 9110 §10.2.3) outweighs the 0.01 s backoff.
     let q2: Vec<Instant> =
@@ -435,6 +435,7 @@ fn server_errors_past_the_tries_end_with_exit_2_naming_the_query() {
     assert_eq!(server.requests().iter().filter(|r| r.query == "q2").count(), 3);
     assert!(!tmp.path().join("runs/a.csv").exists(), "no run file after a failure");
     assert!(tmp.path().join("runs/a.csv.partial").exists(), "the partial file is kept");
+    assert!(stderr.contains("fetched so far are kept in"), "{stderr}");
     assert_secret_hidden(tmp.path(), &stderr);
 }
 
@@ -455,7 +456,7 @@ fn a_slow_answer_past_the_time_limit_is_retried_then_fails_when_always_slow() {
     let res = fetch_one(tmp.path(), &queries, "a", &template, &["--timeout", "0.5"]);
     let (_, stderr) = texts(&res);
     assert_eq!(res.status.code(), Some(0), "{stderr}");
-    assert!(stderr.contains("1 retries (time-out 1)"), "{stderr}");
+    assert!(stderr.contains("1 retry (time-out 1)"), "{stderr}");
     assert!(stderr.contains("query \"q2\": timed out after 0.5 s; trying again"), "{stderr}");
 
     let queries = crate::util::write(tmp.path(), "q10.csv", "query_id,text\nq10,c\n");
