@@ -273,10 +273,10 @@ pub fn fetch_endpoint(
             return Err(Error::remote(message));
         }
         return Err(Error::remote(format!(
-            "{message}\n(the {} fetched so far are kept in {}; run the same command again to \
-             fetch the rest)",
-            crate::plural::counted(partial.records(), "query", "queries"),
-            partial_file.display()
+            "{message}\n(kept in {}: {} fetched so far; run the same command again to fetch \
+             the rest)",
+            partial_file.display(),
+            crate::plural::counted(partial.records(), "query", "queries")
         )));
     }
     let mut run = Run::default();
