@@ -62,6 +62,8 @@ pub enum ErrorKind {
     Chain(String),
     /// An error reported by the search engine library.
     Index(String),
+    /// A search endpoint that failed or answered unexpectedly (`fetch`).
+    Remote(String),
 }
 
 impl Error {
@@ -120,6 +122,11 @@ impl Error {
     /// A search-engine error.
     pub fn index(message: impl Into<String>) -> Error {
         Error::new(ErrorKind::Index(message.into()))
+    }
+
+    /// A search endpoint's failure or unexpected answer.
+    pub fn remote(message: impl Into<String>) -> Error {
+        Error::new(ErrorKind::Remote(message.into()))
     }
 }
 
@@ -198,6 +205,7 @@ impl fmt::Display for Error {
             ErrorKind::Usage(m) => write!(f, "{m}"),
             ErrorKind::Chain(m) => write!(f, "{m}"),
             ErrorKind::Index(m) => write!(f, "search engine: {m}"),
+            ErrorKind::Remote(m) => write!(f, "{m}"),
         }
     }
 }

@@ -7,9 +7,12 @@
 //! `judge` beside it, and the binary's `cli` on top. `bench`, `diagnose` and
 //! `gate` fill the report model (`report::model`); `report` renders what it
 //! is handed and imports none of them; `output` writes the files.
+//! `fetch` sits beside `input`: it makes runs from a live search endpoint,
+//! standing in for `analysis` … `search`.
 #![deny(missing_docs)]
 
 pub mod error;
+pub mod fetch;
 pub mod ids;
 pub mod input;
 pub mod plural;

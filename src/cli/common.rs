@@ -154,6 +154,31 @@ pub fn refuse_directory(argument: &str, path: &Path) -> Result<(), Error> {
     Ok(())
 }
 
+/// Parse repeated `NAME=FILE` arguments of `flag` (`--run`, `--endpoint`):
+/// names use letters, digits, `-`, `_` and `.` (they become file and column
+/// names) and are unique; a FILE that is a directory is refused.
+pub fn named_files(flag: &str, specs: &[String]) -> Result<Vec<(ChainName, PathBuf)>, Error> {
+    let mut named: Vec<(ChainName, PathBuf)> = Vec::new();
+    for spec in specs {
+        let expected = || Error::usage(format!("{flag}: expected NAME=FILE, found {spec:?}"));
+        let (name, file) = spec.split_once('=').ok_or_else(expected)?;
+        if name.is_empty() || file.is_empty() {
+            return Err(expected());
+        }
+        if !name.chars().all(|c| c.is_alphanumeric() || "-_.".contains(c)) {
+            return Err(Error::usage(format!(
+                "{flag}: a NAME uses letters, digits, '-', '_' and '.', found {name:?}"
+            )));
+        }
+        if named.iter().any(|(n, _)| n.as_str() == name) {
+            return Err(Error::usage(format!("{flag}: the name {name:?} is given twice")));
+        }
+        refuse_directory(&format!("{flag} {spec}"), Path::new(file))?;
+        named.push((ChainName::from(name), PathBuf::from(file)));
+    }
+    Ok(named)
+}
+
 /// The last progress line of `run` and `score`: where the reports went,
 /// naming the page to open first.
 pub fn wrote_reports(out: &Path) -> String {

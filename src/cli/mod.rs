@@ -6,6 +6,7 @@
 mod cache;
 mod common;
 mod explain;
+mod fetch;
 mod gate;
 mod judge;
 mod pool;
@@ -39,6 +40,9 @@ enum Command {
     Run(run::RunArgs),
     /// Score existing ranked runs against judgments and compare them.
     Score(score::ScoreArgs),
+    /// Send every query to live search endpoints (one request template per
+    /// candidate) and write one run file per candidate for `score`.
+    Fetch(fetch::FetchArgs),
     /// Show the tokens a chain makes of a text (`--trace`: after each step).
     Tokens(tokens::TokensArgs),
     /// Show, for one query and one post, each chain's analysed terms, the
@@ -65,6 +69,7 @@ pub fn execute(cli: Cli) -> anyhow::Result<ExitCode> {
     match cli.command {
         Command::Run(args) => run::execute(args),
         Command::Score(args) => score::execute(args),
+        Command::Fetch(args) => fetch::execute(args),
         Command::Tokens(args) => tokens::execute(args),
         Command::Explain(args) => explain::execute(args),
         Command::Gate(args) => gate::execute(args),

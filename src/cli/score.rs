@@ -1,17 +1,16 @@
 //! `postassay score`: evaluate and compare existing runs.
 
-use std::path::{Path, PathBuf};
+use std::path::PathBuf;
 use std::process::ExitCode;
 
 use clap::Args;
 
 use postassay::bench::{self, ScorePlan};
 use postassay::error::Error;
-use postassay::ids::ChainName;
 use postassay::output;
 use postassay::report;
 
-use super::common::{check_file_flag, refuse_directory, wrote_reports, EvalFlags};
+use super::common::{check_file_flag, named_files, wrote_reports, EvalFlags};
 
 /// Where `score` writes when `--out` is not given: not `reports/` itself,
 /// which holds the committed sample of the demo `run` (README) that a
@@ -47,25 +46,7 @@ pub fn execute(args: ScoreArgs) -> anyhow::Result<ExitCode> {
 }
 
 fn plan(args: &ScoreArgs) -> Result<ScorePlan, Error> {
-    let mut runs: Vec<(ChainName, PathBuf)> = Vec::new();
-    for spec in &args.runs {
-        let (name, file) = spec
-            .split_once('=')
-            .ok_or_else(|| Error::usage(format!("--run: expected NAME=FILE, found {spec:?}")))?;
-        if name.is_empty() || file.is_empty() {
-            return Err(Error::usage(format!("--run: expected NAME=FILE, found {spec:?}")));
-        }
-        if !name.chars().all(|c| c.is_alphanumeric() || "-_.".contains(c)) {
-            return Err(Error::usage(format!(
-                "--run: a NAME uses letters, digits, '-', '_' and '.', found {name:?}"
-            )));
-        }
-        if runs.iter().any(|(n, _)| n.as_str() == name) {
-            return Err(Error::usage(format!("--run: the name {name:?} is given twice")));
-        }
-        refuse_directory(&format!("--run {spec}"), Path::new(file))?;
-        runs.push((ChainName::from(name), PathBuf::from(file)));
-    }
+    let runs = named_files("--run", &args.runs)?;
     check_file_flag("--judgments", &args.judgments)?;
     if let Some(q) = &args.queries {
         check_file_flag("--queries", q)?;

@@ -15,11 +15,10 @@
 use std::collections::BTreeMap;
 use std::path::Path;
 
-use crate::error::{Error, Problems, Result};
+use crate::error::{Problems, Result};
 use crate::ids::{PostId, QueryId};
 use crate::input::text::{
-    check_id, declared_separator, first_non_blank_line, in_column, quoted, separator_hint,
-    utf8_message, CsvTable, Lines,
+    check_id, choose_layout, in_column, quoted, read_columns, CsvTable, Layout,
 };
 
 /// What a file must start with, for the message when it does not.
@@ -80,37 +79,12 @@ impl Judgments {
 /// Read a judgments file; returns the judgments and warnings (duplicate pairs
 /// with the same grade), each warning a full line `path:line: message`.
 pub fn read_judgments(path: &Path) -> Result<(Judgments, Vec<String>)> {
-    let Some((number, first)) = first_non_blank_line(path)? else {
-        return Err(Error::in_file(path, format!("{EXPECTED_LAYOUT}, found an empty file")));
-    };
-    let first = first.map_err(|e| Error::at_line(path, number, utf8_message(e, "the line")))?;
     let mut pairs = Pairs::new(path);
-    if names_query_id(&first) || declared_separator(first.as_bytes()).is_some() {
-        read_csv(path, &mut pairs)?;
-    } else if split_fields(&first).count() == 4 {
-        read_four_columns(path, &mut pairs)?;
-    } else {
-        let hint = separator_hint(&first)
-            .filter(|_| first.contains("query_id"))
-            .map(|h| format!("; {h}"))
-            .unwrap_or_default();
-        return Err(Error::at_line(
-            path,
-            number,
-            format!("{EXPECTED_LAYOUT}, found {}{hint}", quoted(&first)),
-        ));
+    match choose_layout(path, 4, EXPECTED_LAYOUT)? {
+        Layout::Csv => read_csv(path, &mut pairs)?,
+        Layout::Columns => read_four_columns(path, &mut pairs)?,
     }
     pairs.finish()
-}
-
-/// True when a comma-separated field of `line` is `query_id`.
-fn names_query_id(line: &str) -> bool {
-    line.split(',').any(|f| f.trim().trim_matches('"').trim() == "query_id")
-}
-
-/// Fields separated by runs of spaces or tabs (formats.md).
-fn split_fields(line: &str) -> impl Iterator<Item = &str> {
-    line.split([' ', '\t']).filter(|f| !f.is_empty())
 }
 
 fn read_csv(path: &Path, pairs: &mut Pairs) -> Result<()> {
@@ -126,34 +100,14 @@ fn read_csv(path: &Path, pairs: &mut Pairs) -> Result<()> {
 }
 
 fn read_four_columns(path: &Path, pairs: &mut Pairs) -> Result<()> {
-    let mut lines = Lines::open(path)?;
-    while let Some(line) = lines.next_line()? {
-        let text = match line.text {
-            Ok(text) => text,
-            Err(e) => {
-                pairs.problems.push(line.number, utf8_message(e, "the line"));
-                continue;
-            }
-        };
-        let fields: Vec<&str> = split_fields(text).collect();
-        match fields.as_slice() {
-            [] => continue,
-            [query, _iteration, doc, grade] => {
-                let grade = parse_grade(grade).map_err(|m| format!("field 4 (grade): {m}"));
-                pairs.add(line.number, Ok(query), Ok(doc), grade);
-            }
-            other => pairs.problems.push(
-                line.number,
-                format!(
-                    "expected 4 whitespace-separated fields (query_id iteration doc_id grade), \
-                     found {}: {}",
-                    other.len(),
-                    quoted(text)
-                ),
-            ),
+    read_columns(path, &["query_id", "iteration", "doc_id", "grade"], |line, fields| match fields {
+        Ok([query, _iteration, doc, grade]) => {
+            let grade = parse_grade(grade).map_err(|m| format!("field 4 (grade): {m}"));
+            pairs.add(line, Ok(query), Ok(doc), grade);
         }
-    }
-    Ok(())
+        Ok(_) => {}
+        Err(message) => pairs.problems.push(line, message),
+    })
 }
 
 /// A grade: ASCII digits only, fitting a `u32` (surrounding whitespace ignored).

@@ -1,7 +1,21 @@
 //! Ranked runs: CSV with columns `query_id,doc_id,rank` and optionally
 //! `score`, read from the files given to `score` (input stage) and written by
-//! `run` for every chain (`runs/NAME.csv`, always with `score`), so a written
-//! run reads back to the same value.
+//! `run` for every chain (`runs/NAME.csv`, always with `score`) and by
+//! `fetch`, so a written run reads back to the same value.
+//!
+//! `score` also reads the whitespace-separated six-column layout that public
+//! evaluation campaigns publish (`query_id ignored doc_id rank score tag`: no
+//! header, fields separated by runs of spaces or tabs, blank lines skipped,
+//! the second and sixth fields ignored). The layout is chosen by content as
+//! the judgment reader chooses its own: a first non-blank line naming
+//! `query_id` (or a `sep=` line) is CSV; otherwise six fields on it mean the
+//! six-column layout, and every non-blank line must then have six; anything
+//! else is one error naming the expected CSV header. The same rules as CSV
+//! apply to its values (rank an integer, score a finite number, required
+//! here), and the order is the same: rank ascending, equal ranks broken by
+//! doc id. Some campaign tools re-sort such files by score instead; here, as
+//! formats.md says of runs, the rank decides (write ranks that follow your
+//! scores).
 //!
 //! Reading: `rank` is any integer (`i64`, negative allowed: only the order
 //! matters). The order of a query's posts is rank ascending, equal ranks
@@ -22,7 +36,9 @@ use std::path::Path;
 
 use crate::error::{Error, Problems, Result};
 use crate::ids::{PostId, QueryId};
-use crate::input::text::{check_id, in_column, quoted, CsvTable};
+use crate::input::text::{
+    check_id, choose_layout, in_column, quoted, read_columns, CsvTable, Layout,
+};
 
 /// The run layout's header, in this order when written.
 const HEADER: [&str; 4] = ["query_id", "doc_id", "rank", "score"];
@@ -49,6 +65,13 @@ pub struct Run {
     pub by_query: BTreeMap<QueryId, Vec<RankedDoc>>,
 }
 
+/// What a run file must start with, for the message when it does not.
+const EXPECTED_LAYOUT: &str = "expected a CSV header \"query_id,doc_id,rank,score\" or six \
+     whitespace-separated fields (query_id ignored doc_id rank score tag)";
+
+/// The fields of the six-column layout, for messages.
+const SIX_COLUMNS: [&str; 6] = ["query_id", "ignored", "doc_id", "rank", "score", "tag"];
+
 /// One row as read, kept until the file is sorted.
 struct Entry {
     rank: i64,
@@ -56,51 +79,95 @@ struct Entry {
     score: Option<f64>,
 }
 
-/// Read and validate a run file, listing every bad line.
-pub fn read_run(path: &Path) -> Result<Run> {
-    let mut table = CsvTable::open(path, &HEADER.join(","))?;
-    let ([q_col, d_col, r_col], [s_col]) = table.columns(REQUIRED, ["score"])?;
-    let mut problems = Problems::new(path);
-    let mut first_line: HashMap<(QueryId, PostId), u64> = HashMap::new();
-    let mut entries: BTreeMap<QueryId, Vec<Entry>> = BTreeMap::new();
-    while let Some(row) = table.next_row(&mut problems)? {
-        let query = check_id(row.get(q_col))
-            .map_err(|msg| problems.push(row.line, in_column("query_id", &msg)))
-            .ok();
-        let doc = check_id(row.get(d_col))
-            .map_err(|msg| problems.push(row.line, in_column("doc_id", &msg)))
-            .ok();
-        let rank = parse_rank(row.get(r_col))
-            .map_err(|msg| problems.push(row.line, in_column("rank", &msg)))
-            .ok();
-        let score = match s_col {
-            Some(col) => parse_score(row.get(col))
-                .map(Some)
-                .map_err(|msg| problems.push(row.line, in_column("score", &msg)))
-                .ok(),
-            None => Some(None),
-        };
-        let (Some(query), Some(doc)) = (query, doc) else { continue };
+/// Rows read so far, with the line of each (query, post) pair and the
+/// problems found.
+struct Rows {
+    first_line: HashMap<(QueryId, PostId), u64>,
+    entries: BTreeMap<QueryId, Vec<Entry>>,
+    problems: Problems,
+}
+
+impl Rows {
+    /// Record one line; each `Err` is a message for that line.
+    fn add(
+        &mut self,
+        line: u64,
+        query: std::result::Result<&str, String>,
+        doc: std::result::Result<&str, String>,
+        rank: std::result::Result<i64, String>,
+        score: std::result::Result<Option<f64>, String>,
+    ) {
+        for message in
+            [query.as_ref().err(), doc.as_ref().err(), rank.as_ref().err(), score.as_ref().err()]
+                .into_iter()
+                .flatten()
+        {
+            self.problems.push(line, message.clone());
+        }
+        let (Ok(query), Ok(doc)) = (query, doc) else { return };
         let key = (QueryId::from(query), PostId::from(doc));
-        if let Some(first) = first_line.get(&key) {
-            problems.push(
-                row.line,
+        if let Some(first) = self.first_line.get(&key) {
+            self.problems.push(
+                line,
                 format!("query {query:?}: doc {doc:?} is listed twice (first at line {first})"),
             );
-            continue;
+            return;
         }
-        first_line.insert(key.clone(), row.line);
-        if let (Some(rank), Some(score)) = (rank, score) {
-            entries.entry(key.0).or_default().push(Entry { rank, doc: key.1, score });
+        self.first_line.insert(key.clone(), line);
+        if let (Ok(rank), Ok(score)) = (rank, score) {
+            self.entries.entry(key.0).or_default().push(Entry { rank, doc: key.1, score });
         }
     }
-    let mut run = Run::default();
-    for (query, mut list) in entries {
-        list.sort_by(|a, b| a.rank.cmp(&b.rank).then_with(|| a.doc.cmp(&b.doc)));
-        let docs = list.into_iter().map(|e| RankedDoc { doc: e.doc, score: e.score }).collect();
-        run.by_query.insert(query, docs);
+
+    fn finish(self) -> Result<Run> {
+        let mut run = Run::default();
+        for (query, mut list) in self.entries {
+            list.sort_by(|a, b| a.rank.cmp(&b.rank).then_with(|| a.doc.cmp(&b.doc)));
+            let docs = list.into_iter().map(|e| RankedDoc { doc: e.doc, score: e.score }).collect();
+            run.by_query.insert(query, docs);
+        }
+        self.problems.finish(run)
     }
-    problems.finish(run)
+}
+
+/// Read and validate a run file (CSV or the six-column layout, chosen by
+/// content), listing every bad line.
+pub fn read_run(path: &Path) -> Result<Run> {
+    let mut rows = Rows {
+        first_line: HashMap::new(),
+        entries: BTreeMap::new(),
+        problems: Problems::new(path),
+    };
+    match choose_layout(path, SIX_COLUMNS.len(), EXPECTED_LAYOUT)? {
+        Layout::Csv => read_csv(path, &mut rows)?,
+        Layout::Columns => read_columns(path, &SIX_COLUMNS, |line, fields| match fields {
+            Ok([query, _ignored, doc, rank, score, _tag]) => {
+                let rank = parse_rank(rank).map_err(|m| format!("field 4 (rank): {m}"));
+                let score =
+                    parse_score(score).map(Some).map_err(|m| format!("field 5 (score): {m}"));
+                rows.add(line, Ok(query), Ok(doc), rank, score);
+            }
+            Ok(_) => {}
+            Err(message) => rows.problems.push(line, message),
+        })?,
+    }
+    rows.finish()
+}
+
+fn read_csv(path: &Path, rows: &mut Rows) -> Result<()> {
+    let mut table = CsvTable::open(path, &HEADER.join(","))?;
+    let ([q_col, d_col, r_col], [s_col]) = table.columns(REQUIRED, ["score"])?;
+    while let Some(row) = table.next_row(&mut rows.problems)? {
+        let query = check_id(row.get(q_col)).map_err(|m| in_column("query_id", &m));
+        let doc = check_id(row.get(d_col)).map_err(|m| in_column("doc_id", &m));
+        let rank = parse_rank(row.get(r_col)).map_err(|m| in_column("rank", &m));
+        let score = match s_col {
+            Some(col) => parse_score(row.get(col)).map(Some).map_err(|m| in_column("score", &m)),
+            None => Ok(None),
+        };
+        rows.add(row.line, query, doc, rank, score);
+    }
+    Ok(())
 }
 
 /// A rank: an integer (surrounding whitespace ignored).
@@ -232,6 +299,53 @@ mod tests {
         // Written back, a run without scores is refused rather than invented.
         let err = write_run(&run, Vec::new()).expect_err("no score to write");
         assert!(err.to_string().contains(r#"query "q1" doc "a" has no score"#), "{err}");
+    }
+
+    #[test]
+    fn six_column_layout_is_chosen_by_content_and_read_like_csv() {
+        // The layout of the issue-15 brief: query id, an ignored column, doc
+        // id, rank, score, run tag; blank lines, tabs and runs of spaces.
+        let (_dir, path) = temp_file(
+            "run.txt",
+            b"\n401 Q0 d9 2 1.5 tagA\r\n401\tQ0\td1   1\t2.5 tagA\n\n402 Q0 7 1 -3e-1 tagA\n401 Q0 B 2 1.5 x\n",
+        );
+        let run = read_run(&path).expect("valid six-column run");
+        let expected =
+            [("d1", 2.5), ("B", 1.5), ("d9", 1.5)].map(|(d, s)| (d.to_string(), Some(s)));
+        assert_eq!(docs(&run, "401"), expected);
+        assert_eq!(docs(&run, "402"), [("7".to_string(), Some(-0.3))]);
+        // The same run as CSV reads to the same value.
+        let (_dir2, csv_path) = temp_file(
+            "run.csv",
+            b"query_id,doc_id,rank,score\n401,d9,2,1.5\n401,d1,1,2.5\n402,7,1,-3e-1\n401,B,2,1.5\n",
+        );
+        assert_eq!(read_run(&csv_path).expect("valid csv"), run);
+    }
+
+    #[test]
+    fn six_column_errors_name_file_line_and_what_was_expected() {
+        let msg = error_of(
+            b"q1 Q0 d1 1 2.0 t\nq1 Q0 d2 x 1.0 t\nq1 Q0 d3 3 NaN t\nq1 Q0 d4 4 1.0\nq1 Q0 d1 5 0.5 t\nq1 Q0 d\xFF 6 1 t\n",
+        );
+        for expected in [
+            r#"run.csv:2: field 4 (rank): expected an integer rank, found "x""#,
+            r#"run.csv:3: field 5 (score): expected a finite number, found "NaN""#,
+            r#"run.csv:4: expected 6 whitespace-separated fields (query_id ignored doc_id rank score tag), found 5: "q1 Q0 d4 4 1.0""#,
+            r#"run.csv:5: query "q1": doc "d1" is listed twice (first at line 1)"#,
+            "run.csv:6: expected UTF-8 text, found an invalid byte sequence at byte 8 of the line",
+        ] {
+            assert!(msg.contains(expected), "missing {expected:?} in {msg}");
+        }
+        assert_eq!(msg.lines().count(), 5, "{msg}");
+    }
+
+    #[test]
+    fn unknown_layout_names_the_expected_csv_header() {
+        let msg = error_of(b"\nqid docno rank\n1 d 1\n");
+        assert_eq!(msg.lines().count(), 1, "{msg}");
+        assert!(msg.ends_with("run.csv:2: expected a CSV header \"query_id,doc_id,rank,score\" or six whitespace-separated fields (query_id ignored doc_id rank score tag), found \"qid docno rank\""), "{msg}");
+        let empty = error_of(b"");
+        assert!(empty.ends_with("run.csv: expected a CSV header \"query_id,doc_id,rank,score\" or six whitespace-separated fields (query_id ignored doc_id rank score tag), found an empty file"), "{empty}");
     }
 
     #[test]

@@ -211,6 +211,88 @@ pub(super) fn first_non_blank_line(
     Ok(None)
 }
 
+/// True when a comma-separated field of `line` is `query_id`: how the
+/// readers that accept a whitespace-separated layout too (judgments, runs)
+/// tell a CSV header.
+pub(super) fn names_query_id(line: &str) -> bool {
+    line.split(',').any(|f| f.trim().trim_matches('"').trim() == "query_id")
+}
+
+/// Fields separated by runs of spaces or tabs (formats.md's column layouts).
+pub(super) fn split_fields(line: &str) -> impl Iterator<Item = &str> {
+    line.split([' ', '\t']).filter(|f| !f.is_empty())
+}
+
+/// The layout of a file that may be CSV or whitespace-separated columns.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub(super) enum Layout {
+    /// CSV with a header.
+    Csv,
+    /// Whitespace-separated columns, no header.
+    Columns,
+}
+
+/// Choose a layout by content (formats.md, judgments): a first non-blank
+/// line naming `query_id` (or declaring a separator) is CSV; otherwise
+/// `columns` whitespace-separated fields on it mean the column layout;
+/// anything else is one error, `expected` (what the file must start with)
+/// and what was found.
+pub(super) fn choose_layout(path: &Path, columns: usize, expected: &str) -> Result<Layout> {
+    let Some((number, first)) = first_non_blank_line(path)? else {
+        return Err(Error::in_file(path, format!("{expected}, found an empty file")));
+    };
+    let first = first.map_err(|e| Error::at_line(path, number, utf8_message(e, "the line")))?;
+    if names_query_id(&first) || declared_separator(first.as_bytes()).is_some() {
+        Ok(Layout::Csv)
+    } else if split_fields(&first).count() == columns {
+        Ok(Layout::Columns)
+    } else {
+        let hint = separator_hint(&first)
+            .filter(|_| first.contains("query_id"))
+            .map(|h| format!("; {h}"))
+            .unwrap_or_default();
+        Err(Error::at_line(path, number, format!("{expected}, found {}{hint}", quoted(&first))))
+    }
+}
+
+/// Read a file in a whitespace-separated column layout: blank lines are
+/// skipped; `row` gets each other line's number and its fields, or the
+/// problem with it (not UTF-8, or another number of fields than `names`
+/// lists, naming the layout).
+pub(super) fn read_columns(
+    path: &Path,
+    names: &[&str],
+    mut row: impl FnMut(u64, std::result::Result<&[&str], String>),
+) -> Result<()> {
+    let mut lines = Lines::open(path)?;
+    while let Some(line) = lines.next_line()? {
+        let text = match line.text {
+            Ok(text) => text,
+            Err(e) => {
+                row(line.number, Err(utf8_message(e, "the line")));
+                continue;
+            }
+        };
+        let fields: Vec<&str> = split_fields(text).collect();
+        if fields.is_empty() {
+            continue;
+        }
+        if fields.len() == names.len() {
+            row(line.number, Ok(&fields));
+        } else {
+            let message = format!(
+                "expected {} whitespace-separated fields ({}), found {}: {}",
+                names.len(),
+                names.join(" "),
+                fields.len(),
+                quoted(text)
+            );
+            row(line.number, Err(message));
+        }
+    }
+    Ok(())
+}
+
 /// The first byte of `path` (after a BOM) that is not ASCII whitespace;
 /// `None` when the file is empty or blank. Looked at before any decoding, so
 /// a layout can be chosen even when the first line is not UTF-8.

@@ -7,6 +7,7 @@ mod chains;
 mod ci_recipe;
 mod errors;
 mod explain;
+mod fetch;
 mod gate;
 mod html;
 mod input_errors;
