@@ -16,6 +16,7 @@ use postassay::input::read_queries;
 use postassay::output::write_atomic;
 
 use postassay::plural::counted;
+use postassay::progress::{Mode, Progress, Step};
 
 use super::common::{check_file_flag, named_files};
 
@@ -123,22 +124,23 @@ fn settings(args: &FetchArgs) -> Result<FetchSettings, Error> {
     })
 }
 
-/// Plain progress lines on stderr, at most one per [`PROGRESS_EVERY`] (and
-/// the last); a retry is always told.
+/// Progress on stderr: a bar per candidate on a terminal; otherwise plain
+/// lines, at most one per [`PROGRESS_EVERY`] (and the last); a retry is
+/// always told; nothing with `--quiet`.
 struct Printer {
-    quiet: bool,
+    progress: Progress,
+    step: Option<Step>,
+    seen: u64,
     last: Option<Instant>,
 }
 
 impl Printer {
     fn new(quiet: bool) -> Printer {
-        Printer { quiet, last: None }
+        Printer { progress: Progress::for_stderr(quiet), step: None, seen: 0, last: None }
     }
 
     fn event(&mut self, event: FetchEvent<'_>) {
-        if self.quiet {
-            return;
-        }
+        let bars = self.progress.mode() == Mode::Bars;
         match event {
             FetchEvent::Started { endpoint, total, resumed } => {
                 let from = if resumed > 0 {
@@ -146,22 +148,47 @@ impl Printer {
                 } else {
                     String::new()
                 };
-                eprintln!("postassay: fetch {}: {}{from}", endpoint.as_str(), queries(total));
+                self.progress.line(&format!(
+                    "fetch {}: {}{from}",
+                    endpoint.as_str(),
+                    queries(total)
+                ));
                 self.last = Some(Instant::now());
+                self.seen = resumed as u64;
+                self.step = bars.then(|| {
+                    let step = self.progress.step(
+                        &format!("fetch {}", endpoint.as_str()),
+                        total as u64,
+                        "queries",
+                    );
+                    step.advance(resumed as u64);
+                    step
+                });
             }
             FetchEvent::Fetched { endpoint, done, total } => {
+                if let Some(step) = &self.step {
+                    step.advance((done as u64).saturating_sub(self.seen));
+                    self.seen = done as u64;
+                    if done == total {
+                        self.step = None;
+                    }
+                    return;
+                }
                 let due = self.last.is_none_or(|t| t.elapsed() >= PROGRESS_EVERY);
                 if due || done == total {
-                    eprintln!("postassay: fetch {}: {done}/{total} queries", endpoint.as_str());
+                    self.progress
+                        .line(&format!("fetch {}: {done}/{total} queries", endpoint.as_str()));
                     self.last = Some(Instant::now());
                 }
             }
-            FetchEvent::Retrying { endpoint, query, cause: _, detail, wait } => eprintln!(
-                "postassay: fetch {}: query {:?}: {detail}; trying again in {:.2} s",
-                endpoint.as_str(),
-                query.as_str(),
-                wait.as_secs_f64()
-            ),
+            FetchEvent::Retrying { endpoint, query, cause: _, detail, wait } => {
+                self.progress.line(&format!(
+                    "fetch {}: query {:?}: {detail}; trying again in {:.2} s",
+                    endpoint.as_str(),
+                    query.as_str(),
+                    wait.as_secs_f64()
+                ))
+            }
         }
     }
 }
