@@ -15,7 +15,7 @@ use std::io::IsTerminal;
 use std::sync::atomic::{AtomicU64, Ordering};
 use std::time::{Duration, Instant};
 
-use indicatif::{MultiProgress, ProgressBar, ProgressDrawTarget, ProgressStyle};
+use indicatif::{MultiProgress, ProgressBar, ProgressDrawTarget, ProgressState, ProgressStyle};
 
 /// Prefix of every progress line.
 const PREFIX: &str = "postassay: ";
@@ -98,12 +98,18 @@ impl Progress {
             } else {
                 format!(
                     "{{prefix:.bold}} [{{bar:30}}] {{human_pos}}/{{human_len}} {unit} \
-                     {{per_sec}} ({{eta}} left)"
+                     {{rate}} ({{eta}} left)"
                 )
             };
             // The template is fixed text: it always parses.
             if let Ok(style) = ProgressStyle::with_template(&template) {
-                bar.set_style(style.progress_chars("=> "));
+                let style = style.progress_chars("=> ").with_key(
+                    "rate",
+                    |state: &ProgressState, w: &mut dyn std::fmt::Write| {
+                        let _ = write!(w, "{:.0}/s", state.per_sec());
+                    },
+                );
+                bar.set_style(style);
             }
             bar.set_prefix(label.to_string());
             bar.enable_steady_tick(Duration::from_millis(250));

@@ -856,16 +856,14 @@ impl Detections {
         let texts = (posts.len() + queries.len()) * detectors.len();
         let step = progress.step("detecting languages", texts as u64, "texts");
         let mut line = |l: &str| progress.line(l);
-        let found = Self::compute_with(
+        Self::compute_with(
             analyzers,
             posts,
             queries,
             cache,
             &|d, texts| d.detect_all_with(texts, threads, &|n| step.advance(n)).0,
             &mut line,
-        );
-        drop(step);
-        found
+        )
     }
 
     /// [`compute`](Self::compute) with an explicit cache and detection.
