@@ -510,8 +510,9 @@ impl Assembly<'_> {
         }
         let refs: Vec<(ChainName, &SystemScores)> =
             scores.iter().map(|(n, s)| (n.clone(), s)).collect();
+        let stats = StatSettings { threads: options.threads, ..options.stats };
         let computed =
-            compare::compare(&refs, self.baseline, &options.metrics, self.queries, &options.stats);
+            compare::compare(&refs, self.baseline, &options.metrics, self.queries, &stats);
         let per_query = scores
             .iter()
             .map(|(name, s)| PerQuery {
