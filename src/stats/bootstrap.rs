@@ -156,7 +156,7 @@ impl ResampleGroup {
         let n_u32 = u32::try_from(self.n).unwrap_or(u32::MAX);
         let mut means = Vec::with_capacity(range.len() * k);
         let mut counts = vec![0u32; self.n];
-        let mut drawn: Vec<(usize, f64)> = Vec::with_capacity(self.n);
+        let mut drawn: Vec<(usize, f64)> = vec![(0, 0.0); self.n];
         for b in range {
             counts.fill(0);
             let mut stream = Stream::new(seed, Purpose::Resample, u64::from(b));
@@ -168,12 +168,19 @@ impl ResampleGroup {
             // About 1/e of the queries are not drawn: their terms would add
             // 0 · (v − r) = ±0, which leaves a sum that starts at +0 unchanged,
             // so they are skipped.
-            drawn.clear();
-            drawn.extend(
-                counts.iter().enumerate().filter(|(_, c)| **c > 0).map(|(i, c)| (i, f64::from(*c))),
-            );
+            // Written without a branch on the count, which a processor
+            // cannot predict: every query is written at the end of the list,
+            // which only grows past a drawn one.
+            let mut len = 0;
+            for (i, &count) in counts.iter().enumerate() {
+                if let Some(slot) = drawn.get_mut(len) {
+                    *slot = (i, f64::from(count));
+                }
+                len += usize::from(count > 0);
+            }
+            let drawn = drawn.get(..len).unwrap_or_default();
             let sums = self.tiles.iter().flat_map(|(storage, offset)| {
-                tile_sums(storage.get(*offset..).unwrap_or_default(), &drawn)
+                tile_sums(storage.get(*offset..).unwrap_or_default(), drawn)
             });
             means.extend(self.references.iter().zip(sums).map(|(r, sum)| r + sum / n));
         }
