@@ -90,6 +90,9 @@ const TILE: usize = 8;
 /// Resamples per piece of work shared among threads.
 const CHUNK_RESAMPLES: u32 = 250;
 
+/// Resamples that share one read of each tile ([`ResampleGroup::resample_means`]).
+const GROUP: usize = 16;
+
 /// Columns of one length n, laid out for resampling: r_c (the first value
 /// of column c) and, per tile of [`TILE`] columns, an n × TILE row-major
 /// array of v − r_c (padded with zero columns) starting on a cache line, so
@@ -150,52 +153,82 @@ impl ResampleGroup {
     }
 
     /// Means of every column for resamples `range`, resample-major.
+    ///
+    /// Resamples go in groups of [`GROUP`]: their drawn queries are listed
+    /// first, then each tile is summed for every resample of the group in
+    /// turn, so a tile is read from memory once per group and from the
+    /// core's cache for the others (a tile of 13,000 queries is 832 KB).
+    /// Each (resample, column) sum is still one pass over its drawn queries
+    /// in query order, so the grouping changes no number.
     fn resample_means(&self, range: std::ops::Range<u32>, seed: u64) -> Vec<f64> {
         let k = self.references.len();
         let n = self.n as f64;
-        let n_u32 = u32::try_from(self.n).unwrap_or(u32::MAX);
-        let mut means = Vec::with_capacity(range.len() * k);
+        let mut means = vec![0.0; range.len() * k];
         let mut counts = vec![0u32; self.n];
-        let mut drawn: Vec<(usize, f64)> = vec![(0, 0.0); self.n];
-        for b in range {
-            counts.fill(0);
-            let mut stream = Stream::new(seed, Purpose::Resample, u64::from(b));
-            stream.each_below(n_u32, self.n, |index| {
-                if let Some(count) = counts.get_mut(index as usize) {
-                    *count += 1;
-                }
-            });
-            // About 1/e of the queries are not drawn: their terms would add
-            // 0 · (v − r) = ±0, which leaves a sum that starts at +0 unchanged,
-            // so they are skipped.
-            // Written without a branch on the count, which a processor
-            // cannot predict: every query is written at the end of the list,
-            // which only grows past a drawn one.
-            let mut len = 0;
-            for (i, &count) in counts.iter().enumerate() {
-                if let Some(slot) = drawn.get_mut(len) {
-                    *slot = (i, f64::from(count));
-                }
-                len += usize::from(count > 0);
+        let resamples: Vec<u32> = range.collect();
+        // One list of n slots per resample of a group, reused by every group.
+        let mut lists = vec![(vec![(0u32, 0u32); self.n], 0usize); GROUP];
+        for (group_index, group) in resamples.chunks(GROUP).enumerate() {
+            for (&b, (list, len)) in group.iter().zip(lists.iter_mut()) {
+                *len = self.drawn(b, seed, &mut counts, list);
             }
-            let drawn = drawn.get(..len).unwrap_or_default();
-            let sums = self.tiles.iter().flat_map(|(storage, offset)| {
-                tile_sums(storage.get(*offset..).unwrap_or_default(), drawn)
-            });
-            means.extend(self.references.iter().zip(sums).map(|(r, sum)| r + sum / n));
+            for (t, (storage, offset)) in self.tiles.iter().enumerate() {
+                let rows = storage.get(*offset..).unwrap_or_default();
+                for (g, (list, len)) in lists.iter().take(group.len()).enumerate() {
+                    let list = list.get(..*len).unwrap_or_default();
+                    let first = (group_index * GROUP + g) * k + t * TILE;
+                    let columns = first..(first + TILE).min((group_index * GROUP + g + 1) * k);
+                    let references = self.references.iter().skip(t * TILE);
+                    let slots = means.get_mut(columns).unwrap_or_default();
+                    for ((slot, r), sum) in
+                        slots.iter_mut().zip(references).zip(tile_sums(rows, list))
+                    {
+                        *slot = r + sum / n;
+                    }
+                }
+            }
         }
         means
+    }
+
+    /// Writes the queries resample `b` draws to the start of `drawn` (n
+    /// slots), as (query, times drawn) in query order, and returns how many
+    /// there are; `counts` is scratch space of n entries.
+    ///
+    /// About 1/e of the queries are not drawn: their terms would add
+    /// 0 · (v − r) = ±0, which leaves a sum that starts at +0 unchanged, so
+    /// they are left out. The list is written without a branch on the count,
+    /// which a processor cannot predict: every query is written at the end
+    /// of the list, which only grows past a drawn one.
+    fn drawn(&self, b: u32, seed: u64, counts: &mut [u32], drawn: &mut [(u32, u32)]) -> usize {
+        let n_u32 = u32::try_from(self.n).unwrap_or(u32::MAX);
+        counts.fill(0);
+        let mut stream = Stream::new(seed, Purpose::Resample, u64::from(b));
+        stream.each_below(n_u32, self.n, |index| {
+            if let Some(count) = counts.get_mut(index as usize) {
+                *count += 1;
+            }
+        });
+        let mut len = 0;
+        for (i, &count) in (0u32..).zip(counts.iter()) {
+            if let Some(slot) = drawn.get_mut(len) {
+                *slot = (i, count);
+            }
+            len += usize::from(count > 0);
+        }
+        len
     }
 }
 
 /// Σ_i c_i · row_i over the rows i of an n × TILE array listed in `drawn`
 /// as (i, c_i), in that (ascending) order: every column's weighted sum, TILE
 /// independent accumulators, the rows read front to back.
-fn tile_sums(rows: &[f64], drawn: &[(usize, f64)]) -> [f64; TILE] {
+fn tile_sums(rows: &[f64], drawn: &[(u32, u32)]) -> [f64; TILE] {
     let mut sums = [0.0f64; TILE];
     let (rows, _) = rows.as_chunks::<TILE>();
-    for &(i, weight) in drawn {
-        let Some(row) = rows.get(i) else { continue };
+    for &(i, count) in drawn {
+        let Some(row) = rows.get(i as usize) else { continue };
+        let weight = f64::from(count);
         for (sum, v) in sums.iter_mut().zip(row) {
             *sum += weight * v;
         }
