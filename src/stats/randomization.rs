@@ -119,34 +119,46 @@ fn exact_p(diffs: &[f64]) -> f64 {
 /// Assignment b is the words of stream (seed, sign flips, b) (`stream.rs`),
 /// so it depends on the seed and b only. Its signed sum is read from
 /// [`SignTables`]: one table lookup per 8 differences instead of a branch
-/// per difference. [`LANES`] assignments are summed side by side, each in
-/// its own accumulator, which keeps the processor's adders busy without
-/// changing any single sum.
+/// per difference. Assignments go in batches of [`BATCH`]: block by block,
+/// the batch's lookups all fall in one 2 KB table, which stays in the
+/// processor's nearest cache, and the batch's sums are independent
+/// additions. Each sum still adds its blocks in block order from 0, so the
+/// batching changes no number.
 fn sampled_p(diffs: &[f64], permutations: u32, seed: u64) -> f64 {
     let n = diffs.len() as f64;
     let tables = SignTables::new(diffs);
     let observed = (tables.signed_sum(&[]) / n).abs();
     let threshold = observed - TOLERANCE;
     let words = diffs.len().div_ceil(64);
-    let mut flips = [const { Vec::new() }; LANES];
+    // Word w of assignment `first + p` at w · BATCH + p.
+    let mut flips = vec![0u64; words * BATCH];
+    let mut sums = [0.0f64; BATCH];
     let mut count: u64 = 0;
-    let mut start = 0u32;
-    while start < permutations {
-        let lanes = (permutations - start).min(LANES as u32) as usize;
-        for (lane, words_of_lane) in flips.iter_mut().enumerate().take(lanes) {
-            let mut stream = Stream::new(seed, Purpose::SignFlips, u64::from(start) + lane as u64);
-            words_of_lane.clear();
-            words_of_lane.extend((0..words).map(|_| stream.next_u64()));
+    let mut first = 0u32;
+    while first < permutations {
+        let batch = (permutations - first).min(BATCH as u32) as usize;
+        for p in 0..batch {
+            let mut stream = Stream::new(seed, Purpose::SignFlips, u64::from(first) + p as u64);
+            for slot in flips.iter_mut().skip(p).step_by(BATCH) {
+                *slot = stream.next_u64();
+            }
         }
-        let sums = tables.signed_sums(&flips[..lanes]);
-        count += sums.iter().take(lanes).filter(|s| (**s / n).abs() >= threshold).count() as u64;
-        start += lanes as u32;
+        sums.fill(0.0);
+        for (j, table) in tables.tables.iter().enumerate() {
+            let shift = (j % 8) * 8;
+            let batch_words = flips.get((j / 8) * BATCH..(j / 8 + 1) * BATCH).unwrap_or_default();
+            for (sum, word) in sums.iter_mut().zip(batch_words).take(batch) {
+                *sum += table[((word >> shift) & 0xff) as usize];
+            }
+        }
+        count += sums.iter().take(batch).filter(|s| (**s / n).abs() >= threshold).count() as u64;
+        first += batch as u32;
     }
     (count + 1) as f64 / (u64::from(permutations) + 1) as f64
 }
 
-/// Sign assignments summed side by side by [`sampled_p`].
-const LANES: usize = 4;
+/// Sign assignments summed together by [`sampled_p`].
+const BATCH: usize = 64;
 
 /// Per-byte tables of partial signed sums: block j covers d_8j … d_8j+7,
 /// and entry `byte` of its table is the sum of those eight differences, in
@@ -195,24 +207,6 @@ impl SignTables {
     /// d_i; missing words flip nothing).
     fn signed_sum(&self, flips: &[u64]) -> f64 {
         self.tables.iter().enumerate().fold(0.0, |sum, (j, table)| sum + table[byte(flips, j)])
-    }
-
-    /// [`SignTables::signed_sum`] of up to [`LANES`] assignments at once.
-    fn signed_sums(&self, flips: &[Vec<u64>]) -> [f64; LANES] {
-        let mut sums = [0.0f64; LANES];
-        if let [a, b, c, d] = flips {
-            for (j, table) in self.tables.iter().enumerate() {
-                sums[0] += table[byte(a, j)];
-                sums[1] += table[byte(b, j)];
-                sums[2] += table[byte(c, j)];
-                sums[3] += table[byte(d, j)];
-            }
-        } else {
-            for (sum, words) in sums.iter_mut().zip(flips) {
-                *sum = self.signed_sum(words);
-            }
-        }
-        sums
     }
 }
 
@@ -359,18 +353,16 @@ mod tests {
             let by_table = tables.signed_sum(&flips);
             let by_definition = signed_sum(&diffs, &flips);
             assert!((by_table - by_definition).abs() < 1e-12, "{by_table} vs {by_definition}");
-            let lanes = [flips.clone(), flips.clone(), vec![0, 0], flips.clone()];
-            assert_eq!(tables.signed_sums(&lanes)[0], by_table);
         }
         let observed = tables.signed_sum(&[]);
         assert_eq!(tables.signed_sum(&[u64::MAX, u64::MAX]), -observed);
-        assert_eq!(tables.signed_sums(&[vec![0, 0], vec![u64::MAX, u64::MAX]])[1], -observed);
     }
 
     #[test]
-    fn sampled_p_does_not_depend_on_the_lanes() {
-        // B not a multiple of the 4 lanes: the last group has fewer lanes;
-        // p over B = 1001 must count the same assignments as one by one.
+    fn sampled_p_does_not_depend_on_the_batches() {
+        // B not a multiple of the 64-assignment batches: the last batch is
+        // shorter; p over B = 1001 must count the same assignments as one by
+        // one.
         let system: Vec<f64> = (0..30).map(|i| f64::from((i * 41 + 7) % 100) / 100.0).collect();
         let baseline: Vec<f64> = (0..30).map(|i| f64::from((i * 59 + 3) % 100) / 100.0).collect();
         let diffs = differences(&system, &baseline).expect("same length");
