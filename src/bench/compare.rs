@@ -12,6 +12,7 @@ use serde::{Deserialize, Serialize};
 use crate::eval::{Metric, SystemScores};
 use crate::ids::{ChainName, QueryId};
 use crate::input::Query;
+use crate::progress::{Progress, Step};
 use crate::stats::{self, StatSettings};
 
 pub use crate::report::model::{
@@ -32,6 +33,10 @@ pub struct Comparisons {
 /// Compute summaries, comparisons and breakdowns. `systems` are in report
 /// order; `baseline` indexes into it; `queries` (optional) supplies languages
 /// and tags for breakdowns; `alpha` is the significance level.
+///
+/// The work is spread over `settings.threads` threads inside the statistics
+/// (`stats::compare_families`, `stats::bootstrap_cis`); no number depends
+/// on the thread count.
 pub fn compare(
     systems: &[(ChainName, &SystemScores)],
     baseline: usize,
@@ -39,13 +44,35 @@ pub fn compare(
     queries: Option<&[Query]>,
     settings: &StatSettings,
 ) -> Comparisons {
+    compare_shown(systems, baseline, metrics, queries, settings, &Progress::quiet())
+}
+
+/// [`compare`], showing a bar of the cells done (the whole query set and
+/// each breakdown cell that is tested) on `progress`.
+pub fn compare_shown(
+    systems: &[(ChainName, &SystemScores)],
+    baseline: usize,
+    metrics: &[Metric],
+    queries: Option<&[Query]>,
+    settings: &StatSettings,
+    progress: &Progress,
+) -> Comparisons {
     let all: Vec<QueryId> = evaluated_ids(systems);
-    let summaries = summarise(systems, metrics, &all, Some(settings));
-    let comparisons = compare_subset(systems, baseline, metrics, &all, settings);
-    let breakdowns = match queries {
-        Some(qs) => breakdown(systems, baseline, metrics, &all, qs, settings),
-        None => Vec::new(),
-    };
+    let groups = queries.map(|qs| breakdown_groups(&all, qs)).unwrap_or_default();
+    let tested = groups.iter().filter(|(_, _, ids)| ids.len() >= MIN_BREAKDOWN_QUERIES).count();
+    let step = progress.step("statistics", 1 + tested as u64, "cells");
+    let (summaries, comparisons) =
+        cell_statistics(systems, baseline, metrics, &all, settings, true);
+    step.advance(1);
+    let breakdowns = breakdown(systems, baseline, metrics, groups, settings, &step);
+    let seconds = step.seconds();
+    step.finish(
+        progress,
+        &format!(
+            "statistics: {} in {seconds:.2} s",
+            crate::plural::counted(1 + tested, "tested cell", "tested cells")
+        ),
+    );
     Comparisons { summaries, comparisons, breakdowns }
 }
 
@@ -53,43 +80,37 @@ fn evaluated_ids(systems: &[(ChainName, &SystemScores)]) -> Vec<QueryId> {
     systems.first().map(|(_, s)| s.per_query.keys().cloned().collect()).unwrap_or_default()
 }
 
-/// Values of metric `m` of one system over `ids` (0 for a missing query, which
-/// cannot happen when every system shares one population).
-fn column(scores: &SystemScores, m: usize, ids: &[QueryId]) -> Vec<f64> {
-    ids.iter()
-        .map(|q| scores.per_query.get(q).and_then(|v| v.get(m)).copied().unwrap_or(0.0))
-        .collect()
-}
-
 /// Mean of a column (0 for an empty query set: nothing to average).
 fn mean(v: &[f64]) -> f64 {
     stats::mean(v).unwrap_or(0.0)
 }
 
-/// Each system's mean per metric over `ids`, with bootstrap intervals when
-/// `settings` is given (breakdown cells show means only).
+/// Each system's means over `ids` (one column per metric), with intervals
+/// from `intervals` (system-major, one per metric) when given.
 fn summarise(
     systems: &[(ChainName, &SystemScores)],
     metrics: &[Metric],
     ids: &[QueryId],
-    settings: Option<&StatSettings>,
+    columns: &[Vec<Vec<f64>>],
+    intervals: Option<&[Option<(f64, f64)>]>,
 ) -> Vec<SystemSummary> {
     systems
         .iter()
-        .map(|(name, scores)| SystemSummary {
+        .zip(columns)
+        .enumerate()
+        .map(|(s, ((name, _), system_columns))| SystemSummary {
             system: name.clone(),
             queries: ids.len(),
             metrics: metrics
                 .iter()
+                .zip(system_columns)
                 .enumerate()
-                .map(|(m, metric)| {
-                    let values = column(scores, m, ids);
-                    let ci = settings.and_then(|st| {
-                        stats::bootstrap_ci(&values, st.bootstrap_resamples, st.seed)
-                    });
+                .map(|(m, (metric, values))| {
+                    let ci =
+                        intervals.and_then(|all| all.get(s * metrics.len() + m)).copied().flatten();
                     MetricSummary {
                         metric: metric.key(),
-                        mean: mean(&values),
+                        mean: mean(values),
                         ci_low: ci.map(|c| c.0),
                         ci_high: ci.map(|c| c.1),
                     }
@@ -99,33 +120,98 @@ fn summarise(
         .collect()
 }
 
-fn compare_subset(
+/// Every system's values over `ids`: `[system][metric]` columns (0 for a
+/// missing query, which cannot happen when every system shares one
+/// population).
+fn columns(
+    systems: &[(ChainName, &SystemScores)],
+    metrics: &[Metric],
+    ids: &[QueryId],
+) -> Vec<Vec<Vec<f64>>> {
+    systems
+        .iter()
+        .map(|(_, scores)| {
+            // One lookup per query, shared by the metrics.
+            let rows: Vec<Option<&Vec<f64>>> =
+                ids.iter().map(|q| scores.per_query.get(q)).collect();
+            (0..metrics.len())
+                .map(|m| {
+                    rows.iter().map(|r| r.and_then(|v| v.get(m)).copied().unwrap_or(0.0)).collect()
+                })
+                .collect()
+        })
+        .collect()
+}
+
+/// Summaries and comparisons with the baseline over the queries `ids`: the
+/// whole query set (`with_intervals`: each mean gets its bootstrap interval)
+/// or one breakdown cell (means only). Every bootstrap interval of the cell —
+/// the means' and the differences' — is one `stats::bootstrap_cis` call, so
+/// each resample's indices are drawn once for all of them.
+fn cell_statistics(
     systems: &[(ChainName, &SystemScores)],
     baseline: usize,
     metrics: &[Metric],
     ids: &[QueryId],
     settings: &StatSettings,
-) -> Vec<ComparisonRow> {
-    let Some((base_name, base_scores)) = systems.get(baseline) else {
-        return Vec::new();
+    with_intervals: bool,
+) -> (Vec<SystemSummary>, Vec<ComparisonRow>) {
+    let values = columns(systems, metrics, ids);
+    let (Some((base_name, _)), Some(base_columns)) = (systems.get(baseline), values.get(baseline))
+    else {
+        let intervals = with_intervals.then(|| mean_intervals(&values, settings));
+        return (summarise(systems, metrics, ids, &values, intervals.as_deref()), Vec::new());
     };
-    let others: Vec<(usize, &(ChainName, &SystemScores))> =
-        systems.iter().enumerate().filter(|(i, _)| *i != baseline).collect();
-    // Ordered by system then metric, as the CSV contract asks; Holm adjusts
-    // within one metric across the systems (stats::compare_with_baseline).
+    let others: Vec<(usize, &ChainName)> = systems
+        .iter()
+        .enumerate()
+        .filter(|(i, _)| *i != baseline)
+        .map(|(i, (n, _))| (i, n))
+        .collect();
+    // Holm adjusts within one metric across the systems: one family per metric.
+    let families: Vec<(&[f64], Vec<&[f64]>)> = base_columns
+        .iter()
+        .enumerate()
+        .map(|(m, base)| {
+            let compared = others
+                .iter()
+                .filter_map(|(i, _)| values.get(*i).and_then(|c| c.get(m)).map(Vec::as_slice))
+                .collect();
+            (base.as_slice(), compared)
+        })
+        .collect();
+    let paired = stats::compare_families(&families, settings);
+    // Differences metric-major, system-minor, as the families list them.
+    let diffs: Vec<Vec<f64>> = families
+        .iter()
+        .flat_map(|(base, compared)| {
+            compared.iter().map(|sys| sys.iter().zip(*base).map(|(a, b)| a - b).collect())
+        })
+        .collect();
+    let mut interval_columns: Vec<&[f64]> = Vec::new();
+    if with_intervals {
+        interval_columns.extend(values.iter().flatten().map(Vec::as_slice));
+    }
+    let mean_count = interval_columns.len();
+    interval_columns.extend(diffs.iter().map(Vec::as_slice));
+    let intervals = stats::bootstrap_cis(
+        &interval_columns,
+        settings.bootstrap_resamples,
+        settings.seed,
+        settings.threads,
+    );
+    let (mean_intervals, diff_intervals) = intervals.split_at(mean_count.min(intervals.len()));
+    let summaries =
+        summarise(systems, metrics, ids, &values, with_intervals.then_some(mean_intervals));
+    // Ordered by system then metric, as the CSV contract asks.
     let mut keyed: Vec<((usize, usize), ComparisonRow)> = Vec::new();
-    for (m, metric) in metrics.iter().enumerate() {
-        let base = column(base_scores, m, ids);
-        let columns: Vec<Vec<f64>> =
-            others.iter().map(|(_, (_, scores))| column(scores, m, ids)).collect();
-        let slices: Vec<&[f64]> = columns.iter().map(Vec::as_slice).collect();
-        let paired = stats::compare_with_baseline(&base, &slices, settings);
-        for (((i, (name, _)), sys), pc) in others.iter().zip(&columns).zip(paired) {
-            let diffs: Vec<f64> = sys.iter().zip(&base).map(|(a, b)| a - b).collect();
-            let ci = stats::bootstrap_ci(&diffs, settings.bootstrap_resamples, settings.seed);
+    let mut diff_intervals = diff_intervals.iter();
+    for ((m, metric), family) in metrics.iter().enumerate().zip(paired) {
+        for ((i, name), pc) in others.iter().zip(family) {
+            let ci = diff_intervals.next().copied().flatten();
             let row = ComparisonRow {
                 baseline: base_name.clone(),
-                system: name.clone(),
+                system: (*name).clone(),
                 metric: metric.key(),
                 queries: pc.n,
                 delta: pc.delta.unwrap_or(0.0),
@@ -144,17 +230,22 @@ fn compare_subset(
         }
     }
     keyed.sort_by_key(|(k, _)| *k);
-    keyed.into_iter().map(|(_, r)| r).collect()
+    (summaries, keyed.into_iter().map(|(_, r)| r).collect())
 }
 
-fn breakdown(
-    systems: &[(ChainName, &SystemScores)],
-    baseline: usize,
-    metrics: &[Metric],
+/// Bootstrap intervals of every system's means (system-major), when there is
+/// no baseline to compare with.
+fn mean_intervals(values: &[Vec<Vec<f64>>], settings: &StatSettings) -> Vec<Option<(f64, f64)>> {
+    let all: Vec<&[f64]> = values.iter().flatten().map(Vec::as_slice).collect();
+    stats::bootstrap_cis(&all, settings.bootstrap_resamples, settings.seed, settings.threads)
+}
+
+/// The breakdown groups of the evaluated queries: (dimension, value, ids)
+/// by query language, then by tag, each in value order.
+fn breakdown_groups(
     evaluated: &[QueryId],
     queries: &[Query],
-    settings: &StatSettings,
-) -> Vec<BreakdownCell> {
+) -> Vec<(&'static str, String, Vec<QueryId>)> {
     let by_id: BTreeMap<&QueryId, &Query> = queries.iter().map(|q| (&q.id, q)).collect();
     let mut langs: BTreeMap<String, Vec<QueryId>> = BTreeMap::new();
     let mut tags: BTreeMap<String, Vec<QueryId>> = BTreeMap::new();
@@ -169,24 +260,42 @@ fn breakdown(
             }
         }
     }
-    let mut cells = Vec::new();
-    for (dimension, groups) in [("lang", langs), ("tag", tags)] {
-        for (value, ids) in groups {
-            let too_small = ids.len() < MIN_BREAKDOWN_QUERIES;
-            let comparisons = if too_small {
-                Vec::new()
-            } else {
-                compare_subset(systems, baseline, metrics, &ids, settings)
-            };
-            cells.push(BreakdownCell {
-                dimension: dimension.to_string(),
-                value,
-                queries: ids.len(),
-                too_small,
-                systems: summarise(systems, metrics, &ids, None),
-                comparisons,
-            });
+    let mut groups = Vec::new();
+    for (dimension, by_value) in [("lang", langs), ("tag", tags)] {
+        for (value, ids) in by_value {
+            groups.push((dimension, value, ids));
         }
+    }
+    groups
+}
+
+fn breakdown(
+    systems: &[(ChainName, &SystemScores)],
+    baseline: usize,
+    metrics: &[Metric],
+    groups: Vec<(&'static str, String, Vec<QueryId>)>,
+    settings: &StatSettings,
+    step: &Step,
+) -> Vec<BreakdownCell> {
+    let mut cells = Vec::new();
+    for (dimension, value, ids) in groups {
+        let too_small = ids.len() < MIN_BREAKDOWN_QUERIES;
+        let (summaries, comparisons) = if too_small {
+            let values = columns(systems, metrics, &ids);
+            (summarise(systems, metrics, &ids, &values, None), Vec::new())
+        } else {
+            let done = cell_statistics(systems, baseline, metrics, &ids, settings, false);
+            step.advance(1);
+            done
+        };
+        cells.push(BreakdownCell {
+            dimension: dimension.to_string(),
+            value,
+            queries: ids.len(),
+            too_small,
+            systems: summaries,
+            comparisons,
+        });
     }
     cells
 }

@@ -233,7 +233,7 @@ pub fn run(plan: &RunPlan, progress: &Progress) -> Result<BenchOutput> {
         chains: chains_json,
         warnings,
     };
-    let mut out = assembled.finish(&plan.options)?;
+    let mut out = assembled.finish(&plan.options, progress)?;
     let chain_runs = analyzers
         .iter()
         .zip(&out.runs)
@@ -525,7 +525,7 @@ pub fn score(plan: &ScorePlan, progress: &Progress) -> Result<BenchOutput> {
         chains: Vec::new(),
         warnings,
     };
-    let mut out = assembled.finish(&plan.options)?;
+    let mut out = assembled.finish(&plan.options, progress)?;
     out.report.timing.total_seconds = started.elapsed().as_secs_f64();
     announce_warnings(&out.report, progress);
     Ok(out)
@@ -661,7 +661,7 @@ struct Assembly<'a> {
 }
 
 impl Assembly<'_> {
-    fn finish(self, options: &EvalOptions) -> Result<BenchOutput> {
+    fn finish(self, options: &EvalOptions, progress: &Progress) -> Result<BenchOutput> {
         let mut warnings = self.warnings;
         let mut infos = self.infos;
         // An evaluated query a system has no result for scores 0
@@ -696,8 +696,15 @@ impl Assembly<'_> {
         }
         let refs: Vec<(ChainName, &SystemScores)> =
             scores.iter().map(|(n, s)| (n.clone(), s)).collect();
-        let computed =
-            compare::compare(&refs, self.baseline, &options.metrics, self.queries, &options.stats);
+        let stats = StatSettings { threads: options.threads, ..options.stats };
+        let computed = compare::compare_shown(
+            &refs,
+            self.baseline,
+            &options.metrics,
+            self.queries,
+            &stats,
+            progress,
+        );
         let per_query = scores
             .iter()
             .map(|(name, s)| PerQuery {

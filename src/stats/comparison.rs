@@ -7,6 +7,7 @@
 //! comparison row prints is a field here.
 
 use super::holm::holm;
+use super::parallel::map_indexed;
 use super::power::min_detectable_difference;
 use super::randomization::{randomization_test, EXACT_MAX_QUERIES};
 use super::summary::mean;
@@ -32,6 +33,11 @@ pub struct StatSettings {
     /// Power 1 − β of the minimum detectable difference. Default 0.8
     /// (Cohen 1988's conventional choice, from memory).
     pub power: f64,
+    /// Threads the batch functions ([`compare_families`],
+    /// [`bootstrap_cis`](super::bootstrap_cis)) spread their work over.
+    /// Default 1. No result depends on it: every random draw comes from a
+    /// stream keyed by the seed and the draw's own number.
+    pub threads: usize,
 }
 
 impl StatSettings {
@@ -47,6 +53,7 @@ impl Default for StatSettings {
             bootstrap_resamples: 10_000,
             alpha: 0.05,
             power: 0.8,
+            threads: 1,
         }
     }
 }
@@ -149,13 +156,42 @@ pub fn compare_with_baseline(
     systems: &[&[f64]],
     settings: &StatSettings,
 ) -> Vec<PairedComparison> {
-    let mut comparisons: Vec<PairedComparison> =
-        systems.iter().map(|system| compare_paired(system, baseline, settings)).collect();
-    let raw: Vec<Option<f64>> = comparisons.iter().map(|c| c.p_randomization).collect();
-    for (comparison, adjusted) in comparisons.iter_mut().zip(holm(&raw)) {
-        comparison.p_randomization_holm = adjusted;
-    }
-    comparisons
+    compare_families(&[(baseline, systems.to_vec())], settings)
+        .into_iter()
+        .next()
+        .unwrap_or_default()
+}
+
+/// [`compare_with_baseline`] of several families at once (typically one
+/// per metric): entry f holds family f's comparisons, each exactly what
+/// `compare_with_baseline(baseline, systems, settings)` gives for it. The
+/// comparisons of every family are spread over `settings.threads` threads
+/// together, so a few systems per family still keep every core busy.
+pub fn compare_families(
+    families: &[(&[f64], Vec<&[f64]>)],
+    settings: &StatSettings,
+) -> Vec<Vec<PairedComparison>> {
+    let pairs: Vec<(&[f64], &[f64])> = families
+        .iter()
+        .flat_map(|(baseline, systems)| systems.iter().map(move |system| (*system, *baseline)))
+        .collect();
+    let mut done = map_indexed(pairs.len(), settings.threads, |i| {
+        pairs.get(i).map(|(system, baseline)| compare_paired(system, baseline, settings))
+    })
+    .into_iter()
+    .flatten();
+    families
+        .iter()
+        .map(|(_, systems)| {
+            let mut comparisons: Vec<PairedComparison> =
+                done.by_ref().take(systems.len()).collect();
+            let raw: Vec<Option<f64>> = comparisons.iter().map(|c| c.p_randomization).collect();
+            for (comparison, adjusted) in comparisons.iter_mut().zip(holm(&raw)) {
+                comparison.p_randomization_holm = adjusted;
+            }
+            comparisons
+        })
+        .collect()
 }
 
 #[cfg(test)]
@@ -172,6 +208,7 @@ mod tests {
         assert_eq!(settings.bootstrap_resamples, 10_000);
         assert_eq!(settings.seed, 42);
         assert_eq!((settings.alpha, settings.power), (0.05, 0.8));
+        assert_eq!(settings.threads, 1);
     }
 
     #[test]

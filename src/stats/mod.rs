@@ -8,8 +8,11 @@
 //! each chain; `stats` turns two such lists (a system and the baseline,
 //! paired by query order) into the numbers a report row prints. Everything
 //! here is a pure function of plain `f64` slices plus a seed: no tantivy, no
-//! eval types, no I/O, single-threaded, so identical inputs and seed give
-//! bit-identical results on every run.
+//! eval types, no I/O. The sampled statistics draw from keyed counter-based
+//! streams (`stream.rs`), one per permutation or resample, so identical
+//! inputs and seed give bit-identical results on every run and for any
+//! number of threads (`StatSettings::threads`, used by the batch functions
+//! [`compare_families`] and [`bootstrap_cis`]).
 //!
 //! ```
 //! use postassay::stats::{bootstrap_ci, compare_with_baseline, StatSettings};
@@ -34,14 +37,18 @@
 mod bootstrap;
 mod comparison;
 mod holm;
+mod parallel;
 mod power;
 mod randomization;
+mod stream;
 mod summary;
 mod t_test;
 mod wins;
 
-pub use bootstrap::{bootstrap_ci, CONFIDENCE};
-pub use comparison::{compare_paired, compare_with_baseline, PairedComparison, StatSettings};
+pub use bootstrap::{bootstrap_ci, bootstrap_cis, CONFIDENCE};
+pub use comparison::{
+    compare_families, compare_paired, compare_with_baseline, PairedComparison, StatSettings,
+};
 pub use holm::holm;
 pub use power::min_detectable_difference;
 pub use randomization::{randomization_test, EXACT_MAX_QUERIES};

@@ -427,3 +427,89 @@ fn score_speaks_of_systems_not_of_reindexing() {
     );
     assert!(!one.contains("reindex") && !two.contains("reindex"), "{one}\n{two}");
 }
+
+/// Writes a generated bench for `score` into `dir`: 60 queries (langs en,
+/// de, fr; tags), one relevant post each at a query-dependent rank in each of
+/// three runs, so every test of the whole set and of the larger breakdown
+/// cells takes the sampled path (n > 16). Deterministic (a fixed linear
+/// congruential pattern); common practice, no source.
+fn write_generated_bench(dir: &std::path::Path) -> Vec<String> {
+    let mut qrels = String::from("query_id,doc_id,grade\n");
+    let mut queries = String::from("query_id,text,lang,tags\n");
+    let mut runs = vec![String::from("query_id,doc_id,rank,score\n"); 3];
+    for q in 0..60u32 {
+        let id = format!("q{q:02}");
+        qrels.push_str(&format!("{id},{id}_rel,{}\n", 1 + q % 3));
+        let lang = ["en", "de", "fr"][(q % 3) as usize];
+        let tag = if q % 4 == 0 { "short" } else { "long;plain" };
+        queries.push_str(&format!("{id},text {q},{lang},{tag}\n"));
+        for (s, run) in runs.iter_mut().enumerate() {
+            let s = s as u32;
+            let rel_rank = 1 + (q * (7 + 2 * s) + 3 * s) % 12;
+            for rank in 1..=10 {
+                let doc =
+                    if rank == rel_rank { format!("{id}_rel") } else { format!("{id}_x{rank}") };
+                run.push_str(&format!("{id},{doc},{rank},{}\n", 20 - rank));
+            }
+        }
+    }
+    std::fs::write(dir.join("qrels.csv"), qrels).unwrap();
+    std::fs::write(dir.join("queries.csv"), queries).unwrap();
+    let mut specs = Vec::new();
+    for (s, run) in runs.iter().enumerate() {
+        let path = dir.join(format!("run{s}.csv"));
+        std::fs::write(&path, run).unwrap();
+        specs.push(format!("s{s}={}", path.display()));
+    }
+    specs
+}
+
+#[test]
+fn report_is_identical_for_one_and_two_threads() {
+    // Issue 14: outputs do not depend on --threads. Every sampled statistic
+    // (randomization p-values, bootstrap intervals of means and differences,
+    // whole set and breakdown cells) is in report.json; only `timing` may
+    // differ.
+    let tmp = tempfile::tempdir().unwrap();
+    let runs = write_generated_bench(tmp.path());
+    let qrels = tmp.path().join("qrels.csv");
+    let queries = tmp.path().join("queries.csv");
+    let report = |threads: &str| {
+        let out = tmp.path().join(format!("out{threads}"));
+        let mut args = vec![
+            "score",
+            "--judgments",
+            qrels.to_str().unwrap(),
+            "--queries",
+            queries.to_str().unwrap(),
+            "--threads",
+            threads,
+            "--out",
+            out.to_str().unwrap(),
+        ];
+        for run in &runs {
+            args.extend(["--run", run.as_str()]);
+        }
+        let res = postassay(tmp.path(), &args);
+        assert_eq!(res.status.code(), Some(0), "stderr: {}", texts(&res).1);
+        let mut json: serde_json::Value =
+            serde_json::from_str(&std::fs::read_to_string(out.join("report.json")).unwrap())
+                .unwrap();
+        json.as_object_mut().unwrap().remove("timing");
+        (json, std::fs::read(out.join("summary.csv")).unwrap())
+    };
+    let (one, one_summary) = report("1");
+    let (two, two_summary) = report("2");
+    // The case exercises what it claims: sampled p-values (n = 60 > 16) and
+    // intervals, in the whole set and in breakdown cells.
+    let rows = one["comparisons"].as_array().unwrap();
+    assert!(rows.iter().any(|r| r["queries"] == 60 && r["p_randomization"].as_f64().is_some()));
+    assert!(rows.iter().all(|r| r["delta_ci_low"].as_f64().is_some()));
+    let cells = one["breakdowns"].as_array().unwrap();
+    assert!(cells
+        .iter()
+        .any(|c| c["queries"].as_u64().unwrap() > 16
+            && !c["comparisons"].as_array().unwrap().is_empty()));
+    assert_eq!(one, two);
+    assert_eq!(one_summary, two_summary);
+}
