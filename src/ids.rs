@@ -39,6 +39,14 @@ macro_rules! string_id {
             }
         }
 
+        /// Hash and order are the inner string's (derived on the one
+        /// field), so maps keyed by the id can be searched with a `&str`.
+        impl std::borrow::Borrow<str> for $name {
+            fn borrow(&self) -> &str {
+                &self.0
+            }
+        }
+
         impl From<&str> for $name {
             fn from(s: &str) -> Self {
                 $name(s.to_string())

@@ -80,14 +80,57 @@ struct Entry {
 }
 
 /// Rows read so far, with the line of each (query, post) pair and the
-/// problems found.
+/// problems found. Rows of one query usually follow each other, so the
+/// query of the previous row is tried first; a query's posts are looked up
+/// in its own map, by `&str` (one allocation per kept row and its post id).
 struct Rows {
-    first_line: HashMap<(QueryId, PostId), u64>,
-    entries: BTreeMap<QueryId, Vec<Entry>>,
+    queries: Vec<QueryRows>,
+    by_query: HashMap<QueryId, usize>,
+    last: Option<usize>,
     problems: Problems,
 }
 
+/// The rows of one query.
+struct QueryRows {
+    query: QueryId,
+    first_line: HashMap<PostId, u64>,
+    entries: Vec<Entry>,
+}
+
 impl Rows {
+    fn new(path: &Path) -> Rows {
+        Rows {
+            queries: Vec::new(),
+            by_query: HashMap::new(),
+            last: None,
+            problems: Problems::new(path),
+        }
+    }
+
+    /// The rows of `query`, created on its first row.
+    fn rows_of(&mut self, query: &str) -> usize {
+        if let Some(i) =
+            self.last.filter(|&i| self.queries.get(i).is_some_and(|q| q.query.as_str() == query))
+        {
+            return i;
+        }
+        let i = match self.by_query.get(query) {
+            Some(&i) => i,
+            None => {
+                let i = self.queries.len();
+                self.queries.push(QueryRows {
+                    query: QueryId::from(query),
+                    first_line: HashMap::new(),
+                    entries: Vec::new(),
+                });
+                self.by_query.insert(QueryId::from(query), i);
+                i
+            }
+        };
+        self.last = Some(i);
+        i
+    }
+
     /// Record one line; each `Err` is a message for that line.
     fn add(
         &mut self,
@@ -105,25 +148,31 @@ impl Rows {
             self.problems.push(line, message.clone());
         }
         let (Ok(query), Ok(doc)) = (query, doc) else { return };
-        let key = (QueryId::from(query), PostId::from(doc));
-        if let Some(first) = self.first_line.get(&key) {
+        let i = self.rows_of(query);
+        let Some(rows) = self.queries.get_mut(i) else { return };
+        if let Some(first) = rows.first_line.get(doc) {
             self.problems.push(
                 line,
                 format!("query {query:?}: doc {doc:?} is listed twice (first at line {first})"),
             );
             return;
         }
-        self.first_line.insert(key.clone(), line);
+        let doc = PostId::from(doc);
+        rows.first_line.insert(doc.clone(), line);
         if let (Ok(rank), Ok(score)) = (rank, score) {
-            self.entries.entry(key.0).or_default().push(Entry { rank, doc: key.1, score });
+            rows.entries.push(Entry { rank, doc, score });
         }
     }
 
     fn finish(self) -> Result<Run> {
         let mut run = Run::default();
-        for (query, mut list) in self.entries {
-            list.sort_by(|a, b| a.rank.cmp(&b.rank).then_with(|| a.doc.cmp(&b.doc)));
-            let docs = list.into_iter().map(|e| RankedDoc { doc: e.doc, score: e.score }).collect();
+        for QueryRows { query, mut entries, .. } in self.queries {
+            if entries.is_empty() {
+                continue;
+            }
+            entries.sort_by(|a, b| a.rank.cmp(&b.rank).then_with(|| a.doc.cmp(&b.doc)));
+            let docs =
+                entries.into_iter().map(|e| RankedDoc { doc: e.doc, score: e.score }).collect();
             run.by_query.insert(query, docs);
         }
         self.problems.finish(run)
@@ -133,11 +182,7 @@ impl Rows {
 /// Read and validate a run file (CSV or the six-column layout, chosen by
 /// content), listing every bad line.
 pub fn read_run(path: &Path) -> Result<Run> {
-    let mut rows = Rows {
-        first_line: HashMap::new(),
-        entries: BTreeMap::new(),
-        problems: Problems::new(path),
-    };
+    let mut rows = Rows::new(path);
     match choose_layout(path, SIX_COLUMNS.len(), EXPECTED_LAYOUT)? {
         Layout::Csv => read_csv(path, &mut rows)?,
         Layout::Columns => read_columns(path, &SIX_COLUMNS, |line, fields| match fields {
