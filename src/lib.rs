@@ -19,6 +19,7 @@ pub mod eval;
 pub mod gate;
 pub mod index;
 pub mod judge;
+pub mod pause;
 pub mod pool;
 pub mod report;
 pub mod search;

@@ -955,15 +955,31 @@ fn toml_message(text: &str, e: &toml::de::Error) -> String {
         _ if rest.trim().is_empty() => "found the end of the file".to_string(),
         _ => "found the end of the line".to_string(),
     };
-    format!(
+    capped(&format!(
         "expected a value{after} (a quoted string such as \"words\", a number, true or \
          false, an array [...] or an inline table {{ ... }}), {found}"
-    )
+    ))
 }
 
 /// A possibly multi-line message on one line.
 fn one_line(message: &str) -> String {
-    message.trim_end().lines().map(str::trim).collect::<Vec<_>>().join("; ")
+    capped(&message.trim_end().lines().map(str::trim).collect::<Vec<_>>().join("; "))
+}
+
+/// The longest message about a chain file, in characters: a message quotes
+/// the values it is about, and a value may be a megabyte long.
+const MAX_MESSAGE_CHARS: usize = 400;
+
+/// `message` cut after [`MAX_MESSAGE_CHARS`] characters, saying so.
+fn capped(message: &str) -> String {
+    match message.char_indices().nth(MAX_MESSAGE_CHARS) {
+        Some((cut, _)) => format!(
+            "{}… (message cut: {} characters in all)",
+            &message[..cut],
+            message.chars().count()
+        ),
+        None => message.to_string(),
+    }
 }
 
 /// Problems found while validating, as `origin:line: message` strings.
@@ -980,8 +996,12 @@ struct Issues<'a> {
 impl Issues<'_> {
     /// Note a use of a previous release's name (a warning, not a problem).
     fn deprecate(&mut self, span: Range<usize>, message: impl AsRef<str>) {
-        let entry =
-            format!("{}:{}: {}", self.origin, line_of(self.text, span.start), message.as_ref());
+        let entry = format!(
+            "{}:{}: {}",
+            self.origin,
+            line_of(self.text, span.start),
+            capped(message.as_ref())
+        );
         if !self.deprecations.contains(&entry) {
             self.deprecations.push(entry);
         }
@@ -989,7 +1009,7 @@ impl Issues<'_> {
 
     fn push(&mut self, span: Range<usize>, message: impl AsRef<str>) {
         let line = line_of(self.text, span.start);
-        let entry = format!("{}:{}: {}", self.origin, line, message.as_ref());
+        let entry = format!("{}:{}: {}", self.origin, line, capped(message.as_ref()));
         if !self.seen.insert(entry.clone()) {
             return;
         }

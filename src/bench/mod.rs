@@ -121,6 +121,7 @@ pub fn run(plan: &RunPlan, progress: &mut dyn FnMut(&str)) -> Result<BenchOutput
     let (judgments, mut warnings) = input::read_judgments(&plan.judgments)?;
     let queries = input::read_queries(&plan.queries)?;
     let posts = input::read_corpus(&plan.corpus)?;
+    crate::pause::point("reading");
     check_settings(&plan.judgments, &judgments, &plan.options.eval)?;
     progress(&format!(
         "read {} posts, {} queries, {} judgments",
@@ -142,6 +143,7 @@ pub fn run(plan: &RunPlan, progress: &mut dyn FnMut(&str)) -> Result<BenchOutput
     for analyzer in &analyzers {
         let (post_det, query_det) = detections.for_analyzer(analyzer);
         let index = ChainIndex::build(analyzer, &posts, post_det)?;
+        crate::pause::point("building");
         let outcome = search::search_chain(&index, analyzer, &queries, query_det, plan.depth)?;
         let cost = index.cost();
         progress(&format!(

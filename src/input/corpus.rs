@@ -20,7 +20,10 @@
 //!
 //! Both layouts: ids are trimmed of surrounding whitespace and must be
 //! unique (a duplicate is an error naming both lines); a file without any
-//! post is an error.
+//! post is an error. A post's text may hold at most [`MAX_POST_BYTES`]
+//! bytes: the bench is for short posts, and one huge text would make every
+//! index, report and example hold it (a longer text is an error naming its
+//! line, after which the file is still read to list every problem).
 
 use std::collections::HashMap;
 use std::path::Path;
@@ -35,6 +38,10 @@ use crate::input::text::{
     check_id, check_lang, first_non_blank_byte, in_column, quoted, utf8_message, CsvTable, Lines,
 };
 use crate::input::LangCode;
+
+/// The longest text a post may have, in bytes of UTF-8 (1 MiB: a thousand
+/// times a long social-media post, a few times a long article).
+pub const MAX_POST_BYTES: usize = 1 << 20;
 
 /// One post of the corpus.
 #[derive(Debug, Clone, PartialEq, Eq)]
@@ -82,6 +89,19 @@ impl Collector {
     /// Once a problem is recorded the posts are no longer kept: the result
     /// will be an error.
     fn add(&mut self, line: u64, id: &str, text: String, lang: Option<LangCode>) {
+        if text.len() > MAX_POST_BYTES {
+            self.problems.push(
+                line,
+                format!(
+                    "post {}: its text has {} bytes, more than the {MAX_POST_BYTES} a post \
+                     may have (postassay compares chains on short posts; split a long document \
+                     into passages)",
+                    quoted(id),
+                    text.len()
+                ),
+            );
+            return;
+        }
         if let Some(first) = self.first_line.get(id) {
             self.problems.push(line, format!("duplicate id {id:?} (first at line {first})"));
             return;

@@ -13,7 +13,7 @@ mod queries;
 mod runs;
 mod text;
 
-pub use corpus::{read_corpus, Post};
+pub use corpus::{read_corpus, Post, MAX_POST_BYTES};
 pub use judgments::{read_judgments, Judgments};
 pub use lang_code::LangCode;
 pub use queries::{read_queries, Query};
