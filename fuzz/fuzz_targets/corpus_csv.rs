@@ -1,6 +1,6 @@
-//! Fuzz the corpus reader in its CSV layout (the input is made to start
-//! with a header line `id,text,lang`, or the input's own header follows it
-//! when it starts with a line end... the fuzzer varies the rows).
+//! Fuzz the corpus reader in its CSV layout: the rows after a fixed header
+//! line `id,text,lang`, or (an input starting with `#`) the rest of the
+//! input with its own header.
 #![no_main]
 use libfuzzer_sys::fuzz_target;
 use postassay_fuzz::{check_error, input_file};

@@ -1536,6 +1536,25 @@ mod tests {
     }
 
     #[test]
+    fn messages_quoting_a_huge_value_are_capped() {
+        // A 1 MB chain name (issue 17's hostile sizes): the message keeps its
+        // start, is cut at MAX_MESSAGE_CHARS characters and says how long it
+        // was (our own rule, no source).
+        let long = "n".repeat(1 << 20);
+        let text = format!("[[chain]]\nname = \"{long}\"\ntokenizer = \"words\"\nsteps = []\n");
+        let e = parse_chains(&text, "big.toml", &[]).unwrap_err().to_string();
+        assert!(e.starts_with("big.toml:2: chain name \"nnn"), "{e:.200}");
+        let cut = e.rsplit_once("… (message cut: ").map(|(_, rest)| rest);
+        let total: usize = cut
+            .and_then(|r| r.strip_suffix(" characters in all)"))
+            .and_then(|n| n.parse().ok())
+            .unwrap_or(0);
+        assert!(total > 1 << 20, "{e:.200}");
+        assert!(e.chars().count() < MAX_MESSAGE_CHARS + 100);
+        assert_eq!(capped("short"), "short");
+    }
+
+    #[test]
     fn builtins_are_the_four_documented_chains() {
         let chains = builtin_chains(en()).expect("parse");
         let names: Vec<&str> = chains.iter().map(|c| c.name.as_str()).collect();

@@ -343,6 +343,35 @@ mod tests {
     }
 
     #[test]
+    fn a_post_text_may_hold_1_mib_and_no_more() {
+        // The limit of the module docs (MAX_POST_BYTES, our own choice),
+        // at its edge, in both layouts: 1 MiB of text reads, one byte more
+        // is refused naming the line and the post.
+        let at_limit = "a".repeat(MAX_POST_BYTES);
+        let posts =
+            read("posts.jsonl", format!("{{\"id\": 1, \"text\": \"{at_limit}\"}}\n").as_bytes());
+        assert_eq!(posts[0].text.len(), MAX_POST_BYTES);
+        let over = format!("{at_limit}é");
+        let e = error_of(
+            format!(
+                "{{\"id\": \"x\", \"text\": \"ok\"}}\n{{\"id\": \"big\", \"text\": \"{over}\"}}\n"
+            )
+            .as_bytes(),
+        );
+        assert!(
+            e.ends_with(&format!(
+                ":2: post \"big\": its text has {} bytes, more than the 1048576 a post may have \
+             (postassay compares chains on short posts; split a long document into passages)",
+                MAX_POST_BYTES + 2
+            )),
+            "{e}"
+        );
+        let (_dir, path) = temp_file("posts.csv", format!("id,text\nbig,{over}\n").as_bytes());
+        let e = read_corpus(&path).unwrap_err().to_string();
+        assert!(e.contains(":2: post \"big\": its text has 1048578 bytes"), "{e}");
+    }
+
+    #[test]
     fn jsonl_with_integer_ids_bom_crlf_blank_lines_and_extra_fields() {
         let posts = read(
             "posts.txt",
