@@ -28,7 +28,16 @@
 //!   CRLF.
 //! - Pairs already judged are skipped, so a session resumes where the last
 //!   one stopped. One session per file at a time: two sessions appending to
-//!   the same file could grade the same pair twice.
+//!   the same file could grade the same pair twice, so a session holds an
+//!   advisory lock on the file (`flock`, exclusive) from opening to exit, and
+//!   a second `judge` on that file refuses at once, naming the process that
+//!   holds it when the system says (Linux's `/proc/locks`). The lock belongs
+//!   to the open file: it ends with the process however the process ends
+//!   (`kill -9` included), so a killed session never blocks the next one.
+//! - A grade that cannot be written (a full disk, an I/O error) is not
+//!   saved: whatever part of its line reached the file is cut off again, so
+//!   the file keeps every grade confirmed before it and nothing torn, and the
+//!   error names the pair and grade that was not saved.
 //!
 //! # Undo
 //!
@@ -248,17 +257,19 @@ pub struct JudgmentsAppender {
 impl JudgmentsAppender {
     /// Open `path` for appending (created with the header when missing or
     /// empty) and read the judgments it already holds.
+    ///
+    /// The file stays locked (see the module docs) while the appender
+    /// lives: another session on it fails here, before reading anything.
     pub fn open(path: &Path) -> Result<(JudgmentsAppender, Judgments)> {
-        let is_empty = match std::fs::metadata(path) {
-            Ok(m) => m.len() == 0,
-            Err(e) if e.kind() == std::io::ErrorKind::NotFound => true,
-            Err(e) => return Err(Error::io(path, e)),
-        };
         let mut file = OpenOptions::new()
             .append(true)
             .create(true)
             .open(path)
             .map_err(|e| Error::io(path, e))?;
+        lock::exclusive(&file, path)?;
+        // Looked at under the lock: a session that had created the file
+        // has written its header by now.
+        let is_empty = file.metadata().map_err(|e| Error::io(path, e))?.len() == 0;
         if is_empty {
             file.write_all(format!("{JUDGMENTS_HEADER}\n").as_bytes())
                 .and_then(|()| file.sync_all())
@@ -325,6 +336,10 @@ impl JudgmentsAppender {
 
     /// Append one grade: one `write_all` of the whole line, then fsync.
     /// Returns where the line went, for [`JudgmentsAppender::retract`].
+    ///
+    /// When the line cannot be written or synced (a full disk), the file is
+    /// cut back to its length before the write, and the error says which
+    /// grade was not saved.
     pub fn append(&mut self, query: &QueryId, doc: &PostId, grade: u32) -> Result<Appended> {
         let mut line = self.line(query, doc, grade)?;
         let completes_last_line = self.complete_last_line;
@@ -332,8 +347,23 @@ impl JudgmentsAppender {
             line.splice(0..0, self.line_end.bytes());
         }
         let io = |e| Error::io(&self.path, e);
-        self.file.write_all(&line).map_err(io)?;
-        self.file.sync_data().map_err(io)?;
+        let before = self.file.metadata().map_err(io)?.len();
+        let written = self.file.write_all(&line).and_then(|()| self.file.sync_data());
+        if let Err(e) = written {
+            // Cut off whatever part of the line reached the file (a short
+            // write on a full disk), so no torn line stays behind.
+            let restored = self.file.set_len(before).and_then(|()| self.file.sync_data());
+            let kept = match restored {
+                Ok(()) => "every grade before it is saved".to_string(),
+                Err(r) => format!(
+                    "cutting the partial line off failed too ({r}): check the file's last line"
+                ),
+            };
+            return Err(Error::usage(format!(
+                "{}: grade {grade} for query {query}, post {doc} was NOT saved: {e}; {kept}",
+                self.path.display()
+            )));
+        }
         self.complete_last_line = false;
         // In append mode the line went to the end of the file, wherever that
         // was; the length after the write says where it starts.
@@ -363,6 +393,80 @@ impl JudgmentsAppender {
         // The line end written before this line went with it.
         self.complete_last_line |= appended.completes_last_line;
         Ok(true)
+    }
+}
+
+/// The advisory lock that keeps one judging session per file.
+#[cfg(unix)]
+mod lock {
+    use std::fs::File;
+    use std::os::unix::fs::MetadataExt;
+    use std::path::Path;
+
+    use rustix::fs::{flock, FlockOperation};
+
+    use crate::error::{Error, Result};
+
+    /// Take the exclusive lock on `file` without waiting; refuse with the
+    /// holder's process id and command line when another process holds it.
+    pub(super) fn exclusive(file: &File, path: &Path) -> Result<()> {
+        match flock(file, FlockOperation::NonBlockingLockExclusive) {
+            Ok(()) => Ok(()),
+            Err(rustix::io::Errno::WOULDBLOCK) => {
+                let holder = file.metadata().ok().and_then(|m| holder(&m)).map_or_else(
+                    || "another process".to_string(),
+                    |(pid, command)| match command {
+                        Some(c) => format!("process {pid} ({c})"),
+                        None => format!("process {pid}"),
+                    },
+                );
+                Err(Error::usage(format!(
+                    "{}: {holder} is judging into this file (it holds the file's lock); two \
+                     sessions on one file could grade the same pair twice, so wait until it \
+                     ends or judge into another file",
+                    path.display()
+                )))
+            }
+            Err(e) => Err(Error::io(path, e.into())),
+        }
+    }
+
+    /// The process holding a `flock` on the file of `meta`, from
+    /// `/proc/locks` (Linux: `N: FLOCK ADVISORY WRITE PID MAJ:MIN:INODE 0
+    /// EOF`, device numbers in hex), and its command line when readable.
+    fn holder(meta: &std::fs::Metadata) -> Option<(u32, Option<String>)> {
+        let locks = std::fs::read_to_string("/proc/locks").ok()?;
+        let dev = meta.dev();
+        let (major, minor) = (rustix::fs::major(dev), rustix::fs::minor(dev));
+        let wanted = format!("{major:02x}:{minor:02x}:{}", meta.ino());
+        let pid = locks.lines().find_map(|line| {
+            let fields: Vec<&str> = line.split_whitespace().collect();
+            let kind = fields.iter().position(|f| *f == "FLOCK")?;
+            let pid = fields.get(kind + 3)?;
+            (fields.get(kind + 4) == Some(&wanted.as_str())).then(|| pid.parse::<u32>().ok())?
+        })?;
+        let command = std::fs::read(format!("/proc/{pid}/cmdline")).ok().map(|bytes| {
+            let parts: Vec<String> = bytes
+                .split(|&b| b == 0)
+                .filter(|p| !p.is_empty())
+                .map(|p| String::from_utf8_lossy(p).into_owned())
+                .collect();
+            parts.join(" ")
+        });
+        Some((pid, command.filter(|c| !c.is_empty())))
+    }
+}
+
+/// No advisory lock where `flock` is missing: one session per file is then
+/// the user's to keep.
+#[cfg(not(unix))]
+mod lock {
+    use std::fs::File;
+    use std::path::Path;
+
+    /// Nothing to take.
+    pub(super) fn exclusive(_file: &File, _path: &Path) -> crate::error::Result<()> {
+        Ok(())
     }
 }
 

@@ -955,15 +955,31 @@ fn toml_message(text: &str, e: &toml::de::Error) -> String {
         _ if rest.trim().is_empty() => "found the end of the file".to_string(),
         _ => "found the end of the line".to_string(),
     };
-    format!(
+    capped(&format!(
         "expected a value{after} (a quoted string such as \"words\", a number, true or \
          false, an array [...] or an inline table {{ ... }}), {found}"
-    )
+    ))
 }
 
 /// A possibly multi-line message on one line.
 fn one_line(message: &str) -> String {
-    message.trim_end().lines().map(str::trim).collect::<Vec<_>>().join("; ")
+    capped(&message.trim_end().lines().map(str::trim).collect::<Vec<_>>().join("; "))
+}
+
+/// The longest message about a chain file, in characters: a message quotes
+/// the values it is about, and a value may be a megabyte long.
+const MAX_MESSAGE_CHARS: usize = 400;
+
+/// `message` cut after [`MAX_MESSAGE_CHARS`] characters, saying so.
+fn capped(message: &str) -> String {
+    match message.char_indices().nth(MAX_MESSAGE_CHARS) {
+        Some((cut, _)) => format!(
+            "{}… (message cut: {} characters in all)",
+            &message[..cut],
+            message.chars().count()
+        ),
+        None => message.to_string(),
+    }
 }
 
 /// Problems found while validating, as `origin:line: message` strings.
@@ -980,8 +996,12 @@ struct Issues<'a> {
 impl Issues<'_> {
     /// Note a use of a previous release's name (a warning, not a problem).
     fn deprecate(&mut self, span: Range<usize>, message: impl AsRef<str>) {
-        let entry =
-            format!("{}:{}: {}", self.origin, line_of(self.text, span.start), message.as_ref());
+        let entry = format!(
+            "{}:{}: {}",
+            self.origin,
+            line_of(self.text, span.start),
+            capped(message.as_ref())
+        );
         if !self.deprecations.contains(&entry) {
             self.deprecations.push(entry);
         }
@@ -989,7 +1009,7 @@ impl Issues<'_> {
 
     fn push(&mut self, span: Range<usize>, message: impl AsRef<str>) {
         let line = line_of(self.text, span.start);
-        let entry = format!("{}:{}: {}", self.origin, line, message.as_ref());
+        let entry = format!("{}:{}: {}", self.origin, line, capped(message.as_ref()));
         if !self.seen.insert(entry.clone()) {
             return;
         }
@@ -1513,6 +1533,25 @@ mod tests {
 
     fn chain(steps: &str) -> String {
         format!("[[chain]]\nname = \"a\"\ntokenizer = \"posts\"\nsteps = [\n{steps}\n]\n")
+    }
+
+    #[test]
+    fn messages_quoting_a_huge_value_are_capped() {
+        // A 1 MB chain name (issue 17's hostile sizes): the message keeps its
+        // start, is cut at MAX_MESSAGE_CHARS characters and says how long it
+        // was (our own rule, no source).
+        let long = "n".repeat(1 << 20);
+        let text = format!("[[chain]]\nname = \"{long}\"\ntokenizer = \"words\"\nsteps = []\n");
+        let e = parse_chains(&text, "big.toml", &[]).unwrap_err().to_string();
+        assert!(e.starts_with("big.toml:2: chain name \"nnn"), "{e:.200}");
+        let cut = e.rsplit_once("… (message cut: ").map(|(_, rest)| rest);
+        let total: usize = cut
+            .and_then(|r| r.strip_suffix(" characters in all)"))
+            .and_then(|n| n.parse().ok())
+            .unwrap_or(0);
+        assert!(total > 1 << 20, "{e:.200}");
+        assert!(e.chars().count() < MAX_MESSAGE_CHARS + 100);
+        assert_eq!(capped("short"), "short");
     }
 
     #[test]

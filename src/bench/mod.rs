@@ -134,6 +134,7 @@ pub fn run(plan: &RunPlan, progress: &Progress) -> Result<BenchOutput> {
         reading.advance(bytes.saturating_sub(read_so_far.replace(bytes)));
     })?;
     drop(reading);
+    crate::pause::point("reading");
     check_settings(&plan.judgments, &judgments, &plan.options.eval)?;
     progress.line(&format!(
         "read {} posts, {} queries, {} judgments in {:.2} s",
@@ -397,6 +398,7 @@ fn one_chain(work: &ChainWork<'_>, i: usize) -> Result<ChainDone> {
             }
         }
     };
+    crate::pause::point("building");
     let seconds = started.elapsed().as_secs_f64();
     let cost = index.cost().clone();
     building.finish(

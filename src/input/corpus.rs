@@ -20,7 +20,7 @@
 //!
 //! Both layouts: ids are trimmed of surrounding whitespace and must be
 //! unique (a duplicate is an error naming both lines); a file without any
-//! post is an error.
+//! post is an error. No length limit applies to a post (formats.md).
 
 use std::collections::HashMap;
 use std::path::Path;

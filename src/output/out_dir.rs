@@ -10,6 +10,14 @@
 //! sees old and new files mixed. The old directory's files are then
 //! removed one by one, each known to be postassay's.
 //!
+//! Faults: when the new directory cannot be written (a full disk, a
+//! read-only place) it is removed again and the command fails naming `DIR`
+//! and the system's reason; the previous `DIR` is untouched. A process
+//! killed mid-swap leaves its temporary directories beside `DIR`, named
+//! with its process id; the next command writing `DIR` finishes the job
+//! once that process is gone (a half-written new directory is removed; the
+//! previous directory, when `DIR` is missing, is put back).
+//!
 //! Which files are postassay's: those listed in the directory's manifest
 //! ([`MANIFEST`], written with every output directory), or, in a directory
 //! without one (written by an older version), the names postassay writes
@@ -244,6 +252,18 @@ pub fn replace_out_dir(out: &Path, files: &[OutputFile]) -> Result<()> {
         }
         _ => out.to_path_buf(),
     };
+    let name = out
+        .file_name()
+        .and_then(|n| n.to_str())
+        .ok_or_else(|| Error::usage(format!("--out {}: expected a directory name", out.display())))?
+        .to_string();
+    let parent = match out.parent() {
+        Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
+        _ => PathBuf::from("."),
+    };
+    if parent.is_dir() {
+        recover_interrupted(&parent, &name, &out);
+    }
     let new_top: BTreeSet<String> = files
         .iter()
         .filter_map(|(p, _)| p.iter().next().and_then(|c| c.to_str()).map(str::to_string))
@@ -263,51 +283,112 @@ pub fn replace_out_dir(out: &Path, files: &[OutputFile]) -> Result<()> {
     } else {
         None
     };
-    let name = out
-        .file_name()
-        .and_then(|n| n.to_str())
-        .ok_or_else(|| Error::usage(format!("--out {}: expected a directory name", out.display())))?
-        .to_string();
-    let parent = match out.parent() {
-        Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
-        _ => PathBuf::from("."),
-    };
-    std::fs::create_dir_all(&parent).map_err(|e| Error::io(&parent, e))?;
-    let staging = fresh_dir(&parent, &format!("{TEMP_PREFIX}new-{name}"))?;
+    std::fs::create_dir_all(&parent).map_err(|e| not_written(&out, Error::io(&parent, e)))?;
+    let staging = fresh_dir(&parent, &format!("{TEMP_PREFIX}new-{name}"))
+        .map_err(|e| not_written(&out, e))?;
     if let Err(e) = fill(&staging, files) {
         // Best effort: the staging directory holds only what was just written.
         let _ = std::fs::remove_dir_all(&staging);
-        return Err(e);
+        return Err(not_written(&out, e));
     }
     let Some(inv) = old else {
-        return std::fs::rename(&staging, &out).map_err(|e| Error::io(&out, e));
+        return std::fs::rename(&staging, &out).map_err(|e| {
+            let _ = std::fs::remove_dir_all(&staging);
+            not_written(&out, Error::io(&out, e))
+        });
     };
     #[cfg(unix)]
     if let Ok(meta) = std::fs::metadata(&out) {
         let _ = std::fs::set_permissions(&staging, meta.permissions());
     }
     let aside = unique_name(&parent, &format!("{TEMP_PREFIX}old-{name}"));
-    std::fs::rename(&out, &aside).map_err(|e| Error::io(&out, e))?;
+    if let Err(e) = std::fs::rename(&out, &aside) {
+        let _ = std::fs::remove_dir_all(&staging);
+        return Err(not_written(&out, Error::io(&out, e)));
+    }
+    crate::pause::point("swapping");
     if let Err(e) = std::fs::rename(&staging, &out) {
         // Put the old directory back.
         let _ = std::fs::rename(&aside, &out);
-        return Err(Error::io(&out, e));
+        let _ = std::fs::remove_dir_all(&staging);
+        return Err(not_written(&out, Error::io(&out, e)));
     }
+    crate::pause::point("clearing");
+    clear_aside(&aside, &out, &inv)
+}
+
+/// The last step of a swap: carry the nested output directories of the
+/// previous directory (now at `aside`) over into `out` (unless `out` has one
+/// of that name), then remove only what is known to be postassay's and the
+/// emptied directories: a file that appeared meanwhile stays, and so does
+/// the directory that holds it.
+fn clear_aside(aside: &Path, out: &Path, inv: &Inventory) -> Result<()> {
     for nested in &inv.nested {
+        if std::fs::symlink_metadata(out.join(nested)).is_ok() {
+            continue;
+        }
         std::fs::rename(aside.join(nested), out.join(nested))
             .map_err(|e| Error::io(&aside.join(nested), e))?;
     }
-    // Remove only what is known to be postassay's, then the emptied
-    // directories: a file that appeared meanwhile stays, and so does the
-    // directory that holds it.
     for file in &inv.ours {
         let path = aside.join(file);
         std::fs::remove_file(&path).map_err(|e| Error::io(&path, e))?;
     }
-    for dir in inv.dirs.iter().rev().map(|d| aside.join(d)).chain([aside.clone()]) {
+    for dir in inv.dirs.iter().rev().map(|d| aside.join(d)).chain([aside.to_path_buf()]) {
         std::fs::remove_dir(&dir).map_err(|e| Error::io(&dir, e))?;
     }
     Ok(())
+}
+
+/// Finish what a postassay process that was killed while replacing `out`
+/// (named `name`, in `parent`) left beside it, when that process is gone
+/// (its id is in the names, see [`unique_name`]): a new directory it was
+/// filling is removed (everything in it is postassay's); the previous
+/// directory it had moved aside is put back when `out` is missing (killed
+/// between the two renames, the previous outputs return whole), or cleared
+/// like the last step of a swap when `out` is in place. Best effort: what
+/// cannot be done is left as it is, and the command goes on.
+fn recover_interrupted(parent: &Path, name: &str, out: &Path) {
+    let Ok(list) = entries(parent) else { return };
+    let new_stem = format!("{TEMP_PREFIX}new-{name}-");
+    let old_stem = format!("{TEMP_PREFIX}old-{name}-");
+    for entry in list {
+        let Some(file) = entry.file_name().to_str().map(str::to_string) else { continue };
+        let path = entry.path();
+        if file.strip_prefix(&new_stem).is_some_and(owner_gone) {
+            let _ = std::fs::remove_dir_all(&path);
+        } else if file.strip_prefix(&old_stem).is_some_and(owner_gone) {
+            if std::fs::symlink_metadata(out).is_err() {
+                let _ = std::fs::rename(&path, out);
+            } else if let Ok(inv) = inventory(&path, &BTreeSet::new()) {
+                let _ = clear_aside(&path, out, &inv);
+            }
+        }
+    }
+}
+
+/// Whether the process of a temporary name's `PID-N` ending is gone. Known
+/// only where `/proc` lists processes (Linux); elsewhere, and for this
+/// process, the answer is no, and nothing is touched.
+fn owner_gone(suffix: &str) -> bool {
+    let Some((pid, n)) = suffix.split_once('-') else { return false };
+    let numeric = |s: &str| !s.is_empty() && s.bytes().all(|b| b.is_ascii_digit());
+    if !numeric(pid) || !numeric(n) || pid == std::process::id().to_string() {
+        return false;
+    }
+    let proc = Path::new("/proc");
+    proc.join("self").exists() && !proc.join(pid).exists()
+}
+
+/// The error of an output directory that could not be written: names
+/// `--out` and says the previous outputs are kept, then the cause (the path
+/// and the system's reason).
+fn not_written(out: &Path, cause: Error) -> Error {
+    Error::usage(format!(
+        "--out {}: the outputs could not be written (any previous outputs there are kept \
+         unchanged): {cause}",
+        out.display()
+    ))
 }
 
 /// Write `files` and the manifest into the (new, empty) directory `dir`.
@@ -322,6 +403,7 @@ fn fill(dir: &Path, files: &[OutputFile]) -> Result<()> {
             std::fs::create_dir_all(sub).map_err(|e| Error::io(sub, e))?;
         }
         write_synced(&path, bytes)?;
+        crate::pause::point("writing");
         manifest.push_str(&rel.to_string_lossy().replace('\\', "/"));
         manifest.push('\n');
     }

@@ -24,17 +24,23 @@ fn make_pool(dir: &Path) -> PathBuf {
     out
 }
 
-fn judge(dir: &Path, pool: &Path, judgments: &Path, script: &str) -> Output {
-    let mut child = Command::new(env!("CARGO_BIN_EXE_postassay"))
+/// `postassay judge` on `pool` into `judgments`, colour off, every stream piped.
+pub(crate) fn judge_command(dir: &Path, pool: &Path, judgments: &Path) -> Command {
+    let mut command = Command::new(env!("CARGO_BIN_EXE_postassay"));
+    command
         .current_dir(dir)
         .args(["judge", "--pool", pool.to_str().unwrap(), "--judgments"])
         .arg(judgments)
         .env("NO_COLOR", "1")
         .stdin(Stdio::piped())
         .stdout(Stdio::piped())
-        .stderr(Stdio::piped())
-        .spawn()
-        .expect("the binary starts");
+        .stderr(Stdio::piped());
+    command
+}
+
+/// Run `judge` with `script` on stdin, to its end.
+pub(crate) fn judge(dir: &Path, pool: &Path, judgments: &Path, script: &str) -> Output {
+    let mut child = judge_command(dir, pool, judgments).spawn().expect("the binary starts");
     // A judge that refuses its input exits before reading the script: a
     // broken pipe here is expected then, and the exit code tells the rest.
     let _ = child.stdin.take().unwrap().write_all(script.as_bytes());
@@ -148,7 +154,7 @@ fn a_complete_last_line_without_line_end_is_accepted() {
 
 /// A pool of `n` pairs, ten posts per query, written as `postassay pool`
 /// would (the header is the pool module's).
-fn numbered_pool(dir: &Path, n: usize) -> PathBuf {
+pub(crate) fn numbered_pool(dir: &Path, n: usize) -> PathBuf {
     let mut text = postassay::pool::POOL_HEADER.join(",") + "\n";
     for i in 0..n {
         let (q, rank) = (i / 10, i % 10 + 1);
@@ -161,7 +167,7 @@ fn numbered_pool(dir: &Path, n: usize) -> PathBuf {
 
 /// The judgments a test expects after grading the first `n` pairs of
 /// [`numbered_pool`] with grade `i % 4`.
-fn numbered_grades(n: usize) -> String {
+pub(crate) fn numbered_grades(n: usize) -> String {
     let mut text = "query_id,doc_id,grade\n".to_string();
     for i in 0..n {
         text += &format!("q{:02},p{i:03},{}\n", i / 10, i % 4);
