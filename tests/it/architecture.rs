@@ -101,10 +101,13 @@ fn report_model_is_plain_data() {
     }
 }
 
+/// File writing names only the bottom: errors, and the kill tests' pause
+/// points (`pause`, which names nothing).
 #[test]
 fn file_writing_names_no_renderer() {
     let deps = dependencies("output");
-    assert_eq!(deps.keys().collect::<Vec<_>>(), ["error"], "{deps:?}");
+    assert_eq!(deps.keys().collect::<Vec<_>>(), ["error", "pause"], "{deps:?}");
+    assert!(dependencies("pause").is_empty(), "{:?}", dependencies("pause"));
 }
 
 #[test]
