@@ -22,10 +22,11 @@
 //!   interrupted program) is refused, naming the line, rather than appended
 //!   to.
 //! - A missing or empty file is created with the header
-//!   `query_id,doc_id,grade`. An existing file keeps its layout: CSV lines
-//!   follow its header's column order (extra columns left empty), the
-//!   four-column layout gets `query_id 0 doc_id grade`, and CRLF files get
-//!   CRLF.
+//!   `query_id,doc_id,grade` (a blank file, holding no judgment, is emptied
+//!   first; after a lone `sep=X` line the header uses that separator).
+//!   An existing file keeps its layout: CSV lines follow its header's
+//!   column order (extra columns left empty), the four-column layout gets
+//!   `query_id 0 doc_id grade`, and CRLF files get CRLF.
 //! - Pairs already judged are skipped, so a session resumes where the last
 //!   one stopped. One session per file at a time: two sessions appending to
 //!   the same file could grade the same pair twice, so a session holds an
@@ -137,6 +138,9 @@ struct Inspection {
     line_end: &'static str,
     /// The number of the last line when it has no line end.
     unterminated: Option<u64>,
+    /// The file has no header yet: it is empty, blank, or holds only a
+    /// `sep=X` line.
+    needs_header: bool,
 }
 
 /// Look at an existing judgments file: find the layout, the line end,
@@ -161,6 +165,7 @@ fn inspect(path: &Path) -> Result<Inspection> {
             has_judgments: false,
             line_end: "\n",
             unterminated,
+            needs_header: true,
         });
     };
     let line_end = if first.ends_with(b"\r") { "\r\n" } else { "\n" };
@@ -174,6 +179,7 @@ fn inspect(path: &Path) -> Result<Inspection> {
                     has_judgments: false,
                     line_end,
                     unterminated,
+                    needs_header: true,
                 })
             }
         },
@@ -191,6 +197,7 @@ fn inspect(path: &Path) -> Result<Inspection> {
                 has_judgments: has_more,
                 line_end,
                 unterminated,
+                needs_header: false,
             }),
             _ => Err(Error::at_line(
                 path,
@@ -199,7 +206,13 @@ fn inspect(path: &Path) -> Result<Inspection> {
             )),
         }
     } else {
-        Ok(Inspection { layout: Layout::FourColumn, has_judgments: true, line_end, unterminated })
+        Ok(Inspection {
+            layout: Layout::FourColumn,
+            has_judgments: true,
+            line_end,
+            unterminated,
+            needs_header: false,
+        })
     }
 }
 
@@ -269,14 +282,29 @@ impl JudgmentsAppender {
         lock::exclusive(&file, path)?;
         // Looked at under the lock: a session that had created the file
         // has written its header by now.
-        let is_empty = file.metadata().map_err(|e| Error::io(path, e))?.len() == 0;
-        if is_empty {
-            file.write_all(format!("{JUDGMENTS_HEADER}\n").as_bytes())
+        let mut inspection = inspect(path)?;
+        if inspection.needs_header {
+            // An empty file gets the header; so does a blank one, emptied
+            // first (it holds no judgment, and the CSV reader takes its
+            // first line, blank or not, as the header); a `sep=X` line
+            // alone gets it after the line (and a line end it lacks).
+            let Layout::Csv { separator, .. } = inspection.layout else {
+                return Err(Error::in_file(path, "expected a header line"));
+            };
+            let bytes = std::fs::read(path).map_err(|e| Error::io(path, e))?;
+            let blank = bytes.trim_ascii().is_empty();
+            if blank && !bytes.is_empty() {
+                file.set_len(0).map_err(|e| Error::io(path, e))?;
+            }
+            let end = inspection.line_end;
+            let lead = if inspection.unterminated.is_some() && !blank { end } else { "" };
+            let header = JUDGMENTS_HEADER.replace(',', &char::from(separator).to_string());
+            file.write_all(format!("{lead}{header}{end}").as_bytes())
                 .and_then(|()| file.sync_all())
                 .map_err(|e| Error::io(path, e))?;
             sync_parent(path);
+            inspection = inspect(path)?;
         }
-        let inspection = inspect(path)?;
         let judgments = read_existing(path, &inspection)?.0;
         let appender = JudgmentsAppender {
             path: path.to_path_buf(),
@@ -884,6 +912,29 @@ mod tests {
         std::fs::write(&path, "query_id,doc_id,grade\nq1,d1,x\nq1,d2,1").unwrap();
         let msg = JudgmentsAppender::open(&path).unwrap_err().to_string();
         assert!(msg.contains("j.csv:2: column \"grade\""), "{msg}");
+    }
+
+    #[test]
+    fn a_blank_file_or_a_separator_line_alone_gets_a_header_first() {
+        // Regression, found by the judge_resume fuzz target (issue 17): a
+        // file holding only "  " (no line end) got "\nfq,fd,2\n" appended
+        // and no header, so it no longer read as judgments. Now a blank file
+        // is emptied and gets the header; a `sep=;` line alone gets a header
+        // in that separator.
+        let dir = tempfile::tempdir().unwrap();
+        for (before, after) in [
+            ("  ", "query_id,doc_id,grade\nq1,d1,2\n"),
+            ("\n \r\n", "query_id,doc_id,grade\nq1,d1,2\n"),
+            ("sep=;\n", "sep=;\nquery_id;doc_id;grade\nq1;d1;2\n"),
+        ] {
+            let path = dir.path().join("j.csv");
+            std::fs::write(&path, before).unwrap();
+            let (mut appender, judged) = JudgmentsAppender::open(&path).unwrap();
+            assert!(judged.is_empty());
+            appender.append(&QueryId::from("q1"), &PostId::from("d1"), 2).unwrap();
+            assert_eq!(std::fs::read_to_string(&path).unwrap(), after, "{before:?}");
+            assert_eq!(read_judgments(&path).unwrap().0.len(), 1, "{before:?} reads back");
+        }
     }
 
     #[test]
