@@ -191,6 +191,18 @@ fn inspect(path: &Path) -> Result<Inspection> {
     let has_more = lines.next().is_some();
     if fields.contains(&"query_id") {
         let find = |name: &str| fields.iter().position(|f| *f == name);
+        // A header naming a column twice does not read (the judgments
+        // reader refuses it); refuse it here too, before any grade goes in.
+        if let Some(twice) = ["query_id", "doc_id", "grade"]
+            .into_iter()
+            .find(|name| fields.iter().filter(|f| *f == name).count() > 1)
+        {
+            return Err(Error::at_line(
+                path,
+                first_index as u64 + 1,
+                format!("column {twice:?} appears more than once in the header"),
+            ));
+        }
         match (find("query_id"), find("doc_id"), find("grade")) {
             (Some(query), Some(doc), Some(grade)) => Ok(Inspection {
                 layout: Layout::Csv { width: fields.len(), query, doc, grade, separator },
@@ -935,6 +947,23 @@ mod tests {
             assert_eq!(std::fs::read_to_string(&path).unwrap(), after, "{before:?}");
             assert_eq!(read_judgments(&path).unwrap().0.len(), 1, "{before:?} reads back");
         }
+    }
+
+    #[test]
+    fn a_header_naming_a_column_twice_is_refused_before_any_grade() {
+        // Regression, found by the judge_resume fuzz target (issue 17): the
+        // header-only file "query_id,query_id,doc_id,grade" was accepted and a
+        // grade appended, after which the file no longer read.
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("j.csv");
+        let before = "query_id,query_id,doc_id,grade\n";
+        std::fs::write(&path, before).unwrap();
+        let msg = JudgmentsAppender::open(&path).unwrap_err().to_string();
+        assert!(
+            msg.ends_with(":1: column \"query_id\" appears more than once in the header"),
+            "{msg}"
+        );
+        assert_eq!(std::fs::read_to_string(&path).unwrap(), before);
     }
 
     #[test]
