@@ -185,7 +185,10 @@ fn inspect(path: &Path) -> Result<Inspection> {
         },
         _ => (b',', first_index, first),
     };
-    let first = String::from_utf8_lossy(first);
+    // A header that is not UTF-8 does not read; refuse it before any grade.
+    let first = std::str::from_utf8(first).map_err(|e| {
+        Error::at_line(path, first_index as u64 + 1, crate::input::utf8_message(e, "the header"))
+    })?;
     let fields: Vec<&str> =
         first.trim_end_matches('\r').split(char::from(separator)).map(str::trim).collect();
     let has_more = lines.next().is_some();
@@ -964,6 +967,18 @@ mod tests {
             "{msg}"
         );
         assert_eq!(std::fs::read_to_string(&path).unwrap(), before);
+    }
+
+    #[test]
+    fn a_header_that_is_not_utf8_is_refused_before_any_grade() {
+        // Regression, found by the judge_resume fuzz target (issue 17).
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("j.csv");
+        let before = b"query_id,qu\xfe\xfdy_id,doc_id,grade\n";
+        std::fs::write(&path, before).unwrap();
+        let msg = JudgmentsAppender::open(&path).unwrap_err().to_string();
+        assert!(msg.contains(":1: "), "{msg}");
+        assert_eq!(std::fs::read(&path).unwrap(), before);
     }
 
     #[test]
