@@ -22,10 +22,11 @@
 //!   interrupted program) is refused, naming the line, rather than appended
 //!   to.
 //! - A missing or empty file is created with the header
-//!   `query_id,doc_id,grade`. An existing file keeps its layout: CSV lines
-//!   follow its header's column order (extra columns left empty), the
-//!   four-column layout gets `query_id 0 doc_id grade`, and CRLF files get
-//!   CRLF.
+//!   `query_id,doc_id,grade` (a blank file, holding no judgment, is emptied
+//!   first; after a lone `sep=X` line the header uses that separator).
+//!   An existing file keeps its layout: CSV lines follow its header's
+//!   column order (extra columns left empty), the four-column layout gets
+//!   `query_id 0 doc_id grade`, and CRLF files get CRLF.
 //! - Pairs already judged are skipped, so a session resumes where the last
 //!   one stopped. One session per file at a time: two sessions appending to
 //!   the same file could grade the same pair twice, so a session holds an
@@ -137,6 +138,9 @@ struct Inspection {
     line_end: &'static str,
     /// The number of the last line when it has no line end.
     unterminated: Option<u64>,
+    /// The file has no header yet: it is empty, blank, or holds only a
+    /// `sep=X` line.
+    needs_header: bool,
 }
 
 /// Look at an existing judgments file: find the layout, the line end,
@@ -161,6 +165,7 @@ fn inspect(path: &Path) -> Result<Inspection> {
             has_judgments: false,
             line_end: "\n",
             unterminated,
+            needs_header: true,
         });
     };
     let line_end = if first.ends_with(b"\r") { "\r\n" } else { "\n" };
@@ -174,23 +179,40 @@ fn inspect(path: &Path) -> Result<Inspection> {
                     has_judgments: false,
                     line_end,
                     unterminated,
+                    needs_header: true,
                 })
             }
         },
         _ => (b',', first_index, first),
     };
-    let first = String::from_utf8_lossy(first);
+    // A header that is not UTF-8 does not read; refuse it before any grade.
+    let first = std::str::from_utf8(first).map_err(|e| {
+        Error::at_line(path, first_index as u64 + 1, crate::input::utf8_message(e, "the header"))
+    })?;
     let fields: Vec<&str> =
         first.trim_end_matches('\r').split(char::from(separator)).map(str::trim).collect();
     let has_more = lines.next().is_some();
     if fields.contains(&"query_id") {
         let find = |name: &str| fields.iter().position(|f| *f == name);
+        // A header naming a column twice does not read (the judgments
+        // reader refuses it); refuse it here too, before any grade goes in.
+        if let Some(twice) = ["query_id", "doc_id", "grade"]
+            .into_iter()
+            .find(|name| fields.iter().filter(|f| *f == name).count() > 1)
+        {
+            return Err(Error::at_line(
+                path,
+                first_index as u64 + 1,
+                format!("column {twice:?} appears more than once in the header"),
+            ));
+        }
         match (find("query_id"), find("doc_id"), find("grade")) {
             (Some(query), Some(doc), Some(grade)) => Ok(Inspection {
                 layout: Layout::Csv { width: fields.len(), query, doc, grade, separator },
                 has_judgments: has_more,
                 line_end,
                 unterminated,
+                needs_header: false,
             }),
             _ => Err(Error::at_line(
                 path,
@@ -199,7 +221,13 @@ fn inspect(path: &Path) -> Result<Inspection> {
             )),
         }
     } else {
-        Ok(Inspection { layout: Layout::FourColumn, has_judgments: true, line_end, unterminated })
+        Ok(Inspection {
+            layout: Layout::FourColumn,
+            has_judgments: true,
+            line_end,
+            unterminated,
+            needs_header: false,
+        })
     }
 }
 
@@ -269,14 +297,29 @@ impl JudgmentsAppender {
         lock::exclusive(&file, path)?;
         // Looked at under the lock: a session that had created the file
         // has written its header by now.
-        let is_empty = file.metadata().map_err(|e| Error::io(path, e))?.len() == 0;
-        if is_empty {
-            file.write_all(format!("{JUDGMENTS_HEADER}\n").as_bytes())
+        let mut inspection = inspect(path)?;
+        if inspection.needs_header {
+            // An empty file gets the header; so does a blank one, emptied
+            // first (it holds no judgment, and the CSV reader takes its
+            // first line, blank or not, as the header); a `sep=X` line
+            // alone gets it after the line (and a line end it lacks).
+            let Layout::Csv { separator, .. } = inspection.layout else {
+                return Err(Error::in_file(path, "expected a header line"));
+            };
+            let bytes = std::fs::read(path).map_err(|e| Error::io(path, e))?;
+            let blank = bytes.trim_ascii().is_empty();
+            if blank && !bytes.is_empty() {
+                file.set_len(0).map_err(|e| Error::io(path, e))?;
+            }
+            let end = inspection.line_end;
+            let lead = if inspection.unterminated.is_some() && !blank { end } else { "" };
+            let header = JUDGMENTS_HEADER.replace(',', &char::from(separator).to_string());
+            file.write_all(format!("{lead}{header}{end}").as_bytes())
                 .and_then(|()| file.sync_all())
                 .map_err(|e| Error::io(path, e))?;
             sync_parent(path);
+            inspection = inspect(path)?;
         }
-        let inspection = inspect(path)?;
         let judgments = read_existing(path, &inspection)?.0;
         let appender = JudgmentsAppender {
             path: path.to_path_buf(),
@@ -884,6 +927,58 @@ mod tests {
         std::fs::write(&path, "query_id,doc_id,grade\nq1,d1,x\nq1,d2,1").unwrap();
         let msg = JudgmentsAppender::open(&path).unwrap_err().to_string();
         assert!(msg.contains("j.csv:2: column \"grade\""), "{msg}");
+    }
+
+    #[test]
+    fn a_blank_file_or_a_separator_line_alone_gets_a_header_first() {
+        // Regression, found by the judge_resume fuzz target (issue 17): a
+        // file holding only "  " (no line end) got "\nfq,fd,2\n" appended
+        // and no header, so it no longer read as judgments. Now a blank file
+        // is emptied and gets the header; a `sep=;` line alone gets a header
+        // in that separator.
+        let dir = tempfile::tempdir().unwrap();
+        for (before, after) in [
+            ("  ", "query_id,doc_id,grade\nq1,d1,2\n"),
+            ("\n \r\n", "query_id,doc_id,grade\nq1,d1,2\n"),
+            ("sep=;\n", "sep=;\nquery_id;doc_id;grade\nq1;d1;2\n"),
+        ] {
+            let path = dir.path().join("j.csv");
+            std::fs::write(&path, before).unwrap();
+            let (mut appender, judged) = JudgmentsAppender::open(&path).unwrap();
+            assert!(judged.is_empty());
+            appender.append(&QueryId::from("q1"), &PostId::from("d1"), 2).unwrap();
+            assert_eq!(std::fs::read_to_string(&path).unwrap(), after, "{before:?}");
+            assert_eq!(read_judgments(&path).unwrap().0.len(), 1, "{before:?} reads back");
+        }
+    }
+
+    #[test]
+    fn a_header_naming_a_column_twice_is_refused_before_any_grade() {
+        // Regression, found by the judge_resume fuzz target (issue 17): the
+        // header-only file "query_id,query_id,doc_id,grade" was accepted and a
+        // grade appended, after which the file no longer read.
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("j.csv");
+        let before = "query_id,query_id,doc_id,grade\n";
+        std::fs::write(&path, before).unwrap();
+        let msg = JudgmentsAppender::open(&path).unwrap_err().to_string();
+        assert!(
+            msg.ends_with(":1: column \"query_id\" appears more than once in the header"),
+            "{msg}"
+        );
+        assert_eq!(std::fs::read_to_string(&path).unwrap(), before);
+    }
+
+    #[test]
+    fn a_header_that_is_not_utf8_is_refused_before_any_grade() {
+        // Regression, found by the judge_resume fuzz target (issue 17).
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("j.csv");
+        let before = b"query_id,qu\xfe\xfdy_id,doc_id,grade\n";
+        std::fs::write(&path, before).unwrap();
+        let msg = JudgmentsAppender::open(&path).unwrap_err().to_string();
+        assert!(msg.contains(":1: "), "{msg}");
+        assert_eq!(std::fs::read(&path).unwrap(), before);
     }
 
     #[test]
