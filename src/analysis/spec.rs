@@ -967,8 +967,10 @@ fn one_line(message: &str) -> String {
 }
 
 /// The longest message about a chain file, in characters: a message quotes
-/// the values it is about, and a value may be a megabyte long.
-const MAX_MESSAGE_CHARS: usize = 400;
+/// the values it is about, and a value may be a megabyte long. Long enough
+/// for every message that lists accepted values (the longest is a few
+/// hundred characters).
+const MAX_MESSAGE_CHARS: usize = 1_000;
 
 /// `message` cut after [`MAX_MESSAGE_CHARS`] characters, saying so.
 fn capped(message: &str) -> String {
