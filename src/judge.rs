@@ -189,8 +189,18 @@ fn inspect(path: &Path) -> Result<Inspection> {
     let first = std::str::from_utf8(first).map_err(|e| {
         Error::at_line(path, first_index as u64 + 1, crate::input::utf8_message(e, "the header"))
     })?;
-    let fields: Vec<&str> =
-        first.trim_end_matches('\r').split(char::from(separator)).map(str::trim).collect();
+    // The CSV reader ends a line at a lone `\r` too; a header cut by one
+    // reads as a different header there, so refuse it before any grade.
+    let header = first.strip_suffix('\r').unwrap_or(first);
+    if header.contains('\r') {
+        return Err(Error::at_line(
+            path,
+            first_index as u64 + 1,
+            "the header line holds a carriage return (\\r) before its end: expected lines \
+             ending in \\n or \\r\\n",
+        ));
+    }
+    let fields: Vec<&str> = header.split(char::from(separator)).map(str::trim).collect();
     let has_more = lines.next().is_some();
     if fields.contains(&"query_id") {
         let find = |name: &str| fields.iter().position(|f| *f == name);
@@ -978,6 +988,21 @@ mod tests {
         std::fs::write(&path, before).unwrap();
         let msg = JudgmentsAppender::open(&path).unwrap_err().to_string();
         assert!(msg.contains(":1: "), "{msg}");
+        assert_eq!(std::fs::read(&path).unwrap(), before);
+    }
+
+    #[test]
+    fn a_header_cut_by_a_lone_carriage_return_is_refused_before_any_grade() {
+        // Regression, found by the judge_resume fuzz target (issue 17): the
+        // CSV reader took `,,query_id,doc_` (up to the first `\r`) as the
+        // header once a grade was appended.
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("j.csv");
+        let before = b",,query_id,doc_,,u\rid,qu\r\rquery_id,doc_id,grade\n";
+        std::fs::write(&path, before).unwrap();
+        let msg = JudgmentsAppender::open(&path).unwrap_err().to_string();
+        assert!(msg.contains(":1: the header line holds a carriage return"), "{msg}");
+        assert!(read_judgments_allow_empty(&path).is_err());
         assert_eq!(std::fs::read(&path).unwrap(), before);
     }
 
