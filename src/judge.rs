@@ -192,6 +192,16 @@ fn inspect(path: &Path) -> Result<Inspection> {
     // The CSV reader ends a line at a lone `\r` too; a header cut by one
     // reads as a different header there, so refuse it before any grade.
     let header = first.strip_suffix('\r').unwrap_or(first);
+    // A quote makes the CSV reader read the header differently from this
+    // split (a quoted field may hold separators and line ends): refuse it.
+    if header.contains('"') {
+        return Err(Error::at_line(
+            path,
+            first_index as u64 + 1,
+            "the header line holds a quote (\"): expected plain column names \
+             (query_id, doc_id, grade)",
+        ));
+    }
     if header.contains('\r') {
         return Err(Error::at_line(
             path,
@@ -1003,6 +1013,19 @@ mod tests {
         let msg = JudgmentsAppender::open(&path).unwrap_err().to_string();
         assert!(msg.contains(":1: the header line holds a carriage return"), "{msg}");
         assert!(read_judgments_allow_empty(&path).is_err());
+        assert_eq!(std::fs::read(&path).unwrap(), before);
+    }
+
+    #[test]
+    fn a_header_with_a_quote_is_refused_before_any_grade() {
+        // Regression, found by the judge_resume fuzz target (issue 17): an
+        // unclosed quote in the header swallowed the appended grade.
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("j.csv");
+        let before = b"query_id,dry_id,doc_id,\"\0\0goc_id,grade\n";
+        std::fs::write(&path, before).unwrap();
+        let msg = JudgmentsAppender::open(&path).unwrap_err().to_string();
+        assert!(msg.contains(":1: the header line holds a quote"), "{msg}");
         assert_eq!(std::fs::read(&path).unwrap(), before);
     }
 
