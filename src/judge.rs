@@ -210,6 +210,17 @@ fn inspect(path: &Path) -> Result<Inspection> {
              ending in \\n or \\r\\n",
         ));
     }
+    if let Some(c) = header.chars().find(|&c| c.is_control() && c != '\t') {
+        return Err(Error::at_line(
+            path,
+            first_index as u64 + 1,
+            format!(
+                "the header line holds the control character U+{:04X}: expected plain column \
+                 names (query_id, doc_id, grade)",
+                u32::from(c)
+            ),
+        ));
+    }
     let fields: Vec<&str> = header.split(char::from(separator)).map(str::trim).collect();
     let has_more = lines.next().is_some();
     if fields.contains(&"query_id") {
@@ -1026,6 +1037,19 @@ mod tests {
         std::fs::write(&path, before).unwrap();
         let msg = JudgmentsAppender::open(&path).unwrap_err().to_string();
         assert!(msg.contains(":1: the header line holds a quote"), "{msg}");
+        assert_eq!(std::fs::read(&path).unwrap(), before);
+    }
+
+    #[test]
+    fn a_header_with_a_control_character_is_refused_before_any_grade() {
+        // Regression, found by the judge_resume fuzz target (issue 17): zero
+        // bytes in the header made the file read as UTF-16 once a grade was in.
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("j.csv");
+        let before = b"q\0\x01\0\0_id,doc_id,grade,query_id\n";
+        std::fs::write(&path, before).unwrap();
+        let msg = JudgmentsAppender::open(&path).unwrap_err().to_string();
+        assert!(msg.contains(":1: the header line holds the control character U+0000"), "{msg}");
         assert_eq!(std::fs::read(&path).unwrap(), before);
     }
 
