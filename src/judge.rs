@@ -169,6 +169,17 @@ fn inspect(path: &Path) -> Result<Inspection> {
         });
     };
     let line_end = if first.ends_with(b"\r") { "\r\n" } else { "\n" };
+    // The CSV reader takes the first line, blank or not, as the header (or
+    // the `sep=X` line); a blank line before it would be read as the header
+    // once a grade is in, so refuse it.
+    if first_index > 0 && first.contains(&b',') {
+        return Err(Error::at_line(
+            path,
+            1,
+            "blank lines before the header: expected the header (query_id,doc_id,grade) on the \
+             first line",
+        ));
+    }
     // A spreadsheet's `sep=X` line declares the separator; the header follows.
     let (separator, first_index, first) = match declared_separator(first) {
         Some(Ok(separator)) => match lines.next() {
@@ -1050,6 +1061,19 @@ mod tests {
         std::fs::write(&path, before).unwrap();
         let msg = JudgmentsAppender::open(&path).unwrap_err().to_string();
         assert!(msg.contains(":1: the header line holds the control character U+0000"), "{msg}");
+        assert_eq!(std::fs::read(&path).unwrap(), before);
+    }
+
+    #[test]
+    fn blank_lines_before_the_header_are_refused_before_any_grade() {
+        // Regression, found by the judge_resume fuzz target (issue 17): the
+        // CSV reader took the line of tabs as the header once a grade was in.
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("j.csv");
+        let before = b"\t\t\t\t\n\nquery_id,doc_id,grade\n";
+        std::fs::write(&path, before).unwrap();
+        let msg = JudgmentsAppender::open(&path).unwrap_err().to_string();
+        assert!(msg.contains(":1: blank lines before the header"), "{msg}");
         assert_eq!(std::fs::read(&path).unwrap(), before);
     }
 
