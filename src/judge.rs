@@ -61,7 +61,7 @@ use std::path::{Path, PathBuf};
 
 use crate::error::{Error, ErrorKind, Result};
 use crate::ids::{PostId, QueryId};
-use crate::input::{declared_separator, read_judgments, Judgments};
+use crate::input::{declared_separator, read_judgments, CsvColumns, Judgments, JudgmentsLayout};
 use crate::plural::counted;
 use crate::pool::PoolItem;
 
@@ -118,20 +118,10 @@ pub fn keys_help() -> String {
     format!("{} · s skip · u undo · q quit", grades.join(" · "))
 }
 
-/// How lines are laid out in the judgments file being appended to.
-#[derive(Debug, Clone, PartialEq, Eq)]
-enum Layout {
-    /// CSV with a header: number of columns, where the three are, and the
-    /// separator (`,`, or what a first line `sep=X` declares).
-    Csv { width: usize, query: usize, doc: usize, grade: usize, separator: u8 },
-    /// `query_id iteration doc_id grade`, whitespace-separated.
-    FourColumn,
-}
-
 /// What a judgments file holds before appending.
 #[derive(Debug)]
 struct Inspection {
-    layout: Layout,
+    layout: JudgmentsLayout,
     /// Whether any judgment line follows the header.
     has_judgments: bool,
     /// The line end of the first line (`\r\n` or `\n`).
@@ -157,11 +147,10 @@ fn inspect(path: &Path) -> Result<Inspection> {
         .is_some_and(|&b| b != b'\n')
         .then(|| bytes.iter().filter(|&&b| b == b'\n').count() as u64 + 1);
     let text = bytes.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(&bytes);
-    let mut lines =
-        text.split(|&b| b == b'\n').enumerate().filter(|(_, l)| !l.trim_ascii().is_empty());
-    let Some((first_index, first)) = lines.next() else {
+    let mut lines = text.split(|&b| b == b'\n').filter(|l| !l.trim_ascii().is_empty());
+    let Some(first) = lines.next() else {
         return Ok(Inspection {
-            layout: Layout::Csv { width: 3, query: 0, doc: 1, grade: 2, separator: b',' },
+            layout: header_of_new_file(b','),
             has_judgments: false,
             line_end: "\n",
             unterminated,
@@ -169,108 +158,43 @@ fn inspect(path: &Path) -> Result<Inspection> {
         });
     };
     let line_end = if first.ends_with(b"\r") { "\r\n" } else { "\n" };
-    // The CSV reader takes the first line, blank or not, as the header (or
-    // the `sep=X` line); a blank line before it would be read as the header
-    // once a grade is in, so refuse it.
-    if first_index > 0 && first.contains(&b',') {
-        return Err(Error::at_line(
-            path,
-            1,
-            "blank lines before the header: expected the header (query_id,doc_id,grade) on the \
-             first line",
-        ));
-    }
-    // A spreadsheet's `sep=X` line declares the separator; the header follows.
-    let (separator, first_index, first) = match declared_separator(first) {
-        Some(Ok(separator)) => match lines.next() {
-            Some((index, header)) => (separator, index, header),
-            None => {
-                return Ok(Inspection {
-                    layout: Layout::Csv { width: 3, query: 0, doc: 1, grade: 2, separator },
-                    has_judgments: false,
-                    line_end,
-                    unterminated,
-                    needs_header: true,
-                })
-            }
-        },
-        _ => (b',', first_index, first),
+    // A spreadsheet's `sep=X` line alone: the header goes after it.
+    let declared = match declared_separator(first) {
+        Some(Ok(separator)) => Some(separator),
+        _ => None,
     };
-    // A header that is not UTF-8 does not read; refuse it before any grade.
-    let first = std::str::from_utf8(first).map_err(|e| {
-        Error::at_line(path, first_index as u64 + 1, crate::input::utf8_message(e, "the header"))
-    })?;
-    // The CSV reader ends a line at a lone `\r` too; a header cut by one
-    // reads as a different header there, so refuse it before any grade.
-    let header = first.strip_suffix('\r').unwrap_or(first);
-    // A quote makes the CSV reader read the header differently from this
-    // split (a quoted field may hold separators and line ends): refuse it.
-    if header.contains('"') {
-        return Err(Error::at_line(
-            path,
-            first_index as u64 + 1,
-            "the header line holds a quote (\"): expected plain column names \
-             (query_id, doc_id, grade)",
-        ));
-    }
-    if header.contains('\r') {
-        return Err(Error::at_line(
-            path,
-            first_index as u64 + 1,
-            "the header line holds a carriage return (\\r) before its end: expected lines \
-             ending in \\n or \\r\\n",
-        ));
-    }
-    if let Some(c) = header.chars().find(|&c| c.is_control() && c != '\t') {
-        return Err(Error::at_line(
-            path,
-            first_index as u64 + 1,
-            format!(
-                "the header line holds the control character U+{:04X}: expected plain column \
-                 names (query_id, doc_id, grade)",
-                u32::from(c)
-            ),
-        ));
-    }
-    let fields: Vec<&str> = header.split(char::from(separator)).map(str::trim).collect();
-    let has_more = lines.next().is_some();
-    if fields.contains(&"query_id") {
-        let find = |name: &str| fields.iter().position(|f| *f == name);
-        // A header naming a column twice does not read (the judgments
-        // reader refuses it); refuse it here too, before any grade goes in.
-        if let Some(twice) = ["query_id", "doc_id", "grade"]
-            .into_iter()
-            .find(|name| fields.iter().filter(|f| *f == name).count() > 1)
-        {
-            return Err(Error::at_line(
-                path,
-                first_index as u64 + 1,
-                format!("column {twice:?} appears more than once in the header"),
-            ));
-        }
-        match (find("query_id"), find("doc_id"), find("grade")) {
-            (Some(query), Some(doc), Some(grade)) => Ok(Inspection {
-                layout: Layout::Csv { width: fields.len(), query, doc, grade, separator },
-                has_judgments: has_more,
-                line_end,
-                unterminated,
-                needs_header: false,
-            }),
-            _ => Err(Error::at_line(
-                path,
-                first_index as u64 + 1,
-                format!("expected the header {JUDGMENTS_HEADER:?}, found {:?}", first.trim_end()),
-            )),
-        }
-    } else {
-        Ok(Inspection {
-            layout: Layout::FourColumn,
-            has_judgments: true,
+    let further = lines.count();
+    if let (Some(separator), 0) = (declared, further) {
+        return Ok(Inspection {
+            layout: header_of_new_file(separator),
+            has_judgments: false,
             line_end,
             unterminated,
-            needs_header: false,
-        })
+            needs_header: true,
+        });
     }
+    // Everything else is read as the judgments reader reads it (layout,
+    // header, encoding, quotes, line ends), so a grade appended here is a
+    // line it takes.
+    let layout = crate::input::judgments_layout(path)?;
+    Ok(Inspection {
+        // Non-blank lines past the header (and the `sep=X` line); a
+        // four-column file has no header.
+        has_judgments: match layout {
+            JudgmentsLayout::Csv(_) => further > usize::from(declared.is_some()),
+            JudgmentsLayout::FourColumns => true,
+        },
+        layout,
+        line_end,
+        unterminated,
+        needs_header: false,
+    })
+}
+
+/// The columns of the header `judge` writes into a file that has none
+/// ([`JUDGMENTS_HEADER`] with `separator`).
+fn header_of_new_file(separator: u8) -> JudgmentsLayout {
+    JudgmentsLayout::Csv(CsvColumns { width: 3, query: 0, doc: 1, grade: 2, separator })
 }
 
 /// The judgments of an inspected file (none when it holds none). When its
@@ -317,7 +241,7 @@ pub fn read_judgments_allow_empty(path: &Path) -> Result<(Judgments, Vec<String>
 pub struct JudgmentsAppender {
     path: PathBuf,
     file: File,
-    layout: Layout,
+    layout: JudgmentsLayout,
     line_end: &'static str,
     /// The file's last line has no line end yet: the next append writes one
     /// first, in the same `write_all`.
@@ -345,7 +269,7 @@ impl JudgmentsAppender {
             // first (it holds no judgment, and the CSV reader takes its
             // first line, blank or not, as the header); a `sep=X` line
             // alone gets it after the line (and a line end it lacks).
-            let Layout::Csv { separator, .. } = inspection.layout else {
+            let JudgmentsLayout::Csv(CsvColumns { separator, .. }) = inspection.layout else {
                 return Err(Error::in_file(path, "expected a header line"));
             };
             let bytes = std::fs::read(path).map_err(|e| Error::io(path, e))?;
@@ -381,7 +305,13 @@ impl JudgmentsAppender {
     /// The line that records `grade` for the pair, line end included.
     fn line(&self, query: &QueryId, doc: &PostId, grade: u32) -> Result<Vec<u8>> {
         match self.layout {
-            Layout::Csv { width, query: qc, doc: dc, grade: gc, separator } => {
+            JudgmentsLayout::Csv(CsvColumns {
+                width,
+                query: qc,
+                doc: dc,
+                grade: gc,
+                separator,
+            }) => {
                 let mut fields = vec![String::new(); width];
                 for (c, v) in
                     [(qc, query.to_string()), (dc, doc.to_string()), (gc, grade.to_string())]
@@ -403,7 +333,7 @@ impl JudgmentsAppender {
                     .map_err(|e| Error::usage(format!("formatting a judgment: {e}")))?;
                 w.into_inner().map_err(|e| Error::usage(format!("formatting a judgment: {e}")))
             }
-            Layout::FourColumn => {
+            JudgmentsLayout::FourColumns => {
                 let bad = |id: &str| id.is_empty() || id.chars().any(char::is_whitespace);
                 if bad(query.as_str()) || bad(doc.as_str()) {
                     return Err(Error::in_file(
@@ -1005,7 +935,7 @@ mod tests {
         std::fs::write(&path, before).unwrap();
         let msg = JudgmentsAppender::open(&path).unwrap_err().to_string();
         assert!(
-            msg.ends_with(":1: column \"query_id\" appears more than once in the header"),
+            msg.ends_with(":1: column \"query_id\" appears 2 times in the header (fields 1, 2)"),
             "{msg}"
         );
         assert_eq!(std::fs::read_to_string(&path).unwrap(), before);
@@ -1033,7 +963,10 @@ mod tests {
         let before = b",,query_id,doc_,,u\rid,qu\r\rquery_id,doc_id,grade\n";
         std::fs::write(&path, before).unwrap();
         let msg = JudgmentsAppender::open(&path).unwrap_err().to_string();
-        assert!(msg.contains(":1: the header line holds a carriage return"), "{msg}");
+        assert!(
+            msg.ends_with(":1: missing columns \"doc_id\", \"grade\": expected a header with columns \"query_id\", \"doc_id\", \"grade\", found \",,query_id,doc_,,u\""),
+            "{msg}"
+        );
         assert!(read_judgments_allow_empty(&path).is_err());
         assert_eq!(std::fs::read(&path).unwrap(), before);
     }
@@ -1047,12 +980,15 @@ mod tests {
         let before = b"query_id,dry_id,doc_id,\"\0\0goc_id,grade\n";
         std::fs::write(&path, before).unwrap();
         let msg = JudgmentsAppender::open(&path).unwrap_err().to_string();
-        assert!(msg.contains(":1: the header line holds a quote"), "{msg}");
+        assert!(
+            msg.ends_with(":1: header field 4: expected a closing quote (\") for the quoted field opened on this line, found the end of the file"),
+            "{msg}"
+        );
         assert_eq!(std::fs::read(&path).unwrap(), before);
     }
 
     #[test]
-    fn a_header_with_a_control_character_is_refused_before_any_grade() {
+    fn a_header_read_as_utf16_is_refused_before_any_grade() {
         // Regression, found by the judge_resume fuzz target (issue 17): zero
         // bytes in the header made the file read as UTF-16 once a grade was in.
         let dir = tempfile::tempdir().unwrap();
@@ -1060,7 +996,10 @@ mod tests {
         let before = b"q\0\x01\0\0_id,doc_id,grade,query_id\n";
         std::fs::write(&path, before).unwrap();
         let msg = JudgmentsAppender::open(&path).unwrap_err().to_string();
-        assert!(msg.contains(":1: the header line holds the control character U+0000"), "{msg}");
+        assert!(
+            msg.contains("expected UTF-8 text, found UTF-16 (a zero byte beside every character)"),
+            "{msg}"
+        );
         assert_eq!(std::fs::read(&path).unwrap(), before);
     }
 
@@ -1073,7 +1012,10 @@ mod tests {
         let before = b"\t\t\t\t\n\nquery_id,doc_id,grade\n";
         std::fs::write(&path, before).unwrap();
         let msg = JudgmentsAppender::open(&path).unwrap_err().to_string();
-        assert!(msg.contains(":1: blank lines before the header"), "{msg}");
+        assert!(
+            msg.ends_with(":1: missing columns \"query_id\", \"doc_id\", \"grade\": expected a header with columns \"query_id\", \"doc_id\", \"grade\", found \"\""),
+            "{msg}"
+        );
         assert_eq!(std::fs::read(&path).unwrap(), before);
     }
 

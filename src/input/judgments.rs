@@ -87,9 +87,54 @@ pub fn read_judgments(path: &Path) -> Result<(Judgments, Vec<String>)> {
     pairs.finish()
 }
 
+/// Where the columns of a CSV judgments file are.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct CsvColumns {
+    /// Columns the header names.
+    pub width: usize,
+    /// Position of `query_id`.
+    pub query: usize,
+    /// Position of `doc_id`.
+    pub doc: usize,
+    /// Position of `grade`.
+    pub grade: usize,
+    /// The field separator (`,`, or what a first line `sep=X` declares).
+    pub separator: u8,
+}
+
+/// How a judgments file is laid out.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum JudgmentsLayout {
+    /// CSV, with its header's columns.
+    Csv(CsvColumns),
+    /// The whitespace-separated four-column layout.
+    FourColumns,
+}
+
+/// The layout of the judgments file `path` as [`read_judgments`] sees it:
+/// chosen by content the same way, and for CSV the header read by the same
+/// parser, with the same errors (encoding, separator line, quotes, line
+/// ends, repeated or missing columns). A program that appends judgment
+/// lines (`judge`) asks here, so that what it writes is what the reader
+/// reads.
+pub fn judgments_layout(path: &Path) -> Result<JudgmentsLayout> {
+    Ok(match choose_layout(path, 4, EXPECTED_LAYOUT)? {
+        Layout::Csv => JudgmentsLayout::Csv(open_csv(path)?.1),
+        Layout::Columns => JudgmentsLayout::FourColumns,
+    })
+}
+
+/// Open a CSV judgments file and find its three columns.
+fn open_csv(path: &Path) -> Result<(CsvTable, CsvColumns)> {
+    let table = CsvTable::open(path, "query_id,doc_id,grade")?;
+    let ([query, doc, grade], []) = table.columns(["query_id", "doc_id", "grade"], [])?;
+    let columns =
+        CsvColumns { width: table.width(), query, doc, grade, separator: table.separator() };
+    Ok((table, columns))
+}
+
 fn read_csv(path: &Path, pairs: &mut Pairs) -> Result<()> {
-    let mut table = CsvTable::open(path, "query_id,doc_id,grade")?;
-    let ([q_col, d_col, g_col], []) = table.columns(["query_id", "doc_id", "grade"], [])?;
+    let (mut table, CsvColumns { query: q_col, doc: d_col, grade: g_col, .. }) = open_csv(path)?;
     while let Some(row) = table.next_row(&mut pairs.problems)? {
         let query = check_id(row.get(q_col)).map_err(|m| in_column("query_id", &m));
         let doc = check_id(row.get(d_col)).map_err(|m| in_column("doc_id", &m));

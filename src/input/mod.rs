@@ -14,7 +14,7 @@ mod runs;
 mod text;
 
 pub use corpus::{read_corpus, read_corpus_metered, Post};
-pub use judgments::{read_judgments, Judgments};
+pub use judgments::{judgments_layout, read_judgments, CsvColumns, Judgments, JudgmentsLayout};
 pub use lang_code::LangCode;
 pub use queries::{read_queries, Query};
 pub use runs::{format_shortest, read_run, write_run, RankedDoc, Run};

@@ -490,6 +490,8 @@ pub(super) struct CsvTable {
     /// Physical lines before the CSV text (a `sep=` line), added to the
     /// parser's line numbers.
     lines_before: u64,
+    /// The field separator (`,`, or what a `sep=X` line declares).
+    separator: u8,
 }
 
 /// One CSV record whose field count matches the header and whose fields are
@@ -514,6 +516,16 @@ impl Row {
 }
 
 impl CsvTable {
+    /// The field separator.
+    pub fn separator(&self) -> u8 {
+        self.separator
+    }
+
+    /// The number of columns the header names.
+    pub fn width(&self) -> usize {
+        self.header.len()
+    }
+
     /// Bytes of the records read so far, past the header (for progress).
     pub fn bytes_read(&self) -> u64 {
         self.reader.get_ref().offset
@@ -538,6 +550,7 @@ impl CsvTable {
             header_line: 1,
             record: csv::ByteRecord::new(),
             lines_before,
+            separator,
         };
         let raw = table.reader.byte_headers().map_err(|e| wrap_csv(path, e))?.clone();
         if raw.is_empty() {
