@@ -37,19 +37,9 @@ pub struct Comparisons {
 /// The work is spread over `settings.threads` threads inside the statistics
 /// (`stats::compare_families`, `stats::bootstrap_cis`); no number depends
 /// on the thread count.
+/// `progress` shows a bar of the cells done (the whole query set and each
+/// breakdown cell that is tested).
 pub fn compare(
-    systems: &[(ChainName, &SystemScores)],
-    baseline: usize,
-    metrics: &[Metric],
-    queries: Option<&[Query]>,
-    settings: &StatSettings,
-) -> Comparisons {
-    compare_shown(systems, baseline, metrics, queries, settings, &Progress::quiet())
-}
-
-/// [`compare`], showing a bar of the cells done (the whole query set and
-/// each breakdown cell that is tested) on `progress`.
-pub fn compare_shown(
     systems: &[(ChainName, &SystemScores)],
     baseline: usize,
     metrics: &[Metric],
@@ -334,7 +324,8 @@ mod tests {
             (ChainName::from("a"), &a),
             (ChainName::from("b"), &b),
         ];
-        let out = compare(&systems, 0, &metrics, None, &StatSettings::default());
+        let out =
+            compare(&systems, 0, &metrics, None, &StatSettings::default(), &Progress::quiet());
         let keys: Vec<(String, String)> =
             out.comparisons.iter().map(|r| (r.system.to_string(), r.metric.clone())).collect();
         assert_eq!(
@@ -375,7 +366,14 @@ mod tests {
             })
             .collect();
         let systems = vec![(ChainName::from("base"), &base), (ChainName::from("s"), &sys)];
-        let out = compare(&systems, 0, &metrics, Some(&queries), &StatSettings::default());
+        let out = compare(
+            &systems,
+            0,
+            &metrics,
+            Some(&queries),
+            &StatSettings::default(),
+            &Progress::quiet(),
+        );
         let cells: Vec<(String, String, usize, bool)> = out
             .breakdowns
             .iter()

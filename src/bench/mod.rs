@@ -699,7 +699,7 @@ impl Assembly<'_> {
         let refs: Vec<(ChainName, &SystemScores)> =
             scores.iter().map(|(n, s)| (n.clone(), s)).collect();
         let stats = StatSettings { threads: options.threads, ..options.stats };
-        let computed = compare::compare_shown(
+        let computed = compare::compare(
             &refs,
             self.baseline,
             &options.metrics,
