@@ -126,6 +126,18 @@ fn generated_bench(dir: &Path, n: usize) -> (PathBuf, PathBuf, PathBuf) {
     (corpus, write(dir, "queries.csv", &q), write(dir, "qrels.csv", &j))
 }
 
+/// `run --quiet` on the three files of [`generated_bench`], then `rest`.
+fn bench_args(files: &(PathBuf, PathBuf, PathBuf), rest: &[&str]) -> Vec<String> {
+    let (corpus, queries, qrels) = files;
+    let mut args: Vec<String> = ["run", "--quiet", "--corpus", s(corpus), "--queries", s(queries)]
+        .iter()
+        .chain(&["--judgments", s(qrels)])
+        .map(|a| a.to_string())
+        .collect();
+    args.extend(rest.iter().map(|a| a.to_string()));
+    args
+}
+
 /// Two chains of our own, `b`'s `longest` set to `longest`.
 fn chain_file(dir: &Path, longest: u32) -> PathBuf {
     write(
@@ -146,27 +158,12 @@ fn a_changed_chain_or_corpus_is_rebuilt_and_nothing_else() {
     let tmp = tempfile::tempdir().expect("temp dir");
     let dir = tmp.path();
     let cache = dir.join("cache");
-    let (corpus, queries, qrels) = generated_bench(dir, 300);
+    let files = generated_bench(dir, 300);
+    let corpus = files.0.clone();
     let run = |out: &str| {
-        run_ok(
-            dir,
-            &[
-                "run",
-                "--quiet",
-                "--corpus",
-                s(&corpus),
-                "--queries",
-                s(&queries),
-                "--judgments",
-                s(&qrels),
-                "--chain-file",
-                "chains.toml",
-                "--cache-dir",
-                s(&cache),
-                "--out",
-                out,
-            ],
-        );
+        let rest = ["--chain-file", "chains.toml", "--cache-dir", s(&cache), "--out", out];
+        let args = bench_args(&files, &rest);
+        run_ok(dir, &args.iter().map(String::as_str).collect::<Vec<_>>());
         from_cache(&dir.join(out))
     };
     let pair = |a: bool, b: bool| vec![("a".to_string(), a), ("b".to_string(), b)];
@@ -224,33 +221,12 @@ fn a_run_killed_during_a_build_leaves_nothing_the_next_run_reuses() {
     let dir = tmp.path();
     let cache = dir.join("cache");
     let indexes = cache.join("indexes");
-    let (corpus, queries, qrels) = generated_bench(dir, 200_000);
+    let files = generated_bench(dir, 200_000);
     let args = |out: &str, cached: bool| {
-        let mut v: Vec<String> = [
-            "run",
-            "--quiet",
-            "--corpus",
-            s(&corpus),
-            "--queries",
-            s(&queries),
-            "--judgments",
-            s(&qrels),
-            "--chains",
-            "standard,stemmed",
-            "--threads",
-            "1",
-            "--out",
-            out,
-        ]
-        .iter()
-        .map(|a| a.to_string())
-        .collect();
-        if cached {
-            v.extend(["--cache-dir".to_string(), s(&cache).to_string()]);
-        } else {
-            v.push("--no-cache".to_string());
-        }
-        v
+        let cache_flags = if cached { vec!["--cache-dir", s(&cache)] } else { vec!["--no-cache"] };
+        let mut rest = vec!["--chains", "standard,stemmed", "--threads", "1", "--out", out];
+        rest.extend(cache_flags);
+        bench_args(&files, &rest)
     };
     let mut child = Command::new(env!("CARGO_BIN_EXE_postassay"))
         .current_dir(dir)
