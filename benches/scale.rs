@@ -31,6 +31,9 @@
 
 #[path = "common/corpus.rs"]
 mod corpus;
+#[path = "../tests/common/peak_memory.rs"]
+mod peak_memory;
+use peak_memory::wait_with_peak_memory;
 
 use std::fmt::Write as _;
 use std::io::Write as _;
@@ -214,31 +217,10 @@ fn postassay(dir: &Path, args: &[String]) -> Measured {
         .args(args)
         .spawn()
         .expect("postassay starts");
-    let (status, rss) = wait_with_rss(child);
+    let waited = wait_with_peak_memory(child);
     let seconds = started.elapsed().as_secs_f64();
-    assert!(status == 0, "postassay {args:?} exited with {status}");
-    Measured { seconds, rss }
-}
-
-/// Wait for `child`: its exit status and peak resident set in bytes.
-#[cfg(unix)]
-fn wait_with_rss(child: std::process::Child) -> (i32, u64) {
-    let pid = child.id() as libc::pid_t;
-    let mut status: libc::c_int = 0;
-    // SAFETY: `rusage` is plain data, zeroed is a valid value, and wait4 only
-    // writes into the two pointers we pass for a child of this process.
-    let mut usage: libc::rusage = unsafe { std::mem::zeroed() };
-    let got = unsafe { libc::wait4(pid, &mut status, 0, &mut usage) };
-    assert_eq!(got, pid, "wait4 failed");
-    let code = if libc::WIFEXITED(status) { libc::WEXITSTATUS(status) } else { -1 };
-    // Linux reports ru_maxrss in KiB.
-    (code, usage.ru_maxrss as u64 * 1024)
-}
-
-#[cfg(not(unix))]
-fn wait_with_rss(mut child: std::process::Child) -> (i32, u64) {
-    let status = child.wait().expect("waits");
-    (status.code().unwrap_or(-1), 0)
+    assert_eq!((waited.code, waited.signal), (Some(0), None), "postassay {args:?}");
+    Measured { seconds, rss: waited.max_rss_bytes }
 }
 
 fn run_args(dir: &Path, name: &str, cache: &Path, out: &str, chains: Option<&Path>) -> Vec<String> {

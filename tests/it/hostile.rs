@@ -10,6 +10,10 @@ use std::process::{Command, Stdio};
 
 use crate::util::{fixture, report_line};
 
+#[path = "../common/peak_memory.rs"]
+mod peak_memory;
+use peak_memory::wait_with_peak_memory;
+
 /// How a child ended, its output and its peak resident memory.
 struct Ended {
     code: Option<i32>,
@@ -20,9 +24,7 @@ struct Ended {
 }
 
 /// Run the binary in `dir` with `args` to its end (stdout and stderr go
-/// to files, so no pipe fills) and collect its peak memory with `wait4`
-/// (which reaps the child: `Child::wait` would not give the memory).
-#[allow(clippy::zombie_processes)]
+/// to files, so no pipe fills) and collect its peak memory.
 fn run_measured(dir: &Path, args: &[&str]) -> Ended {
     let out_path = dir.join("child.stdout");
     let err_path = dir.join("child.stderr");
@@ -34,22 +36,13 @@ fn run_measured(dir: &Path, args: &[&str]) -> Ended {
         .stderr(File::create(&err_path).unwrap())
         .spawn()
         .expect("the binary starts");
-    let pid = i32::try_from(child.id()).unwrap();
-    let mut status = 0;
-    // SAFETY: a zeroed rusage is a valid value for wait4 to fill; the pid
-    // is our child's, reaped here once (the Child is not waited on again).
-    let mut usage: libc::rusage = unsafe { std::mem::zeroed() };
-    let got = unsafe { libc::wait4(pid, &mut status, 0, &mut usage) };
-    assert_eq!(got, pid, "wait4: {}", std::io::Error::last_os_error());
-    let exited = libc::WIFEXITED(status);
-    let signaled = libc::WIFSIGNALED(status);
+    let waited = wait_with_peak_memory(child);
     Ended {
-        code: exited.then(|| libc::WEXITSTATUS(status)),
-        signal: signaled.then(|| libc::WTERMSIG(status)),
+        code: waited.code,
+        signal: waited.signal,
         stdout: std::fs::read_to_string(out_path).unwrap(),
         stderr: std::fs::read_to_string(err_path).unwrap(),
-        // Linux reports ru_maxrss in KiB.
-        max_rss_bytes: u64::try_from(usage.ru_maxrss).unwrap() * 1024,
+        max_rss_bytes: waited.max_rss_bytes,
     }
 }
 
