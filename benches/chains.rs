@@ -34,7 +34,7 @@
 //! ("Benchmarks") explains how to read the output.
 
 mod common;
-use common::median;
+use common::{env_usize, median};
 #[path = "common/corpus.rs"]
 mod corpus;
 use corpus::generate_posts;
@@ -156,17 +156,6 @@ fn main() {
         100.0 * routed_share as f64 / posts.len().max(1) as f64,
         detector.languages().map_or(0, <[LangCode]>::len)
     );
-}
-
-/// A positive integer from the environment, else `default`.
-fn env_usize(name: &str, default: usize) -> usize {
-    match std::env::var(name) {
-        Ok(v) => v.trim().parse().unwrap_or_else(|_| {
-            eprintln!("{name}={v:?} is not a whole number; using {default}");
-            default
-        }),
-        Err(_) => default,
-    }
 }
 
 // ---------------------------------------------------------------- analysis

@@ -29,6 +29,8 @@
 //! there instead of a temporary directory). DEVELOPERS.md ("Benchmarks")
 //! explains how to read the output.
 
+mod common;
+use common::{env_usize, median};
 #[path = "common/corpus.rs"]
 mod corpus;
 #[path = "../tests/common/peak_memory.rs"]
@@ -51,13 +53,6 @@ use rand_chacha::ChaCha8Rng;
 
 /// Seed of the queries, judgments and runs (the corpus has its own).
 const SEED: u64 = 0x7363_616c;
-
-fn env_usize(name: &str, default: usize) -> usize {
-    match std::env::var(name) {
-        Ok(v) => v.parse().unwrap_or_else(|_| panic!("{name}: expected an integer, found {v:?}")),
-        Err(_) => default,
-    }
-}
 
 fn main() {
     let posts_n = env_usize("POSTASSAY_SCALE_POSTS", 1_000_000);
@@ -85,7 +80,7 @@ fn main() {
 
     let mut rows: Vec<Row> = Vec::new();
     let bare: Vec<f64> = (0..2).map(|_| corpus::default_build(&posts, 2)).collect();
-    let bare = bare.iter().sum::<f64>() / bare.len() as f64;
+    let bare = median(&bare);
     rows.push(Row::new("bare build (tantivy default tokenizer, 2 writer threads)", bare));
 
     // The whole run, cold: a fresh cache directory.

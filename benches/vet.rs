@@ -21,7 +21,7 @@
 //! ("Benchmarks") explains the output.
 
 mod common;
-use common::median;
+use common::{env_usize, median};
 
 use std::path::{Path, PathBuf};
 use std::process::Command;
@@ -100,17 +100,6 @@ fn main() {
     println!("  ratio vet ÷ baseline                {:>16.1}  {lo:.1}–{hi:.1}", median(&ratios));
     let verdict = if seconds < TARGET_SECONDS { "met" } else { "MISSED" };
     println!("target: a full pass under {TARGET_SECONDS:.0} s: {seconds:.2} s, {verdict}");
-}
-
-/// A positive integer from the environment, else `default`.
-fn env_usize(name: &str, default: usize) -> usize {
-    match std::env::var(name) {
-        Ok(v) => v.trim().parse().unwrap_or_else(|_| {
-            eprintln!("{name}={v:?} is not a whole number; using {default}");
-            default
-        }),
-        Err(_) => default,
-    }
 }
 
 /// One `postassay vet` run of the README command into `out`, from `root`.
