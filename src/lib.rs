@@ -27,6 +27,7 @@ pub mod gate;
 pub mod index;
 pub mod judge;
 pub mod output;
+mod parallel;
 pub mod pause;
 pub mod pool;
 pub mod report;

@@ -441,22 +441,17 @@ impl LangDetector {
             return timed(texts);
         }
         let chunk = texts.len().div_ceil(threads);
-        std::thread::scope(|scope| {
-            let handles: Vec<_> =
-                texts.chunks(chunk).map(|part| scope.spawn(move || timed(part))).collect();
-            let mut out = Vec::with_capacity(texts.len());
-            let mut seconds = 0.0;
-            for h in handles {
-                match h.join() {
-                    Ok((part, s)) => {
-                        out.extend(part);
-                        seconds += s;
-                    }
-                    Err(e) => std::panic::resume_unwind(e),
-                }
-            }
-            (out, seconds)
-        })
+        let parts: Vec<&[&str]> = texts.chunks(chunk).collect();
+        let done = crate::parallel::map_indexed(parts.len(), threads, |i| {
+            parts.get(i).map_or_else(|| (Vec::new(), 0.0), |part| timed(part))
+        });
+        let mut out = Vec::with_capacity(texts.len());
+        let mut seconds = 0.0;
+        for (part, s) in done {
+            out.extend(part);
+            seconds += s;
+        }
+        (out, seconds)
     }
 }
 

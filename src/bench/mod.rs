@@ -18,7 +18,7 @@ pub mod moved;
 
 use std::collections::{BTreeMap, BTreeSet};
 use std::path::{Path, PathBuf};
-use std::sync::atomic::{AtomicBool, AtomicUsize, Ordering};
+use std::sync::atomic::{AtomicBool, Ordering};
 use std::time::Instant;
 
 use self::detect_cache::DetectCache;
@@ -303,53 +303,21 @@ struct ChainDone {
 /// depends on the thread count. The first failing chain, in chain order,
 /// gives the error.
 fn build_and_search(work: &ChainWork<'_>) -> Result<Vec<ChainDone>> {
-    let total = work.analyzers.len();
-    let next = AtomicUsize::new(0);
+    // Once a chain fails, chains not yet begun are skipped (`None`); the
+    // failure is among the results, so the first error in chain order
+    // comes out.
     let failed = AtomicBool::new(false);
-    let workers = work.threads.clamp(1, total.max(1));
-    let mut slots: Vec<Option<Result<ChainDone>>> = (0..total).map(|_| None).collect();
-    let finished: Vec<Vec<(usize, Result<ChainDone>)>> = std::thread::scope(|scope| {
-        let handles: Vec<_> = (0..workers)
-            .map(|_| {
-                scope.spawn(|| {
-                    let mut done = Vec::new();
-                    loop {
-                        let i = next.fetch_add(1, Ordering::Relaxed);
-                        if i >= total || failed.load(Ordering::Relaxed) {
-                            break done;
-                        }
-                        let result = one_chain(work, i);
-                        if result.is_err() {
-                            failed.store(true, Ordering::Relaxed);
-                        }
-                        done.push((i, result));
-                    }
-                })
-            })
-            .collect();
-        handles
-            .into_iter()
-            .map(|h| h.join().unwrap_or_else(|e| std::panic::resume_unwind(e)))
-            .collect()
+    let results = crate::parallel::map_indexed(work.analyzers.len(), work.threads, |i| {
+        if failed.load(Ordering::Relaxed) {
+            return None;
+        }
+        let result = one_chain(work, i);
+        if result.is_err() {
+            failed.store(true, Ordering::Relaxed);
+        }
+        Some(result)
     });
-    for (i, result) in finished.into_iter().flatten() {
-        if let Some(slot) = slots.get_mut(i) {
-            *slot = Some(result);
-        }
-    }
-    let mut out = Vec::with_capacity(total);
-    for slot in slots {
-        match slot {
-            Some(result) => out.push(result?),
-            // Left undone because an earlier-taken chain failed; that
-            // failure is in a slot before or after this one.
-            None => continue,
-        }
-    }
-    if out.len() < total {
-        return Err(Error::index("a chain failed without an error".to_string()));
-    }
-    Ok(out)
+    results.into_iter().flatten().collect()
 }
 
 /// Build (or read from the cache) and search chain `i` of `work`.

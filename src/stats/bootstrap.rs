@@ -13,8 +13,8 @@
 
 use std::collections::BTreeMap;
 
-use super::parallel::map_indexed;
 use super::stream::{Purpose, Stream};
+use crate::parallel::map_indexed;
 
 /// Coverage of the interval (metrics.md: "95% confidence interval").
 pub const CONFIDENCE: f64 = 0.95;

@@ -7,12 +7,12 @@
 //! comparison row prints is a field here.
 
 use super::holm::holm;
-use super::parallel::map_indexed;
 use super::power::min_detectable_difference;
 use super::randomization::{randomization_test, EXACT_MAX_QUERIES};
 use super::summary::mean;
 use super::t_test::paired_t_test;
 use super::wins::{wins_losses_ties, WinsLossesTies};
+use crate::parallel::map_indexed;
 
 /// Settings of the statistics; `Default` holds the documented defaults.
 #[derive(Clone, Copy, Debug, PartialEq)]

@@ -37,7 +37,6 @@
 mod bootstrap;
 mod comparison;
 mod holm;
-mod parallel;
 mod power;
 mod randomization;
 mod stream;

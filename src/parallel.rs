@@ -1,10 +1,12 @@
-//! Spreads independent pieces of statistical work over threads, results in
-//! a fixed order.
+//! Spreads independent pieces of work over threads, results in a fixed
+//! order: the statistics' tests and resamples, language detection, each
+//! chain's build and search.
 //!
-//! Data flow: used only inside `stats`. Every piece is a pure function of
-//! its number (its random draws come from streams keyed by that number, see
-//! `stream.rs`), so which thread runs it, and when, cannot change a result:
-//! outputs are identical for any thread count.
+//! Data flow: at the bottom beside `error`; it knows nothing of the work.
+//! Callers make every piece a pure function of its number (the statistics
+//! key their random draws by it, see `stats/stream.rs`), so which thread
+//! runs a piece, and when, cannot change a result: outputs are identical for
+//! any thread count.
 
 use std::sync::atomic::{AtomicUsize, Ordering};
 
