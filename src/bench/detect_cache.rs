@@ -22,7 +22,6 @@
 //! missing, unreadable or damaged file is a miss: the texts are detected
 //! again and the file rewritten (atomically, through a temporary file).
 
-use std::fmt::Write as _;
 use std::path::{Path, PathBuf};
 
 use sha2::{Digest, Sha256};
@@ -148,10 +147,7 @@ impl DetectCache {
             hasher.update((text.len() as u64).to_le_bytes());
             hasher.update(text.as_bytes());
         }
-        hasher.finalize().iter().fold(String::with_capacity(64), |mut s, b| {
-            let _ = write!(s, "{b:02x}");
-            s
-        })
+        crate::input::hex(&hasher.finalize())
     }
 
     fn path_of(&self, key: &str) -> PathBuf {

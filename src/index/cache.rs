@@ -100,7 +100,7 @@ pub fn key(parts: &KeyParts<'_>) -> String {
         }
     }
     field(detections.as_bytes());
-    hex(&h.finalize())
+    crate::input::hex(&h.finalize())
 }
 
 /// Every token (text and position) each field of `analyzer` makes of the
@@ -309,13 +309,6 @@ fn format_tag() -> String {
 fn read_manifest(dir: &Path) -> Option<Manifest> {
     let bytes = std::fs::read(dir.join(MANIFEST)).ok()?;
     serde_json::from_slice(&bytes).ok()
-}
-
-fn hex(bytes: &[u8]) -> String {
-    bytes.iter().fold(String::with_capacity(bytes.len() * 2), |mut s, b| {
-        let _ = write!(s, "{b:02x}");
-        s
-    })
 }
 
 #[cfg(test)]
