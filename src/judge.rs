@@ -61,7 +61,9 @@ use std::path::{Path, PathBuf};
 
 use crate::error::{Error, ErrorKind, Result};
 use crate::ids::{PostId, QueryId};
-use crate::input::{declared_separator, read_judgments, CsvColumns, Judgments, JudgmentsLayout};
+use crate::input::{
+    declared_separator, read_judgments_or_none, CsvColumns, Judgments, JudgmentsLayout,
+};
 use crate::plural::counted;
 use crate::pool::PoolItem;
 
@@ -122,8 +124,6 @@ pub fn keys_help() -> String {
 #[derive(Debug)]
 struct Inspection {
     layout: JudgmentsLayout,
-    /// Whether any judgment line follows the header.
-    has_judgments: bool,
     /// The line end of the first line (`\r\n` or `\n`).
     line_end: &'static str,
     /// The number of the last line when it has no line end.
@@ -151,7 +151,6 @@ fn inspect(path: &Path) -> Result<Inspection> {
     let Some(first) = lines.next() else {
         return Ok(Inspection {
             layout: header_of_new_file(b','),
-            has_judgments: false,
             line_end: "\n",
             unterminated,
             needs_header: true,
@@ -159,15 +158,9 @@ fn inspect(path: &Path) -> Result<Inspection> {
     };
     let line_end = if first.ends_with(b"\r") { "\r\n" } else { "\n" };
     // A spreadsheet's `sep=X` line alone: the header goes after it.
-    let declared = match declared_separator(first) {
-        Some(Ok(separator)) => Some(separator),
-        _ => None,
-    };
-    let further = lines.count();
-    if let (Some(separator), 0) = (declared, further) {
+    if let (Some(Ok(separator)), None) = (declared_separator(first), lines.next()) {
         return Ok(Inspection {
             layout: header_of_new_file(separator),
-            has_judgments: false,
             line_end,
             unterminated,
             needs_header: true,
@@ -176,15 +169,8 @@ fn inspect(path: &Path) -> Result<Inspection> {
     // Everything else is read as the judgments reader reads it (layout,
     // header, encoding, quotes, line ends), so a grade appended here is a
     // line it takes.
-    let layout = crate::input::judgments_layout(path)?;
     Ok(Inspection {
-        // Non-blank lines past the header (and the `sep=X` line); a
-        // four-column file has no header.
-        has_judgments: match layout {
-            JudgmentsLayout::Csv(_) => further > usize::from(declared.is_some()),
-            JudgmentsLayout::FourColumns => true,
-        },
-        layout,
+        layout: crate::input::judgments_layout(path)?,
         line_end,
         unterminated,
         needs_header: false,
@@ -202,10 +188,10 @@ fn header_of_new_file(separator: u8) -> JudgmentsLayout {
 /// line is a torn write: the error says so instead of listing it as a bad
 /// judgment.
 fn read_existing(path: &Path, inspection: &Inspection) -> Result<(Judgments, Vec<String>)> {
-    if !inspection.has_judgments {
+    if inspection.needs_header {
         return Ok((Judgments::default(), Vec::new()));
     }
-    read_judgments(path).map_err(|err| {
+    read_judgments_or_none(path).map_err(|err| {
         let Some(last) = inspection.unterminated else { return err };
         let ErrorKind::Input { problems, more: 0, .. } = err.kind() else { return err };
         if problems.is_empty() || problems.iter().any(|p| p.line != Some(last)) {
@@ -748,6 +734,7 @@ pub fn script_keys<R: BufRead>(input: R) -> impl Iterator<Item = Result<(u64, Ke
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::input::read_judgments;
 
     fn item(q: &str, d: &str) -> PoolItem {
         PoolItem {
@@ -1016,6 +1003,21 @@ mod tests {
             msg.ends_with(":1: missing columns \"query_id\", \"doc_id\", \"grade\": expected a header with columns \"query_id\", \"doc_id\", \"grade\", found \"\""),
             "{msg}"
         );
+        assert_eq!(std::fs::read(&path).unwrap(), before);
+    }
+
+    #[test]
+    fn a_record_after_a_lone_carriage_return_is_read_before_any_grade() {
+        // Regression, found by the judge_resume fuzz target (issue 17): the
+        // CSV reader reads `q\x18` after the header's lone `\r`s as a record
+        // of one field; `judge` used to count lines itself, saw none, and
+        // appended to a file that did not read.
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("j.csv");
+        let before = b"query_id,doc_id,grade\r\rq\x18\n\t\r\r\r\r";
+        std::fs::write(&path, before).unwrap();
+        let msg = JudgmentsAppender::open(&path).unwrap_err().to_string();
+        assert!(msg.contains(":1: expected 3 fields as in the header, found 1"), "{msg}");
         assert_eq!(std::fs::read(&path).unwrap(), before);
     }
 

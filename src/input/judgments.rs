@@ -79,7 +79,19 @@ impl Judgments {
 /// Read a judgments file; returns the judgments and warnings (duplicate pairs
 /// with the same grade), each warning a full line `path:line: message`.
 pub fn read_judgments(path: &Path) -> Result<(Judgments, Vec<String>)> {
+    read_with(path, false)
+}
+
+/// [`read_judgments`], except that a file with a header and no judgment
+/// gives none instead of an error (a judgments file `judge` is about to
+/// fill). Everything else is read and checked the same way.
+pub fn read_judgments_or_none(path: &Path) -> Result<(Judgments, Vec<String>)> {
+    read_with(path, true)
+}
+
+fn read_with(path: &Path, none_allowed: bool) -> Result<(Judgments, Vec<String>)> {
     let mut pairs = Pairs::new(path);
+    pairs.none_allowed = none_allowed;
     match choose_layout(path, 4, EXPECTED_LAYOUT)? {
         Layout::Csv => read_csv(path, &mut pairs)?,
         Layout::Columns => read_four_columns(path, &mut pairs)?,
@@ -178,6 +190,8 @@ struct Pairs {
     seen: BTreeMap<(QueryId, PostId), (u32, u64)>,
     problems: Problems,
     warnings: Vec<String>,
+    /// A file without any judgment is not an error.
+    none_allowed: bool,
 }
 
 impl Pairs {
@@ -187,6 +201,7 @@ impl Pairs {
             seen: BTreeMap::new(),
             problems: Problems::new(path),
             warnings: Vec::new(),
+            none_allowed: false,
         }
     }
 
@@ -225,7 +240,7 @@ impl Pairs {
     }
 
     fn finish(mut self) -> Result<(Judgments, Vec<String>)> {
-        if self.problems.is_empty() && self.seen.is_empty() {
+        if self.problems.is_empty() && self.seen.is_empty() && !self.none_allowed {
             self.problems.push_file("expected at least one judgment, found none");
         }
         let triples = self.seen.into_iter().map(|((q, d), (g, _))| (q, d, g));

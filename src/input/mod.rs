@@ -14,7 +14,10 @@ mod runs;
 mod text;
 
 pub use corpus::{read_corpus, read_corpus_metered, Post};
-pub use judgments::{judgments_layout, read_judgments, CsvColumns, Judgments, JudgmentsLayout};
+pub use judgments::{
+    judgments_layout, read_judgments, read_judgments_or_none, CsvColumns, Judgments,
+    JudgmentsLayout,
+};
 pub use lang_code::LangCode;
 pub use queries::{read_queries, Query};
 pub use runs::{format_shortest, read_run, write_run, RankedDoc, Run};
