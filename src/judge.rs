@@ -128,6 +128,9 @@ struct Inspection {
     line_end: &'static str,
     /// The number of the last line when it has no line end.
     unterminated: Option<u64>,
+    /// What ends such a last line: `\n` when it ends in `\r` already
+    /// (half a `\r\n`), else [`line_end`](Self::line_end).
+    completion: &'static str,
     /// The file has no header yet: it is empty, blank, or holds only a
     /// `sep=X` line.
     needs_header: bool,
@@ -153,16 +156,19 @@ fn inspect(path: &Path) -> Result<Inspection> {
             layout: header_of_new_file(b','),
             line_end: "\n",
             unterminated,
+            completion: "\n",
             needs_header: true,
         });
     };
     let line_end = if first.ends_with(b"\r") { "\r\n" } else { "\n" };
+    let completion = if bytes.ends_with(b"\r") { "\n" } else { line_end };
     // A spreadsheet's `sep=X` line alone: the header goes after it.
     if let (Some(Ok(separator)), None) = (declared_separator(first), lines.next()) {
         return Ok(Inspection {
             layout: header_of_new_file(separator),
             line_end,
             unterminated,
+            completion,
             needs_header: true,
         });
     }
@@ -173,6 +179,7 @@ fn inspect(path: &Path) -> Result<Inspection> {
         layout: crate::input::judgments_layout(path)?,
         line_end,
         unterminated,
+        completion,
         needs_header: false,
     })
 }
@@ -229,9 +236,11 @@ pub struct JudgmentsAppender {
     file: File,
     layout: JudgmentsLayout,
     line_end: &'static str,
-    /// The file's last line has no line end yet: the next append writes one
-    /// first, in the same `write_all`.
+    /// The file's last line has no line end yet: the next append writes
+    /// `completion` first, in the same `write_all`.
     complete_last_line: bool,
+    /// What completes that last line (see [`Inspection`]).
+    completion: &'static str,
 }
 
 impl JudgmentsAppender {
@@ -279,6 +288,7 @@ impl JudgmentsAppender {
             layout: inspection.layout,
             line_end: inspection.line_end,
             complete_last_line: inspection.unterminated.is_some(),
+            completion: inspection.completion,
         };
         Ok((appender, judgments))
     }
@@ -345,7 +355,7 @@ impl JudgmentsAppender {
         let mut line = self.line(query, doc, grade)?;
         let completes_last_line = self.complete_last_line;
         if completes_last_line {
-            line.splice(0..0, self.line_end.bytes());
+            line.splice(0..0, self.completion.bytes());
         }
         let io = |e| Error::io(&self.path, e);
         let before = self.file.metadata().map_err(io)?.len();
@@ -1019,6 +1029,21 @@ mod tests {
         let msg = JudgmentsAppender::open(&path).unwrap_err().to_string();
         assert!(msg.contains(":1: expected 3 fields as in the header, found 1"), "{msg}");
         assert_eq!(std::fs::read(&path).unwrap(), before);
+    }
+
+    #[test]
+    fn a_last_line_ending_in_half_a_crlf_is_completed_with_its_other_half() {
+        // Regression, found by the judge_resume fuzz target (issue 17): a
+        // last line `\r` (blank to the reader) got a whole `\r\n`, leaving a
+        // line `\r\r` that reads as a field.
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("j.txt");
+        std::fs::write(&path, b"q1 0 d1 1\r\n\r").unwrap();
+        let (mut appender, judged) = JudgmentsAppender::open(&path).unwrap();
+        assert_eq!(judged.len(), 1);
+        appender.append(&QueryId::from("q1"), &PostId::from("d2"), 2).unwrap();
+        assert_eq!(std::fs::read(&path).unwrap(), b"q1 0 d1 1\r\n\r\nq1 0 d2 2\r\n");
+        assert_eq!(read_judgments(&path).unwrap().0.len(), 2, "reads back");
     }
 
     #[test]
